@@ -1,0 +1,7 @@
+// Unit tests: the core, bridge parsers, model and panel logic. No server, no browser.
+const base = require('./jest.base.config');
+module.exports = {
+  ...base,
+  roots: ['<rootDir>/test/core', '<rootDir>/test/bridge', '<rootDir>/test/model', '<rootDir>/test/panel'],
+  testMatch: ['**/*.test.ts']
+};

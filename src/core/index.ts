@@ -1,0 +1,5 @@
+/**
+ * Perpend's numerical core: pure TypeScript on typed arrays, no DOM, no JupyterLab.
+ * Runs in Node, the browser and a Web Worker. Each area keeps its own index file.
+ */
+export * from './errors';
