@@ -1,0 +1,150 @@
+import {
+  ILayoutRestorer,
+  type JupyterFrontEnd,
+  type JupyterFrontEndPlugin
+} from '@jupyterlab/application';
+import { ICommandPalette } from '@jupyterlab/apputils';
+import { INotebookTracker, NotebookActions, type NotebookPanel } from '@jupyterlab/notebook';
+import { ISettingRegistry } from '@jupyterlab/settingregistry';
+import { ITranslator, nullTranslator } from '@jupyterlab/translation';
+import { Signal } from '@lumino/signaling';
+import { SourcesModel, type INotebookTarget } from './model/sources';
+import { PerpendSidebar } from './panel/sidebar';
+import { perpendIcon } from './panel/icons';
+import { DEFAULT_SETTINGS, IPerpend, type IPerpendSettings } from './tokens';
+
+namespace CommandIDs {
+  export const open = 'perpend:open';
+  export const refresh = 'perpend:refresh-arrays';
+}
+
+const PLUGIN_ID = 'perpend:plugin';
+
+/** Perpend's main plugin: wires the sources model to the notebook tracker and the side panel. */
+const plugin: JupyterFrontEndPlugin<IPerpend> = {
+  id: PLUGIN_ID,
+  description: 'QR-based subspace tools and adaptive filters on notebook arrays.',
+  autoStart: true,
+  requires: [INotebookTracker],
+  optional: [ICommandPalette, ISettingRegistry, ILayoutRestorer, ITranslator],
+  provides: IPerpend,
+  activate: (
+    app: JupyterFrontEnd,
+    tracker: INotebookTracker,
+    palette: ICommandPalette | null,
+    settingRegistry: ISettingRegistry | null,
+    restorer: ILayoutRestorer | null,
+    translator: ITranslator | null
+  ): IPerpend => {
+    const trans = (translator ?? nullTranslator).load('perpend');
+    const sources = new SourcesModel();
+    const sidebar = new PerpendSidebar({ sources, trans });
+    const settingsChanged = new Signal<IPerpend, IPerpendSettings>({} as IPerpend);
+    let settings: IPerpendSettings = { ...DEFAULT_SETTINGS };
+    const perpend: IPerpend = { sources, settingsChanged };
+
+    app.shell.add(sidebar, 'right', { rank: 650 });
+    restorer?.add(sidebar, sidebar.id);
+
+    app.commands.addCommand(CommandIDs.open, {
+      label: trans.__('Open Perpend Panel'),
+      caption: trans.__('Show the Perpend panel in the right sidebar'),
+      icon: perpendIcon,
+      execute: () => {
+        app.shell.activateById(sidebar.id);
+      }
+    });
+    app.commands.addCommand(CommandIDs.refresh, {
+      label: trans.__('Perpend: List Notebook Arrays Again'),
+      execute: () => sources.refresh()
+    });
+    palette?.addItem({ command: CommandIDs.open, category: 'Perpend' });
+    palette?.addItem({ command: CommandIDs.refresh, category: 'Perpend' });
+
+    const targets = new WeakMap<NotebookPanel, INotebookTarget>();
+    const targetOf = (panel: NotebookPanel | null): INotebookTarget | null => {
+      if (!panel) {
+        return null;
+      }
+      let target = targets.get(panel);
+      if (!target) {
+        target = Private.notebookTarget(panel);
+        targets.set(panel, target);
+        panel.sessionContext.kernelChanged.connect(() => {
+          if (tracker.currentWidget === panel) {
+            void sources.refresh();
+          }
+        });
+      }
+      return target;
+    };
+    const follow = (): void => {
+      const panel = tracker.currentWidget;
+      if (!panel) {
+        sources.setTarget(null);
+        return;
+      }
+      void panel.sessionContext.ready.then(() => {
+        if (tracker.currentWidget === panel) {
+          sources.setTarget(targetOf(panel));
+          void sources.refresh();
+        }
+      });
+      sources.setTarget(targetOf(panel));
+    };
+    tracker.currentChanged.connect(follow);
+    follow();
+
+    NotebookActions.executed.connect((_, args) => {
+      if (settings.refreshAfterExecution && tracker.currentWidget?.content === args.notebook) {
+        void sources.refresh();
+      }
+    });
+
+    if (settingRegistry) {
+      const apply = (loaded: ISettingRegistry.ISettings): void => {
+        settings = { ...DEFAULT_SETTINGS, ...(loaded.composite as Partial<IPerpendSettings>) };
+        sources.setBridgeOptions({
+          timeoutMs: settings.requestTimeoutSeconds * 1000,
+          maxBytes: settings.maxArrayMiB * 1024 * 1024
+        });
+        settingsChanged.emit(settings);
+      };
+      settingRegistry
+        .load(PLUGIN_ID)
+        .then(loaded => {
+          apply(loaded);
+          loaded.changed.connect(apply);
+        })
+        .catch(reason => console.error('Perpend: could not load the settings', reason));
+    }
+    return perpend;
+  }
+};
+
+namespace Private {
+  /** Adapts a NotebookPanel to what the sources model needs. */
+  export function notebookTarget(panel: NotebookPanel): INotebookTarget {
+    return {
+      get name() {
+        return panel.context.path;
+      },
+      cells() {
+        const refs: SourcesModel.ICellRef[] = [];
+        for (const cell of panel.content.widgets) {
+          if (cell.model.type === 'code') {
+            const count = (cell.model as unknown as { executionCount: number | null })
+              .executionCount;
+            refs.push({ cellId: cell.model.id, executionCount: count ?? null });
+          }
+        }
+        return refs;
+      },
+      get kernel() {
+        return panel.sessionContext.session?.kernel ?? null;
+      }
+    };
+  }
+}
+
+export default plugin;

@@ -1,0 +1,21 @@
+/** Small display formatters shared by the panel's views (pure functions, no DOM). */
+
+/** "48000", "4 × 48000", "scalar" for []. */
+export function formatShape(shape: ReadonlyArray<number>): string {
+  return shape.length === 0 ? 'scalar' : shape.join(' × ');
+}
+
+/** Bytes in binary units, three significant digits: "768 B", "375 KiB", "1.50 MiB". */
+export function formatBytes(bytes: number): string {
+  const units = ['B', 'KiB', 'MiB', 'GiB', 'TiB'];
+  let value = bytes;
+  let unit = 0;
+  while (value >= 1024 && unit < units.length - 1) {
+    value /= 1024;
+    unit++;
+  }
+  if (unit === 0) {
+    return `${bytes} B`;
+  }
+  return `${value >= 100 ? value.toFixed(0) : value >= 10 ? value.toFixed(1) : value.toFixed(2)} ${units[unit]}`;
+}

@@ -1,0 +1,178 @@
+import { Widget } from '@lumino/widgets';
+import type { Message } from '@lumino/messaging';
+import { refreshIcon } from '@jupyterlab/ui-components';
+import type { TranslationBundle } from '@jupyterlab/translation';
+import type { ArrayInfo } from '../bridge';
+import type { SourcesModel } from '../model/sources';
+import { formatBytes, formatShape } from './format';
+
+/**
+ * The list of arrays the active notebook offers: executed cells' array results and kernel
+ * variables. Renders its model only; repaints in onUpdateRequest (bursts conflate) and does no
+ * work while hidden.
+ */
+export class SourcesView extends Widget {
+  constructor(options: SourcesView.IOptions) {
+    super();
+    this._trans = options.trans;
+    this.addClass('pp-SourcesView');
+    const header = document.createElement('div');
+    header.className = 'pp-SourcesView-header';
+    this._title = document.createElement('span');
+    this._title.className = 'pp-SourcesView-notebook';
+    const refresh = document.createElement('button');
+    refresh.className = 'pp-Button pp-SourcesView-refresh jp-Button';
+    refresh.title = this._trans.__('List the arrays again');
+    refresh.setAttribute('aria-label', refresh.title);
+    refreshIcon.element({ container: refresh, tag: 'span' });
+    refresh.addEventListener('click', () => {
+      void this._model?.refresh();
+    });
+    header.append(this._title, refresh);
+    this._status = document.createElement('div');
+    this._status.className = 'pp-SourcesView-status';
+    this._status.setAttribute('role', 'status');
+    this._body = document.createElement('div');
+    this._body.className = 'pp-SourcesView-body';
+    this.node.append(header, this._status, this._body);
+    this.model = options.model;
+  }
+
+  get model(): SourcesModel | null {
+    return this._model;
+  }
+  set model(model: SourcesModel | null) {
+    if (model === this._model) {
+      return;
+    }
+    this._model?.changed.disconnect(this._onModelChanged, this);
+    this._model = model;
+    model?.changed.connect(this._onModelChanged, this);
+    this.update();
+  }
+
+  protected onAfterShow(_msg: Message): void {
+    if (this._stale) {
+      this.update();
+    }
+  }
+
+  protected onUpdateRequest(_msg: Message): void {
+    if (!this.isVisible) {
+      this._stale = true;
+      return;
+    }
+    this._stale = false;
+    const model = this._model;
+    const trans = this._trans;
+    this._title.textContent = model?.target?.name ?? trans.__('No notebook');
+    this._status.textContent = model?.message ?? '';
+    this._status.dataset.status = model?.status ?? 'none';
+    this._body.replaceChildren();
+    if (!model?.target) {
+      this._body.append(Private.hint(trans.__('Open a notebook to list its arrays.')));
+      return;
+    }
+    this._body.append(
+      Private.section(
+        trans.__('Cell results'),
+        'cells',
+        model.cellResults,
+        trans.__('No executed cell has returned an array yet.'),
+        trans
+      ),
+      Private.section(
+        trans.__('Kernel variables'),
+        'variables',
+        model.variables,
+        trans.__('No array variables in the kernel.'),
+        trans
+      )
+    );
+  }
+
+  dispose(): void {
+    this.model = null;
+    super.dispose();
+  }
+
+  private _onModelChanged(): void {
+    this.update();
+  }
+
+  private _model: SourcesModel | null = null;
+  private _stale = false;
+  private readonly _trans: TranslationBundle;
+  private readonly _title: HTMLSpanElement;
+  private readonly _status: HTMLDivElement;
+  private readonly _body: HTMLDivElement;
+}
+
+export namespace SourcesView {
+  export interface IOptions {
+    model: SourcesModel | null;
+    trans: TranslationBundle;
+  }
+}
+
+namespace Private {
+  export function hint(text: string): HTMLElement {
+    const p = document.createElement('p');
+    p.className = 'pp-SourcesView-hint';
+    p.textContent = text;
+    return p;
+  }
+
+  export function section(
+    title: string,
+    kind: string,
+    infos: ReadonlyArray<ArrayInfo>,
+    empty: string,
+    trans: TranslationBundle
+  ): HTMLElement {
+    const section = document.createElement('section');
+    section.className = 'pp-SourcesView-section';
+    section.dataset.kind = kind;
+    const h = document.createElement('h3');
+    h.textContent = `${title} (${infos.length})`;
+    section.append(h);
+    if (infos.length === 0) {
+      section.append(hint(empty));
+      return section;
+    }
+    const table = document.createElement('table');
+    table.className = 'pp-ArrayTable';
+    const head = table.createTHead().insertRow();
+    for (const label of [
+      trans.__('Source'),
+      trans.__('Shape'),
+      trans.__('dtype'),
+      trans.__('Size')
+    ]) {
+      const th = document.createElement('th');
+      th.textContent = label;
+      head.append(th);
+    }
+    const body = table.createTBody();
+    for (const info of infos) {
+      const row = body.insertRow();
+      row.className = 'pp-ArrayTable-row';
+      row.dataset.label = info.label;
+      row.title = info.notes.join('\n');
+      const cells = [info.label, formatShape(info.shape), info.dtype, formatBytes(info.bytes)];
+      const classes = [
+        'pp-ArrayTable-label',
+        'pp-ArrayTable-shape',
+        'pp-ArrayTable-dtype',
+        'pp-ArrayTable-size'
+      ];
+      cells.forEach((text, i) => {
+        const td = row.insertCell();
+        td.className = classes[i];
+        td.textContent = text;
+      });
+    }
+    section.append(table);
+    return section;
+  }
+}

@@ -1,0 +1,27 @@
+import { Token } from '@lumino/coreutils';
+import type { ISignal } from '@lumino/signaling';
+import type { SourcesModel } from './model/sources';
+
+/** Settings read by Perpend (schema/plugin.json). */
+export interface IPerpendSettings {
+  requestTimeoutSeconds: number;
+  maxArrayMiB: number;
+  refreshAfterExecution: boolean;
+}
+
+/** Defaults, identical to schema/plugin.json. */
+export const DEFAULT_SETTINGS: IPerpendSettings = {
+  requestTimeoutSeconds: 60,
+  maxArrayMiB: 512,
+  refreshAfterExecution: true
+};
+
+/** The running Perpend instance, for other extensions. */
+export interface IPerpend {
+  /** The array sources of the active notebook. */
+  readonly sources: SourcesModel;
+  /** Emitted when the settings change. */
+  readonly settingsChanged: ISignal<IPerpend, IPerpendSettings>;
+}
+
+export const IPerpend = new Token<IPerpend>('perpend:IPerpend', 'The Perpend workbench.');
