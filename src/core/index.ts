@@ -3,3 +3,5 @@
  * Runs in Node, the browser and a Web Worker. Each area keeps its own index file.
  */
 export * from './errors';
+export * from './dense';
+export * from './linalg';

@@ -1,0 +1,201 @@
+/**
+ * Test helpers: a seeded generator (xoshiro128**, Blackman & Vigna, "Scrambled linear
+ * pseudorandom number generators", ACM TOMS 47, 2021) with Gaussian deviates by the Box–Muller
+ * transform, plain reference products, and the LAPACK Working Note 41 ratio tests.
+ */
+import { Dense } from '../../../src/core/dense';
+
+export class Rng {
+  private s0: number;
+  private s1: number;
+  private s2: number;
+  private s3: number;
+  private spare: number | null = null;
+  constructor(seed: number) {
+    // splitmix32 to spread the seed over the state.
+    let x = seed >>> 0;
+    const next = () => {
+      x = (x + 0x9e3779b9) >>> 0;
+      let z = x;
+      z = Math.imul(z ^ (z >>> 16), 0x85ebca6b) >>> 0;
+      z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35) >>> 0;
+      return (z ^ (z >>> 16)) >>> 0;
+    };
+    this.s0 = next();
+    this.s1 = next();
+    this.s2 = next();
+    this.s3 = next();
+  }
+  u32(): number {
+    const result = Math.imul(rotl(Math.imul(this.s1, 5), 7), 9) >>> 0;
+    const t = this.s1 << 9;
+    this.s2 ^= this.s0;
+    this.s3 ^= this.s1;
+    this.s1 ^= this.s2;
+    this.s0 ^= this.s3;
+    this.s2 ^= t;
+    this.s3 = rotl(this.s3, 11);
+    return result;
+  }
+  /** Uniform in [0, 1) with 53 random bits. */
+  uniform(): number {
+    const hi = this.u32() >>> 5;
+    const lo = this.u32() >>> 6;
+    return (hi * 67108864 + lo) / 9007199254740992;
+  }
+  /** Integer in [lo, hi]. */
+  int(lo: number, hi: number): number {
+    return lo + Math.floor(this.uniform() * (hi - lo + 1));
+  }
+  normal(): number {
+    if (this.spare !== null) {
+      const s = this.spare;
+      this.spare = null;
+      return s;
+    }
+    let u = 0;
+    while (u === 0) {
+      u = this.uniform();
+    }
+    const v = this.uniform();
+    const r = Math.sqrt(-2 * Math.log(u));
+    this.spare = r * Math.sin(2 * Math.PI * v);
+    return r * Math.cos(2 * Math.PI * v);
+  }
+}
+
+function rotl(x: number, k: number): number {
+  return ((x << k) | (x >>> (32 - k))) >>> 0;
+}
+
+/** Unit roundoff u = 2^-53 (LAWN 41; Number.EPSILON is 2u). */
+export const U = Math.pow(2, -53);
+
+/** m×n Gaussian matrix, Fortran order unless told. */
+export function randn(rng: Rng, m: number, n: number, complex = false, order: 'C' | 'F' = 'F') {
+  const a = Dense.zeros([m, n], { complex, order });
+  for (let j = 0; j < n; j++) {
+    for (let i = 0; i < m; i++) {
+      a.set(i, j, rng.normal(), complex ? rng.normal() : 0);
+    }
+  }
+  return a;
+}
+
+/** C = A·B (plain triple loop, complex-aware), both 2-D. */
+export function matmul(a: Dense, b: Dense, conjA = false): Dense {
+  // conjA: use Aᴴ instead of A.
+  const m = conjA ? a.cols : a.rows;
+  const k = conjA ? a.rows : a.cols;
+  if (k !== b.rows) {
+    throw new Error(`matmul: inner sizes ${k} and ${b.rows}`);
+  }
+  const n = b.cols;
+  const complex = a.complex || b.complex;
+  const c = Dense.zeros([m, n], { complex, order: 'F' });
+  for (let i = 0; i < m; i++) {
+    for (let j = 0; j < n; j++) {
+      let re = 0;
+      let im = 0;
+      for (let p = 0; p < k; p++) {
+        const ar = conjA ? a.get(p, i) : a.get(i, p);
+        const ai = conjA ? -a.getIm(p, i) : a.getIm(i, p);
+        const br = b.get(p, j);
+        const bi = b.getIm(p, j);
+        re += ar * br - ai * bi;
+        im += ar * bi + ai * br;
+      }
+      c.set(i, j, re, im);
+    }
+  }
+  return c;
+}
+
+/** ‖A‖₁: largest column sum of |a_ij|. */
+export function norm1(a: Dense): number {
+  let best = 0;
+  for (let j = 0; j < a.cols; j++) {
+    let s = 0;
+    for (let i = 0; i < a.rows; i++) {
+      s += Math.hypot(a.get(i, j), a.getIm(i, j));
+    }
+    best = Math.max(best, s);
+  }
+  return best;
+}
+
+/** Frobenius norm. */
+export function normF(a: Dense): number {
+  let s = 0;
+  for (let i = 0; i < a.rows; i++) {
+    for (let j = 0; j < a.cols; j++) {
+      s += a.get(i, j) ** 2 + a.getIm(i, j) ** 2;
+    }
+  }
+  return Math.sqrt(s);
+}
+
+/** A − B. */
+export function sub(a: Dense, b: Dense): Dense {
+  const c = Dense.zeros([a.rows, a.cols], { complex: a.complex || b.complex, order: 'F' });
+  for (let i = 0; i < a.rows; i++) {
+    for (let j = 0; j < a.cols; j++) {
+      c.set(i, j, a.get(i, j) - b.get(i, j), a.getIm(i, j) - b.getIm(i, j));
+    }
+  }
+  return c;
+}
+
+/** ‖I − QᴴQ‖₁ (Q m×k). */
+export function orthLoss1(q: Dense): number {
+  const g = matmul(q, q, true);
+  for (let i = 0; i < g.rows; i++) {
+    g.set(i, i, g.get(i, i) - 1, g.getIm(i, i));
+  }
+  return norm1(g);
+}
+
+/**
+ * LAPACK Working Note 41 (Anderson, Bai, Dongarra, "LAPACK Working Note 41: Installation guide",
+ * 1992, the xQRT01 test): factorisation ratio ‖A − QR‖₁ / (m·‖A‖₁·u).
+ */
+export function ratioFactor(a: Dense, qr: Dense): number {
+  const m = a.rows;
+  const na = norm1(a);
+  const r = norm1(sub(a, qr));
+  return na === 0 ? r / (m * U) : r / (Math.max(m, 1) * na * U);
+}
+
+/** LAWN 41 orthogonality ratio ‖I − QᴴQ‖₁ / (m·u). */
+export function ratioOrth(q: Dense): number {
+  return orthLoss1(q) / (Math.max(q.rows, 1) * U);
+}
+
+/** A matrix with prescribed singular values U·diag(s)·Vᴴ, U and V Haar-like from QR of Gaussians. */
+export function withSingularValues(
+  rng: Rng,
+  m: number,
+  n: number,
+  s: number[],
+  complex: boolean,
+  orthonormal: (a: Dense) => Dense
+): Dense {
+  const k = s.length;
+  const u = orthonormal(randn(rng, m, k, complex));
+  const v = orthonormal(randn(rng, n, k, complex));
+  for (let j = 0; j < k; j++) {
+    for (let i = 0; i < m; i++) {
+      u.set(i, j, u.get(i, j) * s[j], u.getIm(i, j) * s[j]);
+    }
+  }
+  // U diag(s) Vᴴ
+  const vh = v.conjTranspose();
+  return matmul(u, vh);
+}
+
+export function logspace(a: number, b: number, n: number): number[] {
+  if (n === 1) {
+    return [Math.pow(10, a)];
+  }
+  return Array.from({ length: n }, (_, i) => Math.pow(10, a + ((b - a) * i) / (n - 1)));
+}
