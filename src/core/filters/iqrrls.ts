@@ -1,0 +1,514 @@
+/**
+ * Inverse QR-RLS: propagates a square root S of P(n) = Φ(n)⁻¹ = S Sᴴ (S upper triangular) by
+ * Givens rotations of the pre-array (Haykin, Adaptive Filter Theory, 4th ed., ch. 13, the inverse
+ * QR-RLS algorithm; Alexander and Ghirnikar, IEEE Trans. Signal Processing 41(1), 1993):
+ *
+ *   [ 1    λ^−½ u(n)ᴴS(n−1) ]  Θ  =  [ γ^−½(n)          0ᵀ   ]
+ *   [ 0    λ^−½ S(n−1)      ]        [ g(n) γ^−½(n)     S(n) ]
+ *
+ * where the rotations act on columns (0, j+1), j = 0, …, M−1 (forward order keeps S upper
+ * triangular), g(n) = P(n)u(n) is the gain, γ(n) the conversion factor. Every sample then sets
+ * w(n) = w(n−1) + g(n) e*(n), so the weights are always at hand.
+ *
+ * Storage: Sᵀ row-major (row j holds column j of S, entries 0…j), so both the inner product
+ * b_j = λ^−½ Σ_{i≤j} ū_i S_ij and the rotation of column j run over contiguous memory.
+ * Per sample (real): 4M² + O(M) flops, M square roots and M divisions.
+ */
+import { AdaptiveFilter, HEALTH_ALPHA } from './base';
+import type { FilterOptions, Real } from './types';
+
+export class InverseQrRlsFilter extends AdaptiveFilter {
+  /** Sᵀ, lower triangle, row-major (interleaved complex, or always interleaved in float32). */
+  protected T!: Real;
+  protected w!: Real;
+  /** Work column: g γ^−½ accumulates here. */
+  protected v!: Real;
+
+  constructor(options: FilterOptions) {
+    super({ ...options, algorithm: 'inverse-qr-rls' });
+    this.reset();
+  }
+
+  private get il(): boolean {
+    return this.complex || this.f32;
+  }
+
+  protected init(): void {
+    const M = this.M;
+    const w = this.il ? 2 : 1;
+    const mk = (l: number) => (this.f32 ? new Float32Array(l) : new Float64Array(l));
+    this.T = mk(w * M * M);
+    this.w = mk(w * M);
+    this.v = mk(w * M);
+    const s = this.f32
+      ? Math.fround(1 / Math.fround(Math.sqrt(Math.fround(this.options.delta))))
+      : 1 / Math.sqrt(this.options.delta);
+    for (let j = 0; j < M; j++) {
+      this.T[w * (j * M + j)] = s;
+    }
+  }
+
+  /** A copy of P(n) = S Sᴴ, row-major M×M (interleaved when complex), formed in double. */
+  inverseCorrelation(): Float64Array {
+    const M = this.M;
+    const cx = this.complex;
+    const W = this.il ? 2 : 1;
+    const T = this.T;
+    const P = new Float64Array((cx ? 2 : 1) * M * M);
+    // P_ik = Σ_j S_ij conj(S_kj), S_ij = T[j][i], nonzero for i ≤ j.
+    for (let i = 0; i < M; i++) {
+      for (let k = 0; k < M; k++) {
+        let sr = 0;
+        let si = 0;
+        for (let j = Math.max(i, k); j < M; j++) {
+          const ar = T[W * (j * M + i)];
+          const ai = W === 2 ? T[W * (j * M + i) + 1] : 0;
+          const br = T[W * (j * M + k)];
+          const bi = W === 2 ? T[W * (j * M + k) + 1] : 0;
+          sr += ar * br + ai * bi;
+          si += ai * br - ar * bi;
+        }
+        if (cx) {
+          P[2 * (i * M + k)] = sr;
+          P[2 * (i * M + k) + 1] = si;
+        } else {
+          P[i * M + k] = sr;
+        }
+      }
+    }
+    return P;
+  }
+
+  protected writeWeights(out: Float64Array, o: number): void {
+    const w = this.w;
+    if (this.complex || !this.il) {
+      for (let k = 0; k < w.length; k++) {
+        out[o + k] = w[k];
+      }
+    } else {
+      for (let k = 0; k < this.M; k++) {
+        out[o + k] = w[2 * k];
+      }
+    }
+  }
+
+  protected kernel(
+    x: Real,
+    d: Real,
+    n: number,
+    y: Real,
+    e: Real,
+    ep: Real,
+    g: Real,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    if (this.f32) {
+      this.kernel32(
+        x as Float32Array,
+        d as Float32Array,
+        n,
+        y as Float32Array,
+        e as Float32Array,
+        ep as Float32Array,
+        g as Float32Array,
+        traj,
+        tIdx
+      );
+    } else if (this.complex) {
+      this.kernelC(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
+        traj,
+        tIdx
+      );
+    } else {
+      this.kernelR(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
+        traj,
+        tIdx
+      );
+    }
+  }
+
+  private kernelR(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const M = this.M;
+    const T = this.T as Float64Array;
+    const w = this.w as Float64Array;
+    const v = this.v as Float64Array;
+    const ub = this.ub as Float64Array;
+    const isl = 1 / Math.sqrt(this.options.lambda);
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    for (let i = 0; i < n; i++) {
+      let uo = 0;
+      if (tv) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        const xv = x[i];
+        ub[pos] = xv;
+        ub[pos + M] = xv;
+        uo = pos;
+      } else {
+        const b = i * M;
+        for (let k = 0; k < M; k++) {
+          ub[k] = x[b + k];
+        }
+      }
+      let yv = 0;
+      for (let k = 0; k < M; k++) {
+        yv += w[k] * ub[uo + k];
+        v[k] = 0;
+      }
+      const dv = d[i];
+      const ev = dv - yv;
+      let eta = 1;
+      for (let j = 0; j < M; j++) {
+        const b0 = j * M;
+        let a = 0;
+        for (let k = 0; k <= j; k++) {
+          a += T[b0 + k] * ub[uo + k];
+        }
+        a *= isl;
+        const etaN = Math.sqrt(eta * eta + a * a);
+        const inv = 1 / etaN;
+        const c = eta * inv;
+        const s = a * inv;
+        const cs = c * isl;
+        const ss = s * isl;
+        for (let k = 0; k <= j; k++) {
+          const vk = v[k];
+          const tk = T[b0 + k];
+          v[k] = c * vk + ss * tk;
+          T[b0 + k] = cs * tk - s * vk;
+        }
+        eta = etaN;
+      }
+      const ginv = ev / eta;
+      for (let k = 0; k < M; k++) {
+        w[k] += v[k] * ginv;
+      }
+      const gam = 1 / (eta * eta);
+      y[i] = yv;
+      e[i] = ev;
+      g[i] = gam;
+      ep[i] = gam * ev;
+      const ee = ev * ev;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dv * dv - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * M);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+
+  private kernelC(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const M = this.M;
+    const M2 = 2 * M;
+    const T = this.T as Float64Array;
+    const w = this.w as Float64Array;
+    const v = this.v as Float64Array;
+    const ub = this.ub as Float64Array;
+    const isl = 1 / Math.sqrt(this.options.lambda);
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    for (let i = 0; i < n; i++) {
+      let uo = 0;
+      if (tv) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        const xr = x[2 * i];
+        const xi = x[2 * i + 1];
+        ub[2 * pos] = xr;
+        ub[2 * pos + 1] = xi;
+        ub[2 * pos + M2] = xr;
+        ub[2 * pos + M2 + 1] = xi;
+        uo = 2 * pos;
+      } else {
+        const b = i * M2;
+        for (let k = 0; k < M2; k++) {
+          ub[k] = x[b + k];
+        }
+      }
+      // y = wᴴu
+      let yr = 0;
+      let yi = 0;
+      for (let k = 0; k < M2; k += 2) {
+        const wr = w[k];
+        const wi = w[k + 1];
+        const ur = ub[uo + k];
+        const ui = ub[uo + k + 1];
+        yr += wr * ur + wi * ui;
+        yi += wr * ui - wi * ur;
+        v[k] = 0;
+        v[k + 1] = 0;
+      }
+      const dvr = d[2 * i];
+      const dvi = d[2 * i + 1];
+      const er = dvr - yr;
+      const ei = dvi - yi;
+      let eta = 1;
+      for (let j = 0; j < M; j++) {
+        const b0 = 2 * j * M;
+        // b_j = λ^−½ Σ ū_k S_kj
+        let ar = 0;
+        let ai = 0;
+        for (let k = 0; k <= 2 * j; k += 2) {
+          const tr = T[b0 + k];
+          const ti = T[b0 + k + 1];
+          const ur = ub[uo + k];
+          const ui = ub[uo + k + 1];
+          ar += ur * tr + ui * ti;
+          ai += ur * ti - ui * tr;
+        }
+        ar *= isl;
+        ai *= isl;
+        const etaN = Math.sqrt(eta * eta + ar * ar + ai * ai);
+        const inv = 1 / etaN;
+        const c = eta * inv;
+        const sr = ar * inv;
+        const si = ai * inv;
+        const cs = c * isl;
+        const ssr = sr * isl;
+        const ssi = si * isl;
+        for (let k = 0; k <= 2 * j; k += 2) {
+          const vr = v[k];
+          const vi = v[k + 1];
+          const tr = T[b0 + k];
+          const ti = T[b0 + k + 1];
+          // v ← c v + s̄ λ^−½ S ;  S ← c λ^−½ S − s v
+          v[k] = c * vr + (ssr * tr + ssi * ti);
+          v[k + 1] = c * vi + (ssr * ti - ssi * tr);
+          T[b0 + k] = cs * tr - (sr * vr - si * vi);
+          T[b0 + k + 1] = cs * ti - (sr * vi + si * vr);
+        }
+        eta = etaN;
+      }
+      // w += g e*, g = v / η
+      const qr = er / eta;
+      const qi = -ei / eta;
+      for (let k = 0; k < M2; k += 2) {
+        const vr = v[k];
+        const vi = v[k + 1];
+        w[k] += vr * qr - vi * qi;
+        w[k + 1] += vr * qi + vi * qr;
+      }
+      const gam = 1 / (eta * eta);
+      y[2 * i] = yr;
+      y[2 * i + 1] = yi;
+      e[2 * i] = er;
+      e[2 * i + 1] = ei;
+      g[i] = gam;
+      ep[2 * i] = gam * er;
+      ep[2 * i + 1] = gam * ei;
+      const ee = er * er + ei * ei;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dvr * dvr + dvi * dvi - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * M2);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+
+  /** Float32 emulation (see QrRlsFilter.kernel32 for the conventions). */
+  private kernel32(
+    x: Float32Array,
+    d: Float32Array,
+    n: number,
+    y: Float32Array,
+    e: Float32Array,
+    ep: Float32Array,
+    g: Float32Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const f = Math.fround;
+    const M = this.M;
+    const M2 = 2 * M;
+    const cx = this.complex;
+    const W = cx ? 2 : 1;
+    const T = this.T as Float32Array;
+    const w = this.w as Float32Array;
+    const v = this.v as Float32Array;
+    const ub = this.ub as Float32Array;
+    const isl = f(1 / f(Math.sqrt(f(this.options.lambda))));
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    const L = cx ? M2 : M;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    for (let i = 0; i < n; i++) {
+      let uo = 0;
+      if (tv) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        for (let q = 0; q < W; q++) {
+          const xv = x[W * i + q];
+          ub[W * pos + q] = xv;
+          ub[W * (pos + M) + q] = xv;
+        }
+        uo = W * pos;
+      } else {
+        const b = i * M * W;
+        for (let k = 0; k < M * W; k++) {
+          ub[k] = x[b + k];
+        }
+      }
+      let yr = 0;
+      let yi = 0;
+      for (let k = 0; k < M; k++) {
+        const wr = w[2 * k];
+        const wi = w[2 * k + 1];
+        const ur = ub[uo + W * k];
+        const ui = cx ? ub[uo + 2 * k + 1] : 0;
+        yr = f(yr + f(f(wr * ur) + f(wi * ui)));
+        yi = f(yi + f(f(wr * ui) - f(wi * ur)));
+        v[2 * k] = 0;
+        v[2 * k + 1] = 0;
+      }
+      const dvr = d[W * i];
+      const dvi = cx ? d[2 * i + 1] : 0;
+      const er = f(dvr - yr);
+      const ei = f(dvi - yi);
+      let eta = 1;
+      for (let j = 0; j < M; j++) {
+        const b0 = 2 * j * M;
+        let ar = 0;
+        let ai = 0;
+        for (let k = 0; k <= j; k++) {
+          const tr = T[b0 + 2 * k];
+          const ti = T[b0 + 2 * k + 1];
+          const ur = ub[uo + W * k];
+          const ui = cx ? ub[uo + 2 * k + 1] : 0;
+          ar = f(ar + f(f(ur * tr) + f(ui * ti)));
+          ai = f(ai + f(f(ur * ti) - f(ui * tr)));
+        }
+        ar = f(ar * isl);
+        ai = f(ai * isl);
+        const etaN = f(Math.sqrt(f(f(eta * eta) + f(f(ar * ar) + f(ai * ai)))));
+        const inv = f(1 / etaN);
+        const c = f(eta * inv);
+        const sr = f(ar * inv);
+        const si = f(ai * inv);
+        const cs = f(c * isl);
+        const ssr = f(sr * isl);
+        const ssi = f(si * isl);
+        for (let k = 0; k <= 2 * j; k += 2) {
+          const vr = v[k];
+          const vi = v[k + 1];
+          const tr = T[b0 + k];
+          const ti = T[b0 + k + 1];
+          v[k] = f(f(c * vr) + f(f(ssr * tr) + f(ssi * ti)));
+          v[k + 1] = f(f(c * vi) + f(f(ssr * ti) - f(ssi * tr)));
+          T[b0 + k] = f(f(cs * tr) - f(f(sr * vr) - f(si * vi)));
+          T[b0 + k + 1] = f(f(cs * ti) - f(f(sr * vi) + f(si * vr)));
+        }
+        eta = etaN;
+      }
+      const qr = f(er / eta);
+      const qi = f(-ei / eta);
+      for (let k = 0; k < M2; k += 2) {
+        const vr = v[k];
+        const vi = v[k + 1];
+        w[k] = f(w[k] + f(f(vr * qr) - f(vi * qi)));
+        w[k + 1] = f(w[k + 1] + f(f(vr * qi) + f(vi * qr)));
+      }
+      const gam = f(1 / f(eta * eta));
+      y[W * i] = yr;
+      e[W * i] = er;
+      ep[W * i] = f(gam * er);
+      if (cx) {
+        y[2 * i + 1] = yi;
+        e[2 * i + 1] = ei;
+        ep[2 * i + 1] = f(gam * ei);
+      }
+      g[i] = gam;
+      const ee = er * er + ei * ei;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dvr * dvr + dvi * dvi - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * L);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+}

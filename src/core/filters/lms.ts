@@ -1,0 +1,421 @@
+/**
+ * LMS (and the shared kernel of NLMS): w(n) = w(n−1) + μ(n)·u(n)·e*(n), e(n) = d(n) − w(n−1)ᴴu(n)
+ * (Haykin, Adaptive Filter Theory, 4th ed., ch. 5 and 6; Sayed, Fundamentals of Adaptive
+ * Filtering, 2003, ch. 5). LMS uses μ(n) = μ; NLMS uses μ(n) = μ/(ε + ‖u(n)‖²) (see nlms.ts).
+ * The conversion factor is γ(n) = 1 − μ(n)‖u(n)‖², so ε(n) = γ(n) e(n).
+ *
+ * LMS's stability depends on the data, so it is not a creation error: after each chunk the
+ * input power σ̂² (mean |x|² over everything seen) gives the mean-square bound for white input,
+ * 2/(σ̂²(M+2)) real and 2/(σ̂²(M+1)) complex (independence theory, Gaussian data; Haykin 4th ed.
+ * ch. 6; Sayed 2003 §23 (from memory)); μ above it raises a 'step-size' warning. For coloured
+ * input the true bound is lower; the warning is a guide, not a guarantee.
+ */
+import { AdaptiveFilter, HEALTH_ALPHA } from './base';
+import type { ChunkBuffers, FilterChunk, FilterOptions, Real } from './types';
+
+export class LmsFilter extends AdaptiveFilter {
+  protected w!: Real;
+  /** True for NLMS. */
+  protected normalised: boolean;
+  private powSum = 0;
+  private powCount = 0;
+
+  constructor(options: FilterOptions) {
+    const normalised = options.algorithm === 'nlms';
+    super({ ...options, algorithm: normalised ? 'nlms' : 'lms' });
+    this.normalised = normalised;
+    this.reset();
+  }
+
+  private get il(): boolean {
+    return this.complex || this.f32;
+  }
+
+  protected init(): void {
+    this.w = this.f32
+      ? new Float32Array(2 * this.M)
+      : new Float64Array((this.complex ? 2 : 1) * this.M);
+    this.powSum = 0;
+    this.powCount = 0;
+  }
+
+  /** Mean-square step-size bound for white input of the power seen so far (NaN before any input). */
+  stepBound(): number {
+    const s2 = this.powSum / this.powCount;
+    return 2 / (s2 * (this.M + (this.complex ? 1 : 2)));
+  }
+
+  override process(x: unknown, d: unknown, out?: ChunkBuffers): FilterChunk {
+    const res = super.process(x, d, out);
+    if (!this.normalised && res.length > 0) {
+      // Input power from the regressors actually used (the delay line or the rows).
+      const X = this.lastX;
+      if (X) {
+        let s = 0;
+        for (let k = 0; k < X.length; k++) {
+          s += X[k] * X[k];
+        }
+        this.powSum += s;
+        this.powCount += X.length / (this.complex ? 2 : 1);
+      }
+      const bound = this.stepBound();
+      if (this.options.mu > bound) {
+        const idx = this.t - 1;
+        this.flag(
+          'step-size',
+          idx,
+          `μ = ${this.options.mu} exceeds the mean-square bound ${bound.toPrecision(4)} estimated ` +
+            `from the input power ${(this.powSum / this.powCount).toPrecision(4)} (white-input ` +
+            `theory) at sample ${idx}; LMS may diverge`
+        );
+      }
+    }
+    return res;
+  }
+
+  private lastX: Real | null = null;
+
+  protected writeWeights(out: Float64Array, o: number): void {
+    const w = this.w;
+    if (this.complex || !this.il) {
+      for (let k = 0; k < w.length; k++) {
+        out[o + k] = w[k];
+      }
+    } else {
+      for (let k = 0; k < this.M; k++) {
+        out[o + k] = w[2 * k];
+      }
+    }
+  }
+
+  protected kernel(
+    x: Real,
+    d: Real,
+    n: number,
+    y: Real,
+    e: Real,
+    ep: Real,
+    g: Real,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    this.lastX = x;
+    if (this.f32) {
+      this.kernel32(
+        x as Float32Array,
+        d as Float32Array,
+        n,
+        y as Float32Array,
+        e as Float32Array,
+        ep as Float32Array,
+        g as Float32Array,
+        traj,
+        tIdx
+      );
+    } else if (this.complex) {
+      this.kernelC(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
+        traj,
+        tIdx
+      );
+    } else {
+      this.kernelR(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
+        traj,
+        tIdx
+      );
+    }
+  }
+
+  private kernelR(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const M = this.M;
+    const w = this.w as Float64Array;
+    const ub = this.ub as Float64Array;
+    const mu = this.options.mu;
+    const eps = this.options.epsilon;
+    const nrm = this.normalised;
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    for (let i = 0; i < n; i++) {
+      let uo = 0;
+      if (tv) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        const xv = x[i];
+        ub[pos] = xv;
+        ub[pos + M] = xv;
+        uo = pos;
+      } else {
+        const b = i * M;
+        for (let k = 0; k < M; k++) {
+          ub[k] = x[b + k];
+        }
+      }
+      let yv = 0;
+      let uu = 0;
+      for (let k = 0; k < M; k++) {
+        const u = ub[uo + k];
+        yv += w[k] * u;
+        uu += u * u;
+      }
+      const dv = d[i];
+      const ev = dv - yv;
+      const step = nrm ? mu / (eps + uu) : mu;
+      const se = step * ev;
+      for (let k = 0; k < M; k++) {
+        w[k] += se * ub[uo + k];
+      }
+      const gam = 1 - step * uu;
+      y[i] = yv;
+      e[i] = ev;
+      g[i] = gam;
+      ep[i] = gam * ev;
+      const ee = ev * ev;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dv * dv - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * M);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+
+  private kernelC(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const M = this.M;
+    const M2 = 2 * M;
+    const w = this.w as Float64Array;
+    const ub = this.ub as Float64Array;
+    const mu = this.options.mu;
+    const eps = this.options.epsilon;
+    const nrm = this.normalised;
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    for (let i = 0; i < n; i++) {
+      let uo = 0;
+      if (tv) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        const xr = x[2 * i];
+        const xi = x[2 * i + 1];
+        ub[2 * pos] = xr;
+        ub[2 * pos + 1] = xi;
+        ub[2 * pos + M2] = xr;
+        ub[2 * pos + M2 + 1] = xi;
+        uo = 2 * pos;
+      } else {
+        const b = i * M2;
+        for (let k = 0; k < M2; k++) {
+          ub[k] = x[b + k];
+        }
+      }
+      let yr = 0;
+      let yi = 0;
+      let uu = 0;
+      for (let k = 0; k < M2; k += 2) {
+        const wr = w[k];
+        const wi = w[k + 1];
+        const ur = ub[uo + k];
+        const ui = ub[uo + k + 1];
+        yr += wr * ur + wi * ui;
+        yi += wr * ui - wi * ur;
+        uu += ur * ur + ui * ui;
+      }
+      const dvr = d[2 * i];
+      const dvi = d[2 * i + 1];
+      const er = dvr - yr;
+      const ei = dvi - yi;
+      const step = nrm ? mu / (eps + uu) : mu;
+      // w += step u e*
+      const qr = step * er;
+      const qi = -step * ei;
+      for (let k = 0; k < M2; k += 2) {
+        const ur = ub[uo + k];
+        const ui = ub[uo + k + 1];
+        w[k] += ur * qr - ui * qi;
+        w[k + 1] += ur * qi + ui * qr;
+      }
+      const gam = 1 - step * uu;
+      y[2 * i] = yr;
+      y[2 * i + 1] = yi;
+      e[2 * i] = er;
+      e[2 * i + 1] = ei;
+      g[i] = gam;
+      ep[2 * i] = gam * er;
+      ep[2 * i + 1] = gam * ei;
+      const ee = er * er + ei * ei;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dvr * dvr + dvi * dvi - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * M2);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+
+  /** Float32 emulation (see QrRlsFilter.kernel32 for the conventions). */
+  private kernel32(
+    x: Float32Array,
+    d: Float32Array,
+    n: number,
+    y: Float32Array,
+    e: Float32Array,
+    ep: Float32Array,
+    g: Float32Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const f = Math.fround;
+    const M = this.M;
+    const M2 = 2 * M;
+    const cx = this.complex;
+    const W = cx ? 2 : 1;
+    const w = this.w as Float32Array;
+    const ub = this.ub as Float32Array;
+    const mu = f(this.options.mu);
+    const eps = f(this.options.epsilon);
+    const nrm = this.normalised;
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    const L = cx ? M2 : M;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    for (let i = 0; i < n; i++) {
+      let uo = 0;
+      if (tv) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        for (let q = 0; q < W; q++) {
+          const xv = x[W * i + q];
+          ub[W * pos + q] = xv;
+          ub[W * (pos + M) + q] = xv;
+        }
+        uo = W * pos;
+      } else {
+        const b = i * M * W;
+        for (let k = 0; k < M * W; k++) {
+          ub[k] = x[b + k];
+        }
+      }
+      let yr = 0;
+      let yi = 0;
+      let uu = 0;
+      for (let k = 0; k < M; k++) {
+        const wr = w[2 * k];
+        const wi = w[2 * k + 1];
+        const ur = ub[uo + W * k];
+        const ui = cx ? ub[uo + 2 * k + 1] : 0;
+        yr = f(yr + f(f(wr * ur) + f(wi * ui)));
+        yi = f(yi + f(f(wr * ui) - f(wi * ur)));
+        uu = f(uu + f(f(ur * ur) + f(ui * ui)));
+      }
+      const dvr = d[W * i];
+      const dvi = cx ? d[2 * i + 1] : 0;
+      const er = f(dvr - yr);
+      const ei = f(dvi - yi);
+      const step = nrm ? f(mu / f(eps + uu)) : mu;
+      const qr = f(step * er);
+      const qi = f(-step * ei);
+      for (let k = 0; k < M; k++) {
+        const ur = ub[uo + W * k];
+        const ui = cx ? ub[uo + 2 * k + 1] : 0;
+        w[2 * k] = f(w[2 * k] + f(f(ur * qr) - f(ui * qi)));
+        w[2 * k + 1] = f(w[2 * k + 1] + f(f(ur * qi) + f(ui * qr)));
+      }
+      const gam = f(1 - f(step * uu));
+      y[W * i] = yr;
+      e[W * i] = er;
+      ep[W * i] = f(gam * er);
+      if (cx) {
+        y[2 * i + 1] = yi;
+        e[2 * i + 1] = ei;
+        ep[2 * i + 1] = f(gam * ei);
+      }
+      g[i] = gam;
+      const ee = er * er + ei * ei;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dvr * dvr + dvi * dvi - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * L);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+}

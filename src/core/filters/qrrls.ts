@@ -1,0 +1,502 @@
+/**
+ * QR-RLS: exponentially weighted least squares through the square-root information factor.
+ *
+ * With Φ(n) = λΦ(n−1) + u(n)u(n)ᴴ = R(n)ᴴR(n) (R upper triangular, real positive diagonal) and
+ * p(n) = R(n)⁻ᴴz(n), z(n) = λz(n−1) + u(n)d*(n), one sample is the Givens annihilation
+ *
+ *     [ √λ R(n−1)   √λ p(n−1)   0 ]        [ R(n)   p(n)           * ]
+ *   Q [ u(n)ᴴ       d*(n)       1 ]   =    [ 0ᵀ     γ^½(n) e*(n)   γ^½(n) ]
+ *
+ * (Haykin, Adaptive Filter Theory, 4th ed., ch. 13 "Square-root adaptive filtering", QR-RLS
+ * table; Sayed, Fundamentals of Adaptive Filtering, 2003, ch. 12, §12.4 (from memory)). Row j of
+ * the rotated pair uses c = √λR_jj/ρ, s = b/ρ, ρ = √(λR_jj² + |b|²) on [R row j; last row]:
+ * R ← c·R + s̄·r, r ← −s·R + c·r, so γ^½(n) = Π c_j (the last column) and the a-priori error
+ * comes out of the rotated d* without any back substitution. The weights w(n) = R(n)⁻¹p(n) are
+ * formed by back substitution only when asked (`weights()`, trajectory rows).
+ *
+ * Per sample (real): 3M² + O(M) flops, M square roots and M divisions.
+ */
+import { AdaptiveFilter } from './base';
+import { HEALTH_ALPHA } from './base';
+import type { FilterOptions, Real } from './types';
+
+export class QrRlsFilter extends AdaptiveFilter {
+  /** R, upper triangle, row-major M×M (interleaved complex, or always interleaved in float32). */
+  protected R!: Real;
+  /** p = R⁻ᴴ z. */
+  protected p!: Real;
+  /** Work row (the annihilated u(n)ᴴ). */
+  protected r!: Real;
+
+  constructor(options: FilterOptions) {
+    super({ ...options, algorithm: 'qr-rls' });
+    this.reset();
+  }
+
+  /** Interleaved storage (complex, or the float32 emulation that serves real and complex). */
+  private get il(): boolean {
+    return this.complex || this.f32;
+  }
+
+  protected init(): void {
+    const M = this.M;
+    const w = this.il ? 2 : 1;
+    const mk = (l: number) => (this.f32 ? new Float32Array(l) : new Float64Array(l));
+    this.R = mk(w * M * M);
+    this.p = mk(w * M);
+    this.r = mk(w * M);
+    const sd = this.f32
+      ? Math.fround(Math.sqrt(this.options.delta))
+      : Math.sqrt(this.options.delta);
+    for (let j = 0; j < M; j++) {
+      this.R[w * (j * M + j)] = sd;
+    }
+  }
+
+  /** A copy of the upper-triangular factor R(n) as a row-major M×M Float64Array (interleaved when complex). */
+  factor(): Float64Array {
+    const M = this.M;
+    const out = new Float64Array((this.complex ? 2 : 1) * M * M);
+    const R = this.R;
+    for (let q = 0; q < M * M; q++) {
+      if (this.complex) {
+        out[2 * q] = R[2 * q];
+        out[2 * q + 1] = R[2 * q + 1];
+      } else {
+        out[q] = R[this.il ? 2 * q : q];
+      }
+    }
+    return out;
+  }
+
+  /** Back substitution R w = p (in double, whatever the precision of the state). */
+  protected writeWeights(out: Float64Array, o: number): void {
+    const M = this.M;
+    const R = this.R;
+    const p = this.p;
+    if (!this.il) {
+      for (let i = M - 1; i >= 0; i--) {
+        let s = p[i];
+        const b = i * M;
+        for (let k = i + 1; k < M; k++) {
+          s -= R[b + k] * out[o + k];
+        }
+        out[o + i] = s / R[b + i];
+      }
+      return;
+    }
+    // Interleaved: solve into out (complex layout), then compact for real float32.
+    const cx = this.complex;
+    for (let i = M - 1; i >= 0; i--) {
+      let sr = p[2 * i];
+      let si = p[2 * i + 1];
+      const b = i * M;
+      for (let k = i + 1; k < M; k++) {
+        const tr = R[2 * (b + k)];
+        const ti = R[2 * (b + k) + 1];
+        const wr = cx ? out[o + 2 * k] : out[o + k];
+        const wi = cx ? out[o + 2 * k + 1] : 0;
+        sr -= tr * wr - ti * wi;
+        si -= tr * wi + ti * wr;
+      }
+      const dg = R[2 * (b + i)];
+      if (cx) {
+        out[o + 2 * i] = sr / dg;
+        out[o + 2 * i + 1] = si / dg;
+      } else {
+        out[o + i] = sr / dg;
+      }
+    }
+  }
+
+  protected kernel(
+    x: Real,
+    d: Real,
+    n: number,
+    y: Real,
+    e: Real,
+    ep: Real,
+    g: Real,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    if (this.f32) {
+      this.kernel32(
+        x as Float32Array,
+        d as Float32Array,
+        n,
+        y as Float32Array,
+        e as Float32Array,
+        ep as Float32Array,
+        g as Float32Array,
+        traj,
+        tIdx
+      );
+    } else if (this.complex) {
+      this.kernelC(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
+        traj,
+        tIdx
+      );
+    } else {
+      this.kernelR(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
+        traj,
+        tIdx
+      );
+    }
+  }
+
+  private kernelR(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const M = this.M;
+    const R = this.R as Float64Array;
+    const p = this.p as Float64Array;
+    const r = this.r as Float64Array;
+    const ub = this.ub as Float64Array;
+    const sl = Math.sqrt(this.options.lambda);
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const L = M;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    for (let i = 0; i < n; i++) {
+      let uo = 0;
+      if (tv) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        const xv = x[i];
+        ub[pos] = xv;
+        ub[pos + M] = xv;
+        uo = pos;
+      } else {
+        const b = i * M;
+        for (let k = 0; k < M; k++) {
+          ub[k] = x[b + k];
+        }
+      }
+      for (let k = 0; k < M; k++) {
+        r[k] = ub[uo + k];
+      }
+      const dv = d[i];
+      let dr = dv;
+      let gs = 1;
+      for (let j = 0; j < M; j++) {
+        const jj = j * M + j;
+        const a = sl * R[jj];
+        const b = r[j];
+        const rho = Math.sqrt(a * a + b * b);
+        const inv = 1 / rho;
+        const c = a * inv;
+        const s = b * inv;
+        R[jj] = rho;
+        const cs = c * sl;
+        const ss = s * sl;
+        for (let k = j + 1, q = jj + 1; k < M; k++, q++) {
+          const tq = R[q];
+          const rk = r[k];
+          R[q] = cs * tq + s * rk;
+          r[k] = c * rk - ss * tq;
+        }
+        const pj = p[j];
+        p[j] = cs * pj + s * dr;
+        dr = c * dr - ss * pj;
+        gs *= c;
+      }
+      const ev = dr / gs;
+      const gam = gs * gs;
+      e[i] = ev;
+      y[i] = dv - ev;
+      g[i] = gam;
+      ep[i] = gam * ev;
+      const ee = ev * ev;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dv * dv - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * L);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+
+  private kernelC(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const M = this.M;
+    const M2 = 2 * M;
+    const R = this.R as Float64Array;
+    const p = this.p as Float64Array;
+    const r = this.r as Float64Array;
+    const ub = this.ub as Float64Array;
+    const sl = Math.sqrt(this.options.lambda);
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const L = M2;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    for (let i = 0; i < n; i++) {
+      let uo = 0;
+      if (tv) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        const xr = x[2 * i];
+        const xi = x[2 * i + 1];
+        ub[2 * pos] = xr;
+        ub[2 * pos + 1] = xi;
+        ub[2 * pos + M2] = xr;
+        ub[2 * pos + M2 + 1] = xi;
+        uo = 2 * pos;
+      } else {
+        const b = i * M2;
+        for (let k = 0; k < M2; k++) {
+          ub[k] = x[b + k];
+        }
+      }
+      // Last row of the pre-array: u(n)ᴴ.
+      for (let k = 0; k < M2; k += 2) {
+        r[k] = ub[uo + k];
+        r[k + 1] = -ub[uo + k + 1];
+      }
+      const dvr = d[2 * i];
+      const dvi = d[2 * i + 1];
+      let dr = dvr;
+      let di = -dvi;
+      let gs = 1;
+      for (let j = 0; j < M; j++) {
+        const jj = 2 * (j * M + j);
+        const a = sl * R[jj];
+        const br = r[2 * j];
+        const bi = r[2 * j + 1];
+        const rho = Math.sqrt(a * a + br * br + bi * bi);
+        const inv = 1 / rho;
+        const c = a * inv;
+        const sr = br * inv;
+        const si = bi * inv;
+        R[jj] = rho;
+        const cs = c * sl;
+        const ssr = sr * sl;
+        const ssi = si * sl;
+        for (let k = 2 * (j + 1), q = jj + 2; k < M2; k += 2, q += 2) {
+          const tr = R[q];
+          const ti = R[q + 1];
+          const rr = r[k];
+          const ri = r[k + 1];
+          R[q] = cs * tr + sr * rr + si * ri;
+          R[q + 1] = cs * ti + sr * ri - si * rr;
+          r[k] = c * rr - (ssr * tr - ssi * ti);
+          r[k + 1] = c * ri - (ssr * ti + ssi * tr);
+        }
+        const pr = p[2 * j];
+        const pi = p[2 * j + 1];
+        p[2 * j] = cs * pr + sr * dr + si * di;
+        p[2 * j + 1] = cs * pi + sr * di - si * dr;
+        const ndr = c * dr - (ssr * pr - ssi * pi);
+        di = c * di - (ssr * pi + ssi * pr);
+        dr = ndr;
+        gs *= c;
+      }
+      // The rotated d* is γ^½ e*.
+      const er = dr / gs;
+      const ei = -di / gs;
+      const gam = gs * gs;
+      e[2 * i] = er;
+      e[2 * i + 1] = ei;
+      y[2 * i] = dvr - er;
+      y[2 * i + 1] = dvi - ei;
+      g[i] = gam;
+      ep[2 * i] = gam * er;
+      ep[2 * i + 1] = gam * ei;
+      const ee = er * er + ei * ei;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dvr * dvr + dvi * dvi - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * L);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+
+  /**
+   * Float32 emulation, real and complex in one loop (state interleaved; for real data every
+   * imaginary part is an exact zero, so each complex operation rounds exactly like its real
+   * counterpart). Math.fround after every +, −, ×, ÷ and √; no fused multiply-add.
+   */
+  private kernel32(
+    x: Float32Array,
+    d: Float32Array,
+    n: number,
+    y: Float32Array,
+    e: Float32Array,
+    ep: Float32Array,
+    g: Float32Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const f = Math.fround;
+    const M = this.M;
+    const M2 = 2 * M;
+    const cx = this.complex;
+    const R = this.R as Float32Array;
+    const p = this.p as Float32Array;
+    const r = this.r as Float32Array;
+    const ub = this.ub as Float32Array;
+    const sl = f(Math.sqrt(f(this.options.lambda)));
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const L = cx ? M2 : M;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    const W = cx ? 2 : 1;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    for (let i = 0; i < n; i++) {
+      let uo = 0;
+      if (tv) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        for (let q = 0; q < W; q++) {
+          const xv = x[W * i + q];
+          ub[W * pos + q] = xv;
+          ub[W * (pos + M) + q] = xv;
+        }
+        uo = W * pos;
+      } else {
+        const b = i * M * W;
+        for (let k = 0; k < M * W; k++) {
+          ub[k] = x[b + k];
+        }
+      }
+      for (let k = 0; k < M; k++) {
+        r[2 * k] = ub[uo + W * k];
+        r[2 * k + 1] = cx ? -ub[uo + 2 * k + 1] : 0;
+      }
+      const dvr = d[W * i];
+      const dvi = cx ? d[2 * i + 1] : 0;
+      let dr = dvr;
+      let di = -dvi;
+      let gs = 1;
+      for (let j = 0; j < M; j++) {
+        const jj = 2 * (j * M + j);
+        const a = f(sl * R[jj]);
+        const br = r[2 * j];
+        const bi = r[2 * j + 1];
+        const rho = f(Math.sqrt(f(f(a * a) + f(f(br * br) + f(bi * bi)))));
+        const inv = f(1 / rho);
+        const c = f(a * inv);
+        const sr = f(br * inv);
+        const si = f(bi * inv);
+        R[jj] = rho;
+        const cs = f(c * sl);
+        const ssr = f(sr * sl);
+        const ssi = f(si * sl);
+        for (let k = 2 * (j + 1), q = jj + 2; k < M2; k += 2, q += 2) {
+          const tr = R[q];
+          const ti = R[q + 1];
+          const rr = r[k];
+          const ri = r[k + 1];
+          R[q] = f(f(f(cs * tr) + f(sr * rr)) + f(si * ri));
+          R[q + 1] = f(f(f(cs * ti) + f(sr * ri)) - f(si * rr));
+          r[k] = f(f(c * rr) - f(f(ssr * tr) - f(ssi * ti)));
+          r[k + 1] = f(f(c * ri) - f(f(ssr * ti) + f(ssi * tr)));
+        }
+        const pr = p[2 * j];
+        const pi = p[2 * j + 1];
+        p[2 * j] = f(f(f(cs * pr) + f(sr * dr)) + f(si * di));
+        p[2 * j + 1] = f(f(f(cs * pi) + f(sr * di)) - f(si * dr));
+        const ndr = f(f(c * dr) - f(f(ssr * pr) - f(ssi * pi)));
+        di = f(f(c * di) - f(f(ssr * pi) + f(ssi * pr)));
+        dr = ndr;
+        gs = f(gs * c);
+      }
+      const er = f(dr / gs);
+      const ei = f(-di / gs);
+      const gam = f(gs * gs);
+      e[W * i] = er;
+      y[W * i] = f(dvr - er);
+      ep[W * i] = f(gam * er);
+      if (cx) {
+        e[2 * i + 1] = ei;
+        y[2 * i + 1] = f(dvi - ei);
+        ep[2 * i + 1] = f(gam * ei);
+      }
+      g[i] = gam;
+      // The health monitor runs in double: it is not part of the emulated arithmetic.
+      const ee = er * er + ei * ei;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dvr * dvr + dvi * dvi - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * L);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+}

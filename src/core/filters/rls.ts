@@ -1,0 +1,725 @@
+/**
+ * Conventional exponentially weighted RLS: the Riccati update of P(n) = Φ(n)⁻¹ (Haykin, Adaptive
+ * Filter Theory, 4th ed., ch. 9, Table 9.1; Sayed, Fundamentals of Adaptive Filtering, 2003,
+ * ch. 11 (from memory)):
+ *
+ *   π = P(n−1)u,  α = λ + uᴴπ,  k = π/α,  e = d − w(n−1)ᴴu,  w(n) = w(n−1) + k e*,
+ *   P(n) = λ⁻¹ (P(n−1) − k πᴴ),  γ(n) = λ/α.
+ *
+ * Default variant (`rls`): only the upper triangle of P is stored and updated (the lower one is
+ * its conjugate), so P stays exactly Hermitian; π is formed from the upper triangle. Per sample
+ * (real): about 3.5M² flops.
+ *
+ * Legacy variant (`rls-legacy`, for reproducing old code only): the textbook form with the full
+ * matrix, P(n) = λ⁻¹(P(n−1) − k uᴴP(n−1)), where uᴴP is computed separately from Pu. Rounding
+ * makes P slightly non-Hermitian, and that defect grows like λ⁻ⁿ (Verhaegen, "Round-off error
+ * propagation in four generally-applicable, recursive, least-squares estimation schemes",
+ * Automatica 25(3), 1989): in float64 at λ = 0.999 it diverges within about 1e5 samples. The
+ * health monitor reports the relative asymmetry ‖(P − Pᴴ)u‖/‖Pu‖ (free: both products are
+ * formed anyway) and loss of positive definiteness, each with its sample index. For complex data
+ * the legacy form uses the real part of uᴴPu (its imaginary part is a Hermitian defect). About
+ * 7M² flops per sample.
+ */
+import { AdaptiveFilter, HEALTH_ALPHA } from './base';
+import type { FilterOptions, Real } from './types';
+
+export class RlsFilter extends AdaptiveFilter {
+  /** P, row-major M×M (interleaved complex, or always interleaved in float32). */
+  protected P!: Real;
+  protected w!: Real;
+  /** Work: π = Pu. */
+  protected pi!: Real;
+  /** Work: ψ = uᴴP (legacy only). */
+  protected psi!: Real;
+  readonly legacy: boolean;
+
+  constructor(options: FilterOptions & { legacy?: boolean }) {
+    const legacy = options.legacy ?? options.algorithm === 'rls-legacy';
+    super({ ...options, algorithm: legacy ? 'rls-legacy' : 'rls' });
+    this.legacy = legacy;
+    this.reset();
+  }
+
+  private get il(): boolean {
+    return this.complex || this.f32;
+  }
+
+  protected init(): void {
+    const M = this.M;
+    const w = this.il ? 2 : 1;
+    const mk = (l: number) => (this.f32 ? new Float32Array(l) : new Float64Array(l));
+    this.P = mk(w * M * M);
+    this.w = mk(w * M);
+    this.pi = mk(w * M);
+    this.psi = mk(w * M);
+    const s = this.f32 ? Math.fround(1 / Math.fround(this.options.delta)) : 1 / this.options.delta;
+    for (let j = 0; j < M; j++) {
+      this.P[w * (j * M + j)] = s;
+    }
+  }
+
+  /** A copy of P(n), row-major M×M (interleaved when complex); the default variant fills the lower triangle from the upper. */
+  inverseCorrelation(): Float64Array {
+    const M = this.M;
+    const cx = this.complex;
+    const W = this.il ? 2 : 1;
+    const P = this.P;
+    const out = new Float64Array((cx ? 2 : 1) * M * M);
+    for (let i = 0; i < M; i++) {
+      for (let j = 0; j < M; j++) {
+        const mirror = !this.legacy && j < i;
+        const q = mirror ? j * M + i : i * M + j;
+        const re = P[W * q];
+        const im = W === 2 ? P[W * q + 1] : 0;
+        if (cx) {
+          out[2 * (i * M + j)] = re;
+          out[2 * (i * M + j) + 1] = mirror ? -im : im;
+        } else {
+          out[i * M + j] = re;
+        }
+      }
+    }
+    return out;
+  }
+
+  protected writeWeights(out: Float64Array, o: number): void {
+    const w = this.w;
+    if (this.complex || !this.il) {
+      for (let k = 0; k < w.length; k++) {
+        out[o + k] = w[k];
+      }
+    } else {
+      for (let k = 0; k < this.M; k++) {
+        out[o + k] = w[2 * k];
+      }
+    }
+  }
+
+  /** Slow path: reports a loss of definiteness or symmetry at `index`. */
+  private report(q: number, diagBad: boolean, asym: number, index: number): void {
+    if (!(q >= 0) || diagBad) {
+      this.flag(
+        'indefinite',
+        index,
+        diagBad
+          ? `P lost positive definiteness (a diagonal entry ≤ 0) at sample ${index}`
+          : `P lost positive definiteness (uᴴPu = ${q.toExponential(3)}) at sample ${index}`
+      );
+    }
+    if (asym > this.options.asymmetryTolerance) {
+      this.flag(
+        'asymmetry',
+        index,
+        `P lost symmetry: ‖(P − Pᴴ)u‖/‖Pu‖ = ${asym.toExponential(3)} > ${this.options.asymmetryTolerance} at sample ${index}`
+      );
+    }
+  }
+
+  protected kernel(
+    x: Real,
+    d: Real,
+    n: number,
+    y: Real,
+    e: Real,
+    ep: Real,
+    g: Real,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    if (this.f32) {
+      this.kernel32(
+        x as Float32Array,
+        d as Float32Array,
+        n,
+        y as Float32Array,
+        e as Float32Array,
+        ep as Float32Array,
+        g as Float32Array,
+        traj,
+        tIdx
+      );
+    } else if (this.complex) {
+      this.kernelC(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
+        traj,
+        tIdx
+      );
+    } else {
+      this.kernelR(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
+        traj,
+        tIdx
+      );
+    }
+  }
+
+  private kernelR(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const M = this.M;
+    const P = this.P as Float64Array;
+    const w = this.w as Float64Array;
+    const pi = this.pi as Float64Array;
+    const psi = this.psi as Float64Array;
+    const ub = this.ub as Float64Array;
+    const lam = this.options.lambda;
+    const il = 1 / lam;
+    const legacy = this.legacy;
+    const tol = this.options.asymmetryTolerance;
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    for (let i = 0; i < n; i++) {
+      let uo = 0;
+      if (tv) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        const xv = x[i];
+        ub[pos] = xv;
+        ub[pos + M] = xv;
+        uo = pos;
+      } else {
+        const b = i * M;
+        for (let k = 0; k < M; k++) {
+          ub[k] = x[b + k];
+        }
+      }
+      let yv = 0;
+      for (let k = 0; k < M; k++) {
+        yv += w[k] * ub[uo + k];
+        pi[k] = 0;
+        psi[k] = 0;
+      }
+      let asym = 0;
+      if (!legacy) {
+        // π = P u from the upper triangle (symmetric matrix-vector product).
+        for (let r = 0; r < M; r++) {
+          const b = r * M;
+          const ur = ub[uo + r];
+          let acc = pi[r] + P[b + r] * ur;
+          for (let j = r + 1; j < M; j++) {
+            const prj = P[b + j];
+            acc += prj * ub[uo + j];
+            pi[j] += prj * ur;
+          }
+          pi[r] = acc;
+        }
+      } else {
+        // π = P u and ψ = uᵀP, separately, as the textbook code does.
+        for (let r = 0; r < M; r++) {
+          const b = r * M;
+          const ur = ub[uo + r];
+          let acc = 0;
+          for (let j = 0; j < M; j++) {
+            const prj = P[b + j];
+            acc += prj * ub[uo + j];
+            psi[j] += ur * prj;
+          }
+          pi[r] = acc;
+        }
+        let dn = 0;
+        let nn = 0;
+        for (let k = 0; k < M; k++) {
+          const t = pi[k] - psi[k];
+          dn += t * t;
+          nn += pi[k] * pi[k];
+        }
+        asym = Math.sqrt(dn / nn);
+      }
+      let q = 0;
+      for (let k = 0; k < M; k++) {
+        q += ub[uo + k] * pi[k];
+      }
+      const alpha = lam + q;
+      const ia = 1 / alpha;
+      const dv = d[i];
+      const ev = dv - yv;
+      const eka = ev * ia;
+      for (let k = 0; k < M; k++) {
+        w[k] += pi[k] * eka;
+      }
+      let diagBad = false;
+      if (!legacy) {
+        for (let r = 0; r < M; r++) {
+          const b = r * M;
+          const kr = pi[r] * ia;
+          for (let j = r; j < M; j++) {
+            P[b + j] = (P[b + j] - kr * pi[j]) * il;
+          }
+          if (!(P[b + r] > 0)) {
+            diagBad = true;
+          }
+        }
+      } else {
+        for (let r = 0; r < M; r++) {
+          const b = r * M;
+          const kr = pi[r] * ia;
+          for (let j = 0; j < M; j++) {
+            P[b + j] = (P[b + j] - kr * psi[j]) * il;
+          }
+          if (!(P[b + r] > 0)) {
+            diagBad = true;
+          }
+        }
+      }
+      if (!(q >= 0) || diagBad || asym > tol) {
+        this.report(q, diagBad, asym, t0 + i);
+      }
+      const gam = lam * ia;
+      y[i] = yv;
+      e[i] = ev;
+      g[i] = gam;
+      ep[i] = gam * ev;
+      const ee = ev * ev;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dv * dv - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * M);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+
+  private kernelC(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const M = this.M;
+    const M2 = 2 * M;
+    const P = this.P as Float64Array;
+    const w = this.w as Float64Array;
+    const pi = this.pi as Float64Array;
+    const psi = this.psi as Float64Array;
+    const ub = this.ub as Float64Array;
+    const lam = this.options.lambda;
+    const il = 1 / lam;
+    const legacy = this.legacy;
+    const tol = this.options.asymmetryTolerance;
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    for (let i = 0; i < n; i++) {
+      let uo = 0;
+      if (tv) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        const xr = x[2 * i];
+        const xi = x[2 * i + 1];
+        ub[2 * pos] = xr;
+        ub[2 * pos + 1] = xi;
+        ub[2 * pos + M2] = xr;
+        ub[2 * pos + M2 + 1] = xi;
+        uo = 2 * pos;
+      } else {
+        const b = i * M2;
+        for (let k = 0; k < M2; k++) {
+          ub[k] = x[b + k];
+        }
+      }
+      let yr = 0;
+      let yi = 0;
+      for (let k = 0; k < M2; k += 2) {
+        const wr = w[k];
+        const wi = w[k + 1];
+        const ur = ub[uo + k];
+        const ui = ub[uo + k + 1];
+        yr += wr * ur + wi * ui;
+        yi += wr * ui - wi * ur;
+        pi[k] = 0;
+        pi[k + 1] = 0;
+        psi[k] = 0;
+        psi[k + 1] = 0;
+      }
+      let asym = 0;
+      if (!legacy) {
+        // π = P u with P Hermitian, upper triangle stored (diagonal real).
+        for (let r = 0; r < M; r++) {
+          const b = 2 * r * M;
+          const ur = ub[uo + 2 * r];
+          const ui = ub[uo + 2 * r + 1];
+          const prr = P[b + 2 * r];
+          let ar = pi[2 * r] + prr * ur;
+          let ai = pi[2 * r + 1] + prr * ui;
+          for (let j = r + 1; j < M; j++) {
+            const pr = P[b + 2 * j];
+            const pim = P[b + 2 * j + 1];
+            const vr = ub[uo + 2 * j];
+            const vi = ub[uo + 2 * j + 1];
+            ar += pr * vr - pim * vi;
+            ai += pr * vi + pim * vr;
+            // lower entry conj(P_rj) times u_r
+            pi[2 * j] += pr * ur + pim * ui;
+            pi[2 * j + 1] += pr * ui - pim * ur;
+          }
+          pi[2 * r] = ar;
+          pi[2 * r + 1] = ai;
+        }
+      } else {
+        for (let r = 0; r < M; r++) {
+          const b = 2 * r * M;
+          const ur = ub[uo + 2 * r];
+          const ui = ub[uo + 2 * r + 1];
+          let ar = 0;
+          let ai = 0;
+          for (let j = 0; j < M; j++) {
+            const pr = P[b + 2 * j];
+            const pim = P[b + 2 * j + 1];
+            const vr = ub[uo + 2 * j];
+            const vi = ub[uo + 2 * j + 1];
+            ar += pr * vr - pim * vi;
+            ai += pr * vi + pim * vr;
+            // ψ_j += conj(u_r) P_rj
+            psi[2 * j] += ur * pr + ui * pim;
+            psi[2 * j + 1] += ur * pim - ui * pr;
+          }
+          pi[2 * r] = ar;
+          pi[2 * r + 1] = ai;
+        }
+        // (Pᴴu)_j = conj(ψ_j)
+        let dn = 0;
+        let nn = 0;
+        for (let k = 0; k < M2; k += 2) {
+          const tr = pi[k] - psi[k];
+          const ti = pi[k + 1] + psi[k + 1];
+          dn += tr * tr + ti * ti;
+          nn += pi[k] * pi[k] + pi[k + 1] * pi[k + 1];
+        }
+        asym = Math.sqrt(dn / nn);
+      }
+      let q = 0;
+      for (let k = 0; k < M2; k += 2) {
+        q += ub[uo + k] * pi[k] + ub[uo + k + 1] * pi[k + 1];
+      }
+      const alpha = lam + q;
+      const ia = 1 / alpha;
+      const dvr = d[2 * i];
+      const dvi = d[2 * i + 1];
+      const er = dvr - yr;
+      const ei = dvi - yi;
+      // w += k e*, k = π/α
+      const qr = er * ia;
+      const qi = -ei * ia;
+      for (let k = 0; k < M2; k += 2) {
+        const pr = pi[k];
+        const pim = pi[k + 1];
+        w[k] += pr * qr - pim * qi;
+        w[k + 1] += pr * qi + pim * qr;
+      }
+      let diagBad = false;
+      if (!legacy) {
+        for (let r = 0; r < M; r++) {
+          const b = 2 * r * M;
+          const kr = pi[2 * r] * ia;
+          const ki = pi[2 * r + 1] * ia;
+          // diagonal: P_rr − |π_r|²/α, kept real
+          P[b + 2 * r] = (P[b + 2 * r] - (kr * pi[2 * r] + ki * pi[2 * r + 1])) * il;
+          if (!(P[b + 2 * r] > 0)) {
+            diagBad = true;
+          }
+          for (let j = r + 1; j < M; j++) {
+            const pr = pi[2 * j];
+            const pim = pi[2 * j + 1];
+            // P_rj − k_r conj(π_j)
+            P[b + 2 * j] = (P[b + 2 * j] - (kr * pr + ki * pim)) * il;
+            P[b + 2 * j + 1] = (P[b + 2 * j + 1] - (ki * pr - kr * pim)) * il;
+          }
+        }
+      } else {
+        for (let r = 0; r < M; r++) {
+          const b = 2 * r * M;
+          const kr = pi[2 * r] * ia;
+          const ki = pi[2 * r + 1] * ia;
+          for (let j = 0; j < M; j++) {
+            const sr = psi[2 * j];
+            const si = psi[2 * j + 1];
+            P[b + 2 * j] = (P[b + 2 * j] - (kr * sr - ki * si)) * il;
+            P[b + 2 * j + 1] = (P[b + 2 * j + 1] - (kr * si + ki * sr)) * il;
+          }
+          if (!(P[b + 2 * r] > 0)) {
+            diagBad = true;
+          }
+        }
+      }
+      if (!(q >= 0) || diagBad || asym > tol) {
+        this.report(q, diagBad, asym, t0 + i);
+      }
+      const gam = lam * ia;
+      y[2 * i] = yr;
+      y[2 * i + 1] = yi;
+      e[2 * i] = er;
+      e[2 * i + 1] = ei;
+      g[i] = gam;
+      ep[2 * i] = gam * er;
+      ep[2 * i + 1] = gam * ei;
+      const ee = er * er + ei * ei;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dvr * dvr + dvi * dvi - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * M2);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+
+  /** Float32 emulation of both variants (see QrRlsFilter.kernel32 for the conventions). */
+  private kernel32(
+    x: Float32Array,
+    d: Float32Array,
+    n: number,
+    y: Float32Array,
+    e: Float32Array,
+    ep: Float32Array,
+    g: Float32Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const f = Math.fround;
+    const M = this.M;
+    const M2 = 2 * M;
+    const cx = this.complex;
+    const W = cx ? 2 : 1;
+    const P = this.P as Float32Array;
+    const w = this.w as Float32Array;
+    const pi = this.pi as Float32Array;
+    const psi = this.psi as Float32Array;
+    const ub = this.ub as Float32Array;
+    const lam = f(this.options.lambda);
+    const il = f(1 / lam);
+    const legacy = this.legacy;
+    const tol = this.options.asymmetryTolerance;
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    const L = cx ? M2 : M;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    for (let i = 0; i < n; i++) {
+      let uo = 0;
+      if (tv) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        for (let q = 0; q < W; q++) {
+          const xv = x[W * i + q];
+          ub[W * pos + q] = xv;
+          ub[W * (pos + M) + q] = xv;
+        }
+        uo = W * pos;
+      } else {
+        const b = i * M * W;
+        for (let k = 0; k < M * W; k++) {
+          ub[k] = x[b + k];
+        }
+      }
+      let yr = 0;
+      let yi = 0;
+      for (let k = 0; k < M; k++) {
+        const wr = w[2 * k];
+        const wi = w[2 * k + 1];
+        const ur = ub[uo + W * k];
+        const ui = cx ? ub[uo + 2 * k + 1] : 0;
+        yr = f(yr + f(f(wr * ur) + f(wi * ui)));
+        yi = f(yi + f(f(wr * ui) - f(wi * ur)));
+        pi[2 * k] = 0;
+        pi[2 * k + 1] = 0;
+        psi[2 * k] = 0;
+        psi[2 * k + 1] = 0;
+      }
+      let asym = 0;
+      if (!legacy) {
+        for (let r = 0; r < M; r++) {
+          const b = 2 * r * M;
+          const ur = ub[uo + W * r];
+          const ui = cx ? ub[uo + 2 * r + 1] : 0;
+          const prr = P[b + 2 * r];
+          let ar = f(pi[2 * r] + f(prr * ur));
+          let ai = f(pi[2 * r + 1] + f(prr * ui));
+          for (let j = r + 1; j < M; j++) {
+            const pr = P[b + 2 * j];
+            const pim = P[b + 2 * j + 1];
+            const vr = ub[uo + W * j];
+            const vi = cx ? ub[uo + 2 * j + 1] : 0;
+            ar = f(ar + f(f(pr * vr) - f(pim * vi)));
+            ai = f(ai + f(f(pr * vi) + f(pim * vr)));
+            pi[2 * j] = f(pi[2 * j] + f(f(pr * ur) + f(pim * ui)));
+            pi[2 * j + 1] = f(pi[2 * j + 1] + f(f(pr * ui) - f(pim * ur)));
+          }
+          pi[2 * r] = ar;
+          pi[2 * r + 1] = ai;
+        }
+      } else {
+        for (let r = 0; r < M; r++) {
+          const b = 2 * r * M;
+          const ur = ub[uo + W * r];
+          const ui = cx ? ub[uo + 2 * r + 1] : 0;
+          let ar = 0;
+          let ai = 0;
+          for (let j = 0; j < M; j++) {
+            const pr = P[b + 2 * j];
+            const pim = P[b + 2 * j + 1];
+            const vr = ub[uo + W * j];
+            const vi = cx ? ub[uo + 2 * j + 1] : 0;
+            ar = f(ar + f(f(pr * vr) - f(pim * vi)));
+            ai = f(ai + f(f(pr * vi) + f(pim * vr)));
+            psi[2 * j] = f(psi[2 * j] + f(f(ur * pr) + f(ui * pim)));
+            psi[2 * j + 1] = f(psi[2 * j + 1] + f(f(ur * pim) - f(ui * pr)));
+          }
+          pi[2 * r] = ar;
+          pi[2 * r + 1] = ai;
+        }
+        // The monitor's asymmetry measure runs in double.
+        let dn = 0;
+        let nn = 0;
+        for (let k = 0; k < M2; k += 2) {
+          const tr = pi[k] - psi[k];
+          const ti = pi[k + 1] + psi[k + 1];
+          dn += tr * tr + ti * ti;
+          nn += pi[k] * pi[k] + pi[k + 1] * pi[k + 1];
+        }
+        asym = Math.sqrt(dn / nn);
+      }
+      let q = 0;
+      for (let k = 0; k < M; k++) {
+        const ur = ub[uo + W * k];
+        const ui = cx ? ub[uo + 2 * k + 1] : 0;
+        q = f(q + f(f(ur * pi[2 * k]) + f(ui * pi[2 * k + 1])));
+      }
+      const alpha = f(lam + q);
+      const ia = f(1 / alpha);
+      const dvr = d[W * i];
+      const dvi = cx ? d[2 * i + 1] : 0;
+      const er = f(dvr - yr);
+      const ei = f(dvi - yi);
+      const qr = f(er * ia);
+      const qi = f(-ei * ia);
+      for (let k = 0; k < M2; k += 2) {
+        const pr = pi[k];
+        const pim = pi[k + 1];
+        w[k] = f(w[k] + f(f(pr * qr) - f(pim * qi)));
+        w[k + 1] = f(w[k + 1] + f(f(pr * qi) + f(pim * qr)));
+      }
+      let diagBad = false;
+      if (!legacy) {
+        for (let r = 0; r < M; r++) {
+          const b = 2 * r * M;
+          const kr = f(pi[2 * r] * ia);
+          const ki = f(pi[2 * r + 1] * ia);
+          P[b + 2 * r] = f(f(P[b + 2 * r] - f(f(kr * pi[2 * r]) + f(ki * pi[2 * r + 1]))) * il);
+          if (!(P[b + 2 * r] > 0)) {
+            diagBad = true;
+          }
+          for (let j = r + 1; j < M; j++) {
+            const pr = pi[2 * j];
+            const pim = pi[2 * j + 1];
+            P[b + 2 * j] = f(f(P[b + 2 * j] - f(f(kr * pr) + f(ki * pim))) * il);
+            P[b + 2 * j + 1] = f(f(P[b + 2 * j + 1] - f(f(ki * pr) - f(kr * pim))) * il);
+          }
+        }
+      } else {
+        for (let r = 0; r < M; r++) {
+          const b = 2 * r * M;
+          const kr = f(pi[2 * r] * ia);
+          const ki = f(pi[2 * r + 1] * ia);
+          for (let j = 0; j < M; j++) {
+            const sr = psi[2 * j];
+            const si = psi[2 * j + 1];
+            P[b + 2 * j] = f(f(P[b + 2 * j] - f(f(kr * sr) - f(ki * si))) * il);
+            P[b + 2 * j + 1] = f(f(P[b + 2 * j + 1] - f(f(kr * si) + f(ki * sr))) * il);
+          }
+          if (!(P[b + 2 * r] > 0)) {
+            diagBad = true;
+          }
+        }
+      }
+      if (!(q >= 0) || diagBad || asym > tol) {
+        this.report(q, diagBad, asym, t0 + i);
+      }
+      const gam = f(lam * ia);
+      y[W * i] = yr;
+      e[W * i] = er;
+      ep[W * i] = f(gam * er);
+      if (cx) {
+        y[2 * i + 1] = yi;
+        e[2 * i + 1] = ei;
+        ep[2 * i + 1] = f(gam * ei);
+      }
+      g[i] = gam;
+      const ee = er * er + ei * ei;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dvr * dvr + dvi * dvi - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * L);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+}
