@@ -5,3 +5,4 @@
 export * from './errors';
 export * from './dense';
 export * from './linalg';
+export * from './filters';
