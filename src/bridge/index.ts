@@ -1,0 +1,8 @@
+/**
+ * Perpend's kernel bridge: lists, reads and writes numpy arrays in a live Python kernel.
+ * (Full usage notes for the panel are in the TSDoc below each export.)
+ */
+export * from './bridge';
+export * from './errors';
+export * from './ledger';
+export * from './names';

@@ -1,0 +1,137 @@
+/**
+ * Names and literals that reach kernel code.
+ *
+ * Every name Perpend puts into Python is validated here as an identifier after NFKC
+ * normalisation (Python normalises identifiers the same way: "Python Language Reference",
+ * §2.3 "Identifiers and keywords", which applies NFKC while parsing), so a full-width "ｘ" is
+ * the same name as "x". Every other string reaches kernel code only as a literal produced by
+ * {@link pyStringLiteral}, which emits printable ASCII and escapes.
+ */
+
+/**
+ * Python 3.11+ hard keywords ("Python Language Reference" §2.3.1). Soft keywords (match, case,
+ * type, _) are valid names and are allowed.
+ */
+export const PYTHON_KEYWORDS: ReadonlySet<string> = new Set([
+  'False',
+  'None',
+  'True',
+  'and',
+  'as',
+  'assert',
+  'async',
+  'await',
+  'break',
+  'class',
+  'continue',
+  'def',
+  'del',
+  'elif',
+  'else',
+  'except',
+  'finally',
+  'for',
+  'from',
+  'global',
+  'if',
+  'import',
+  'in',
+  'is',
+  'lambda',
+  'nonlocal',
+  'not',
+  'or',
+  'pass',
+  'raise',
+  'return',
+  'try',
+  'while',
+  'with',
+  'yield'
+]);
+
+// Python's identifier grammar: XID_Start (plus "_") followed by XID_Continue, checked on the
+// NFKC form (PEP 3131). JavaScript's Unicode property escapes know ID_Start/ID_Continue; the
+// XID variants differ from them only on a handful of characters that NFKC maps away, and the
+// final check below runs on the normalised text, as Python does.
+const IDENTIFIER =
+  /^[\p{ID_Start}_][\p{ID_Continue}\u00B7\u0387\u1369-\u1371\u19DA\u200C\u200D]*$/u;
+
+/** Longest name accepted (a sanity bound; Python itself has none). */
+export const MAX_NAME_LENGTH = 200;
+
+/** The outcome of {@link normalizeIdentifier}. */
+export type NameCheck =
+  { ok: true; name: string; changed: boolean } | { ok: false; reason: string };
+
+/**
+ * Normalises `raw` with NFKC and checks it is a Python identifier and not a keyword.
+ * `changed` tells when the normalised form differs from what was typed (a look-alike).
+ */
+export function normalizeIdentifier(raw: unknown): NameCheck {
+  if (typeof raw !== 'string') {
+    return { ok: false, reason: `a name must be a string, got ${typeof raw}` };
+  }
+  const name = raw.normalize('NFKC');
+  if (name.length === 0) {
+    return { ok: false, reason: 'the name is empty' };
+  }
+  if (name.length > MAX_NAME_LENGTH) {
+    return { ok: false, reason: `the name is longer than ${MAX_NAME_LENGTH} characters` };
+  }
+  if (!IDENTIFIER.test(name)) {
+    return {
+      ok: false,
+      reason: `${JSON.stringify(raw.slice(0, 40))} is not a Python identifier (letters, digits and _ only, not starting with a digit)`
+    };
+  }
+  if (PYTHON_KEYWORDS.has(name)) {
+    return { ok: false, reason: `"${name}" is a Python keyword` };
+  }
+  return { ok: true, name, changed: name !== raw };
+}
+
+/**
+ * Returns the NFKC-normalised identifier or throws a TypeError naming the argument and value.
+ */
+export function checkIdentifier(argName: string, raw: unknown): string {
+  const r = normalizeIdentifier(raw);
+  if (!r.ok) {
+    throw new TypeError(`${argName} is not a valid Python name: ${r.reason}`);
+  }
+  return r.name;
+}
+
+/**
+ * A Python string literal for `s`: double-quoted, printable ASCII only, everything else
+ * escaped (\\xNN, \\uNNNN, \\UNNNNNNNN by code point), so no character of `s` can end the
+ * literal or start a new statement ("Python Language Reference" §2.4.1, escape sequences).
+ */
+export function pyStringLiteral(s: string): string {
+  let out = '"';
+  for (const ch of s) {
+    const cp = ch.codePointAt(0)!;
+    if (cp === 0x22) {
+      out += '\\"';
+    } else if (cp === 0x5c) {
+      out += '\\\\';
+    } else if (cp >= 0x20 && cp < 0x7f) {
+      out += ch;
+    } else if (cp < 0x100) {
+      out += '\\x' + cp.toString(16).padStart(2, '0');
+    } else if (cp < 0x10000) {
+      out += '\\u' + cp.toString(16).padStart(4, '0');
+    } else {
+      out += '\\U' + cp.toString(16).padStart(8, '0');
+    }
+  }
+  return out + '"';
+}
+
+/** A Python int literal for a safe integer, or a TypeError naming the argument. */
+export function pyIntLiteral(argName: string, n: unknown): string {
+  if (typeof n !== 'number' || !Number.isSafeInteger(n)) {
+    throw new TypeError(`${argName} must be a safe integer, got ${String(n)}`);
+  }
+  return String(n);
+}
