@@ -4,3 +4,6 @@
  */
 export * from './blas';
 export * from './givens';
+export * from './reflector';
+export * from './householder';
+export * from './qr';

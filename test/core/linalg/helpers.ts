@@ -82,9 +82,8 @@ export function randn(rng: Rng, m: number, n: number, complex = false, order: 'C
   return a;
 }
 
-/** C = A·B (plain triple loop, complex-aware), both 2-D. */
+/** C = A·B (or Aᴴ·B with conjA) by the plain triple loop, complex-aware, both 2-D. */
 export function matmul(a: Dense, b: Dense, conjA = false): Dense {
-  // conjA: use Aᴴ instead of A.
   const m = conjA ? a.cols : a.rows;
   const k = conjA ? a.rows : a.cols;
   if (k !== b.rows) {
@@ -92,20 +91,40 @@ export function matmul(a: Dense, b: Dense, conjA = false): Dense {
   }
   const n = b.cols;
   const complex = a.complex || b.complex;
+  // Element (i, p) of op(A) at ai + i*si + p*sp; of B (p, j) at bo + p*bp + j*bj.
+  const si = conjA ? a.strides[1] : a.strides[0];
+  const sp = conjA ? a.strides[0] : a.strides[1];
+  const bp = b.strides[0];
+  const bj = b.strides[1];
   const c = Dense.zeros([m, n], { complex, order: 'F' });
-  for (let i = 0; i < m; i++) {
-    for (let j = 0; j < n; j++) {
+  const A = a.data;
+  const B = b.data;
+  const C = c.data;
+  const ac = a.complex;
+  const bc = b.complex;
+  const sgn = conjA ? -1 : 1;
+  for (let j = 0; j < n; j++) {
+    for (let i = 0; i < m; i++) {
       let re = 0;
       let im = 0;
+      let ea = a.offset + i * si;
+      let eb = b.offset + j * bj;
       for (let p = 0; p < k; p++) {
-        const ar = conjA ? a.get(p, i) : a.get(i, p);
-        const ai = conjA ? -a.getIm(p, i) : a.getIm(i, p);
-        const br = b.get(p, j);
-        const bi = b.getIm(p, j);
+        const ar = ac ? A[2 * ea] : A[ea];
+        const ai = ac ? sgn * A[2 * ea + 1] : 0;
+        const br = bc ? B[2 * eb] : B[eb];
+        const bi = bc ? B[2 * eb + 1] : 0;
         re += ar * br - ai * bi;
         im += ar * bi + ai * br;
+        ea += sp;
+        eb += bp;
       }
-      c.set(i, j, re, im);
+      if (complex) {
+        C[2 * (i + j * m)] = re;
+        C[2 * (i + j * m) + 1] = im;
+      } else {
+        C[i + j * m] = re;
+      }
     }
   }
   return c;
@@ -198,4 +217,129 @@ export function logspace(a: number, b: number, n: number): number[] {
     return [Math.pow(10, a)];
   }
   return Array.from({ length: n }, (_, i) => Math.pow(10, a + ((b - a) * i) / (n - 1)));
+}
+
+/**
+ * Orthonormal columns by classical Gram–Schmidt run twice (independent of the library's QR, so
+ * test matrices do not depend on the code under test).
+ */
+export function orthonormalCols(a: Dense): Dense {
+  const m = a.rows;
+  const n = a.cols;
+  const q = a.copy('F');
+  for (let j = 0; j < n; j++) {
+    for (let pass = 0; pass < 2; pass++) {
+      for (let p = 0; p < j; p++) {
+        let re = 0;
+        let im = 0;
+        for (let i = 0; i < m; i++) {
+          // conj(q_p)·q_j
+          re += q.get(i, p) * q.get(i, j) + q.getIm(i, p) * q.getIm(i, j);
+          im += q.get(i, p) * q.getIm(i, j) - q.getIm(i, p) * q.get(i, j);
+        }
+        for (let i = 0; i < m; i++) {
+          const pr = q.get(i, p);
+          const pi = q.getIm(i, p);
+          q.set(i, j, q.get(i, j) - (re * pr - im * pi), q.getIm(i, j) - (re * pi + im * pr));
+        }
+      }
+    }
+    let s = 0;
+    for (let i = 0; i < m; i++) {
+      s += q.get(i, j) ** 2 + q.getIm(i, j) ** 2;
+    }
+    s = Math.sqrt(s);
+    for (let i = 0; i < m; i++) {
+      q.set(i, j, q.get(i, j) / s, q.getIm(i, j) / s);
+    }
+  }
+  return q;
+}
+
+export type Family = 'random' | 'tall' | 'wide' | 'graded' | 'rank-deficient' | 'ill-conditioned';
+export const FAMILIES: Family[] = [
+  'random',
+  'tall',
+  'wide',
+  'graded',
+  'rank-deficient',
+  'ill-conditioned'
+];
+
+export interface TestMatrix {
+  family: Family;
+  a: Dense;
+  /** Condition number (2-norm) when known by construction. */
+  kappa?: number;
+  /** Rank when known by construction. */
+  rank?: number;
+}
+
+/**
+ * One seeded test matrix of a family, no larger than maxDim in either dimension. The families
+ * are those of LAPACK's QR test matrices (LAWN 41, §7: xLATMS types) in spirit: random, tall,
+ * wide, graded (columns scaled over 12 decades), rank-deficient plus noise at 1e-13, and
+ * ill-conditioned with κ up to 1e12 (singular values log-spaced).
+ */
+export function makeMatrix(rng: Rng, family: Family, complex: boolean, maxDim = 64): TestMatrix {
+  const order = rng.uniform() < 0.5 ? 'F' : 'C';
+  switch (family) {
+    case 'random': {
+      const m = rng.int(1, maxDim);
+      const n = rng.int(1, maxDim);
+      return { family, a: randn(rng, m, n, complex, order) };
+    }
+    case 'tall': {
+      const n = rng.int(1, Math.floor(maxDim / 2));
+      const m = rng.int(2 * n, maxDim);
+      return { family, a: randn(rng, m, n, complex, order) };
+    }
+    case 'wide': {
+      const m = rng.int(1, maxDim - 1);
+      const n = rng.int(m + 1, maxDim);
+      return { family, a: randn(rng, m, n, complex, order) };
+    }
+    case 'graded': {
+      const m = rng.int(2, maxDim);
+      const n = rng.int(2, maxDim);
+      const a = randn(rng, m, n, complex, order);
+      for (let j = 0; j < n; j++) {
+        const s = Math.pow(10, (-12 * j) / (n - 1));
+        for (let i = 0; i < m; i++) {
+          a.set(i, j, a.get(i, j) * s, a.getIm(i, j) * s);
+        }
+      }
+      return { family, a };
+    }
+    case 'rank-deficient': {
+      const m = rng.int(3, maxDim);
+      const n = rng.int(3, maxDim);
+      const r = rng.int(1, Math.min(m, n) - 1);
+      const x = randn(rng, m, r, complex);
+      const y = randn(rng, r, n, complex);
+      const a = matmul(x, y);
+      const noise = 1e-13;
+      const out = Dense.zeros([m, n], { complex, order });
+      for (let i = 0; i < m; i++) {
+        for (let j = 0; j < n; j++) {
+          out.set(
+            i,
+            j,
+            a.get(i, j) + noise * rng.normal(),
+            complex ? a.getIm(i, j) + noise * rng.normal() : 0
+          );
+        }
+      }
+      return { family, a: out, rank: r };
+    }
+    case 'ill-conditioned': {
+      const m = rng.int(2, maxDim);
+      const n = rng.int(2, maxDim);
+      const k = Math.min(m, n);
+      const kappa = [1e4, 1e8, 1e12][rng.int(0, 2)];
+      const s = logspace(0, -Math.log10(kappa), k);
+      const a = withSingularValues(rng, m, n, s, complex, orthonormalCols);
+      return { family, a: order === 'C' ? a.copy('C') : a, kappa };
+    }
+  }
 }

@@ -1,0 +1,140 @@
+/**
+ * Friendly Householder QR: A = Q·R for a real or complex m×n matrix (Dense, ml-matrix Matrix or
+ * nested arrays). The factored form (reflectors + τ) is kept; R, the thin or full Q, and the
+ * products Q·X and Qᴴ·X are computed on request without forming Q for the latter.
+ */
+import { Dense, toDense, type MatrixLike } from '../dense';
+import { dgeqrfCM, dormqrCM, dorgqrCM, zgeqrfCM, zungqrCM, zunmqrCM } from './householder';
+
+export class HouseholderQR {
+  /** Rows and columns of A. */
+  readonly m: number;
+  readonly n: number;
+  readonly complex: boolean;
+  /** The factored matrix, column-major m×n: R on and above the diagonal, reflectors below. */
+  readonly factors: Dense;
+  /** τ of each reflector (min(m, n) entries; complex: interleaved pairs). */
+  readonly tau: Float64Array;
+
+  constructor(factors: Dense, tau: Float64Array) {
+    this.factors = factors;
+    this.tau = tau;
+    this.m = factors.rows;
+    this.n = factors.cols;
+    this.complex = factors.complex;
+  }
+
+  /** min(m, n): the number of reflectors. */
+  get k(): number {
+    return Math.min(this.m, this.n);
+  }
+
+  /** R: k×n upper triangular (thin, default) or m×n ('full'). */
+  R(mode: 'thin' | 'full' = 'thin'): Dense {
+    const rows = mode === 'full' ? this.m : this.k;
+    const out = Dense.zeros([rows, this.n], { complex: this.complex, order: 'F' });
+    const f = this.factors;
+    for (let j = 0; j < this.n; j++) {
+      for (let i = 0; i <= Math.min(j, this.k - 1); i++) {
+        out.set(i, j, f.get(i, j), f.getIm(i, j));
+      }
+    }
+    return out;
+  }
+
+  /** Q: m×k with orthonormal columns (thin, default) or the full m×m unitary matrix. */
+  Q(mode: 'thin' | 'full' = 'thin'): Dense {
+    const cols = mode === 'full' ? this.m : this.k;
+    const out = Dense.zeros([this.m, cols], { complex: this.complex, order: 'F' });
+    const lda = Math.max(1, this.m);
+    (this.complex ? zungqrCM : dorgqrCM)(
+      this.m,
+      cols,
+      this.k,
+      this.factors.data,
+      0,
+      lda,
+      this.tau,
+      0,
+      out.data,
+      0,
+      lda
+    );
+    return out;
+  }
+
+  /**
+   * Q·X (default) or Qᴴ·X (`adjoint: true`) for an m×p X (a 1-D X is a column), without forming
+   * Q. Returns a new column-major array; X is not modified.
+   */
+  applyQ(x: MatrixLike, options: { adjoint?: boolean } = {}): Dense {
+    const xd = toDense('x', x);
+    if (xd.rows !== this.m) {
+      throw new RangeError(`x has ${xd.rows} rows but Q is ${this.m}x${this.m}; they must match`);
+    }
+    if (xd.complex && !this.complex) {
+      // Q is real: apply it to the real and imaginary parts alike (same code path, complex Q).
+      return complexify(this).applyQ(xd, options);
+    }
+    const c = this.complex && !xd.complex ? xd.toComplex().copy('F') : xd.copy('F');
+    const lda = Math.max(1, this.m);
+    if (this.complex) {
+      zunmqrCM(
+        options.adjoint ? 'C' : 'N',
+        this.m,
+        c.cols,
+        this.k,
+        this.factors.data,
+        0,
+        lda,
+        this.tau,
+        0,
+        c.data,
+        0,
+        lda
+      );
+    } else {
+      dormqrCM(
+        options.adjoint ? 'T' : 'N',
+        this.m,
+        c.cols,
+        this.k,
+        this.factors.data,
+        0,
+        lda,
+        this.tau,
+        0,
+        c.data,
+        0,
+        lda
+      );
+    }
+    return c;
+  }
+}
+
+function complexify(f: HouseholderQR): HouseholderQR {
+  const tau = new Float64Array(2 * f.tau.length);
+  for (let i = 0; i < f.tau.length; i++) {
+    tau[2 * i] = f.tau[i];
+  }
+  return new HouseholderQR(f.factors.toComplex().copy('F'), tau);
+}
+
+/**
+ * Householder QR of A (real or complex). The input is copied; A is not modified.
+ *
+ * Backward stable: the computed Q̂R̂ = A + ΔA with ‖ΔA‖ ≤ c·m·n·u·‖A‖ (Higham, Accuracy and
+ * Stability of Numerical Algorithms 2e, Theorem 19.4).
+ */
+export function householderQR(a: MatrixLike): HouseholderQR {
+  const d = toDense('a', a);
+  if (d.rows === 0 || d.cols === 0) {
+    throw new RangeError(`a is empty (${d.rows}x${d.cols}); give at least one row and column`);
+  }
+  const f = d.copy('F');
+  const k = Math.min(f.rows, f.cols);
+  const tau = new Float64Array(f.complex ? 2 * k : k);
+  (f.complex ? zgeqrfCM : dgeqrfCM)(f.rows, f.cols, f.data, 0, Math.max(1, f.rows), tau, 0);
+  return new HouseholderQR(f, tau);
+}

@@ -1,0 +1,776 @@
+/**
+ * Householder reflectors and block reflectors (compact WY form), real and complex.
+ *
+ * A reflector is H = I − τ·v·vᴴ with v(0) = 1 (LAPACK's representation, Golub & Van Loan,
+ * Matrix Computations 4e, §5.1.2–5.1.4); a product H₁H₂⋯H_k is I − V·T·Vᴴ with V unit lower
+ * trapezoidal and T upper triangular (Schreiber & Van Loan, "A storage-efficient WY
+ * representation for products of Householder transformations", SIAM J. Sci. Stat. Comput. 10,
+ * 1989; Golub & Van Loan 4e §5.2.3).
+ *
+ * All routines here work on column-major storage: (A, offsetA, lda) with element (i, j) at
+ * `offsetA + i + j*lda` (complex: element index, data index twice that). The strided public
+ * kernels in householder.ts pack other layouts into this one once, at the entry.
+ */
+import { dnrm2, dznrm2 } from './blas';
+
+const SAFMIN = Math.pow(2, -1022) / Number.EPSILON; // dlamch('S')/dlamch('E') as in dlarfg
+const RSAFMN = 1 / SAFMIN;
+
+/**
+ * Generates a real reflector with H·(α; x) = (β; 0): α = a[ia] is overwritten by β, x (n−1
+ * entries at stride sx from ox) by v(1:), and τ is returned (τ = 0 means H = I). After LAPACK's
+ * dlarfg, including the rescaling of tiny β.
+ */
+export function dlarfg(
+  n: number,
+  a: Float64Array,
+  ia: number,
+  x: Float64Array,
+  sx: number,
+  ox: number
+): number {
+  if (n <= 1) {
+    return 0;
+  }
+  let xnorm = dnrm2(n - 1, x, sx, ox);
+  // An exactly zero x needs no reflection; this is the algorithm's branch, not a rank test.
+  if (xnorm === 0) {
+    return 0;
+  }
+  let alpha = a[ia];
+  let beta = -Math.sign(alpha || 1) * hypot2(alpha, xnorm);
+  let knt = 0;
+  if (Math.abs(beta) < SAFMIN) {
+    // β may be inaccurate: scale x up until it is not (at most ~20 times).
+    do {
+      knt++;
+      scale(n - 1, RSAFMN, x, sx, ox);
+      beta *= RSAFMN;
+      alpha *= RSAFMN;
+    } while (Math.abs(beta) < SAFMIN && knt < 20);
+    xnorm = dnrm2(n - 1, x, sx, ox);
+    beta = -Math.sign(alpha || 1) * hypot2(alpha, xnorm);
+  }
+  const tau = (beta - alpha) / beta;
+  scale(n - 1, 1 / (alpha - beta), x, sx, ox);
+  for (let j = 0; j < knt; j++) {
+    beta *= SAFMIN;
+  }
+  a[ia] = beta;
+  return tau;
+}
+
+/**
+ * Generates a complex reflector with Hᴴ·(α; x) = (β; 0), β real, H = I − τ v vᴴ (after LAPACK's
+ * zlarfg). α at element ia of a (data index 2·ia) is overwritten by β; x by v(1:); τ is written
+ * to tauOut[ot], tauOut[ot+1].
+ */
+export function zlarfg(
+  n: number,
+  a: Float64Array,
+  ia: number,
+  x: Float64Array,
+  sx: number,
+  ox: number,
+  tauOut: Float64Array,
+  ot: number
+): void {
+  tauOut[ot] = 0;
+  tauOut[ot + 1] = 0;
+  if (n <= 0) {
+    return;
+  }
+  let xnorm = n > 1 ? dznrm2(n - 1, x, sx, ox) : 0;
+  let alphr = a[2 * ia];
+  let alphi = a[2 * ia + 1];
+  // Exactly zero x and real α: H = I (the algorithm's branch, not a rank test).
+  if (xnorm === 0 && alphi === 0) {
+    return;
+  }
+  let beta = -Math.sign(alphr || 1) * hypot3(alphr, alphi, xnorm);
+  let knt = 0;
+  if (Math.abs(beta) < SAFMIN) {
+    do {
+      knt++;
+      zscaleReal(n - 1, RSAFMN, x, sx, ox);
+      beta *= RSAFMN;
+      alphr *= RSAFMN;
+      alphi *= RSAFMN;
+    } while (Math.abs(beta) < SAFMIN && knt < 20);
+    xnorm = n > 1 ? dznrm2(n - 1, x, sx, ox) : 0;
+    beta = -Math.sign(alphr || 1) * hypot3(alphr, alphi, xnorm);
+  }
+  tauOut[ot] = (beta - alphr) / beta;
+  tauOut[ot + 1] = -alphi / beta;
+  // x ← x / (α − β), by Smith's division of 1 by (alphr − β, alphi).
+  const dr = alphr - beta;
+  const di = alphi;
+  let qr: number;
+  let qi: number;
+  if (Math.abs(di) <= Math.abs(dr)) {
+    const e = di / dr;
+    const f = dr + di * e;
+    qr = 1 / f;
+    qi = -e / f;
+  } else {
+    const e = dr / di;
+    const f = di + dr * e;
+    qr = e / f;
+    qi = -1 / f;
+  }
+  let ix = 2 * ox;
+  for (let i = 0; i < n - 1; i++) {
+    const xr = x[ix];
+    const xi = x[ix + 1];
+    x[ix] = qr * xr - qi * xi;
+    x[ix + 1] = qr * xi + qi * xr;
+    ix += 2 * sx;
+  }
+  for (let j = 0; j < knt; j++) {
+    beta *= SAFMIN;
+  }
+  a[2 * ia] = beta;
+  a[2 * ia + 1] = 0;
+}
+
+function scale(n: number, s: number, x: Float64Array, sx: number, ox: number) {
+  let ix = ox;
+  for (let i = 0; i < n; i++) {
+    x[ix] *= s;
+    ix += sx;
+  }
+}
+
+function zscaleReal(n: number, s: number, x: Float64Array, sx: number, ox: number) {
+  let ix = 2 * ox;
+  for (let i = 0; i < n; i++) {
+    x[ix] *= s;
+    x[ix + 1] *= s;
+    ix += 2 * sx;
+  }
+}
+
+/** √(a²+b²) without overflow (LAPACK dlapy2). */
+export function hypot2(a: number, b: number): number {
+  const x = Math.abs(a);
+  const y = Math.abs(b);
+  const w = x > y ? x : y;
+  const z = x > y ? y : x;
+  if (w === 0) {
+    return 0;
+  }
+  const r = z / w;
+  return w * Math.sqrt(1 + r * r);
+}
+
+/** √(a²+b²+c²) without overflow (LAPACK dlapy3). */
+export function hypot3(a: number, b: number, c: number): number {
+  const x = Math.abs(a);
+  const y = Math.abs(b);
+  const z = Math.abs(c);
+  const w = Math.max(x, y, z);
+  if (w === 0) {
+    return x + y + z;
+  }
+  return w * Math.sqrt((x / w) ** 2 + (y / w) ** 2 + (z / w) ** 2);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Block reflector application, real.
+
+/**
+ * C ← (I − V·op(T)·Vᵀ)·C with op(T) = T ('N') or Tᵀ ('T'). V is m×k dense column-major (the unit
+ * lower trapezoid stored explicitly, zeros above the diagonal), T k×k upper triangular, C m×n.
+ * `work` holds at least 4k numbers. Processes C four columns at a time so that the columns stay
+ * in cache between W = VᵀC and C −= V·W; the inner loops are 4×4 register blocks.
+ */
+export function dlarfbLeft(
+  trans: 'N' | 'T',
+  m: number,
+  n: number,
+  k: number,
+  V: Float64Array,
+  ov: number,
+  ldv: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number,
+  C: Float64Array,
+  oc: number,
+  ldc: number,
+  work: Float64Array
+): void {
+  if (m <= 0 || n <= 0 || k <= 0) {
+    return;
+  }
+  let j = 0;
+  for (; j + 4 <= n; j += 4) {
+    larfbChunk4(trans, m, k, V, ov, ldv, T, ot, ldt, C, oc + j * ldc, ldc, work);
+  }
+  for (; j < n; j++) {
+    larfbChunk1(trans, m, k, V, ov, ldv, T, ot, ldt, C, oc + j * ldc, work);
+  }
+}
+
+function larfbChunk4(
+  trans: 'N' | 'T',
+  m: number,
+  k: number,
+  V: Float64Array,
+  ov: number,
+  ldv: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number,
+  C: Float64Array,
+  oc: number,
+  ldc: number,
+  W: Float64Array
+): void {
+  const c0 = oc;
+  const c1 = oc + ldc;
+  const c2 = oc + 2 * ldc;
+  const c3 = oc + 3 * ldc;
+  // Phase 1: W(p, b) = Σ_i V(i, p)·C(i, b); W is k×4 column-major with leading dimension k.
+  let p = 0;
+  for (; p + 4 <= k; p += 4) {
+    const v0 = ov + p * ldv;
+    const v1 = v0 + ldv;
+    const v2 = v1 + ldv;
+    const v3 = v2 + ldv;
+    let s00 = 0,
+      s01 = 0,
+      s02 = 0,
+      s03 = 0,
+      s10 = 0,
+      s11 = 0,
+      s12 = 0,
+      s13 = 0,
+      s20 = 0,
+      s21 = 0,
+      s22 = 0,
+      s23 = 0,
+      s30 = 0,
+      s31 = 0,
+      s32 = 0,
+      s33 = 0;
+    for (let i = 0; i < m; i++) {
+      const a0 = V[v0 + i];
+      const a1 = V[v1 + i];
+      const a2 = V[v2 + i];
+      const a3 = V[v3 + i];
+      const b0 = C[c0 + i];
+      const b1 = C[c1 + i];
+      const b2 = C[c2 + i];
+      const b3 = C[c3 + i];
+      s00 += a0 * b0;
+      s01 += a0 * b1;
+      s02 += a0 * b2;
+      s03 += a0 * b3;
+      s10 += a1 * b0;
+      s11 += a1 * b1;
+      s12 += a1 * b2;
+      s13 += a1 * b3;
+      s20 += a2 * b0;
+      s21 += a2 * b1;
+      s22 += a2 * b2;
+      s23 += a2 * b3;
+      s30 += a3 * b0;
+      s31 += a3 * b1;
+      s32 += a3 * b2;
+      s33 += a3 * b3;
+    }
+    W[p] = s00;
+    W[k + p] = s01;
+    W[2 * k + p] = s02;
+    W[3 * k + p] = s03;
+    W[p + 1] = s10;
+    W[k + p + 1] = s11;
+    W[2 * k + p + 1] = s12;
+    W[3 * k + p + 1] = s13;
+    W[p + 2] = s20;
+    W[k + p + 2] = s21;
+    W[2 * k + p + 2] = s22;
+    W[3 * k + p + 2] = s23;
+    W[p + 3] = s30;
+    W[k + p + 3] = s31;
+    W[2 * k + p + 3] = s32;
+    W[3 * k + p + 3] = s33;
+  }
+  for (; p < k; p++) {
+    const v0 = ov + p * ldv;
+    let s0 = 0,
+      s1 = 0,
+      s2 = 0,
+      s3 = 0;
+    for (let i = 0; i < m; i++) {
+      const a = V[v0 + i];
+      s0 += a * C[c0 + i];
+      s1 += a * C[c1 + i];
+      s2 += a * C[c2 + i];
+      s3 += a * C[c3 + i];
+    }
+    W[p] = s0;
+    W[k + p] = s1;
+    W[2 * k + p] = s2;
+    W[3 * k + p] = s3;
+  }
+  // Phase 2: W ← op(T)·W.
+  for (let b = 0; b < 4; b++) {
+    triMulUpper(trans, k, T, ot, ldt, W, b * k);
+  }
+  // Phase 3: C ← C − V·W.
+  p = 0;
+  for (; p + 4 <= k; p += 4) {
+    const v0 = ov + p * ldv;
+    const v1 = v0 + ldv;
+    const v2 = v1 + ldv;
+    const v3 = v2 + ldv;
+    const w00 = W[p],
+      w10 = W[p + 1],
+      w20 = W[p + 2],
+      w30 = W[p + 3];
+    const w01 = W[k + p],
+      w11 = W[k + p + 1],
+      w21 = W[k + p + 2],
+      w31 = W[k + p + 3];
+    const w02 = W[2 * k + p],
+      w12 = W[2 * k + p + 1],
+      w22 = W[2 * k + p + 2],
+      w32 = W[2 * k + p + 3];
+    const w03 = W[3 * k + p],
+      w13 = W[3 * k + p + 1],
+      w23 = W[3 * k + p + 2],
+      w33 = W[3 * k + p + 3];
+    for (let i = 0; i < m; i++) {
+      const a0 = V[v0 + i];
+      const a1 = V[v1 + i];
+      const a2 = V[v2 + i];
+      const a3 = V[v3 + i];
+      C[c0 + i] -= a0 * w00 + a1 * w10 + a2 * w20 + a3 * w30;
+      C[c1 + i] -= a0 * w01 + a1 * w11 + a2 * w21 + a3 * w31;
+      C[c2 + i] -= a0 * w02 + a1 * w12 + a2 * w22 + a3 * w32;
+      C[c3 + i] -= a0 * w03 + a1 * w13 + a2 * w23 + a3 * w33;
+    }
+  }
+  for (; p < k; p++) {
+    const v0 = ov + p * ldv;
+    const w0 = W[p],
+      w1 = W[k + p],
+      w2 = W[2 * k + p],
+      w3 = W[3 * k + p];
+    for (let i = 0; i < m; i++) {
+      const a = V[v0 + i];
+      C[c0 + i] -= a * w0;
+      C[c1 + i] -= a * w1;
+      C[c2 + i] -= a * w2;
+      C[c3 + i] -= a * w3;
+    }
+  }
+}
+
+function larfbChunk1(
+  trans: 'N' | 'T',
+  m: number,
+  k: number,
+  V: Float64Array,
+  ov: number,
+  ldv: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number,
+  C: Float64Array,
+  oc: number,
+  W: Float64Array
+): void {
+  for (let p = 0; p < k; p++) {
+    const v0 = ov + p * ldv;
+    let s = 0;
+    for (let i = 0; i < m; i++) {
+      s += V[v0 + i] * C[oc + i];
+    }
+    W[p] = s;
+  }
+  triMulUpper(trans, k, T, ot, ldt, W, 0);
+  for (let p = 0; p < k; p++) {
+    const v0 = ov + p * ldv;
+    const w = W[p];
+    for (let i = 0; i < m; i++) {
+      C[oc + i] -= V[v0 + i] * w;
+    }
+  }
+}
+
+/** w ← op(T)·w for k×k upper triangular T, in place (w at W[ow..ow+k)). */
+function triMulUpper(
+  trans: 'N' | 'T',
+  k: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number,
+  W: Float64Array,
+  ow: number
+): void {
+  if (trans === 'N') {
+    for (let p = 0; p < k; p++) {
+      let s = 0;
+      for (let q = p; q < k; q++) {
+        s += T[ot + p + q * ldt] * W[ow + q];
+      }
+      W[ow + p] = s;
+    }
+  } else {
+    for (let p = k - 1; p >= 0; p--) {
+      let s = 0;
+      const tp = ot + p * ldt;
+      for (let q = 0; q <= p; q++) {
+        s += T[tp + q] * W[ow + q];
+      }
+      W[ow + p] = s;
+    }
+  }
+}
+
+/**
+ * Forms the k×k upper triangular T of H₁⋯H_k = I − V·T·Vᵀ from packed V (m×k, zeros above the
+ * unit diagonal) and τ (LAPACK dlarft, forward, columnwise).
+ */
+export function dlarft(
+  m: number,
+  k: number,
+  V: Float64Array,
+  ov: number,
+  ldv: number,
+  tau: Float64Array,
+  otau: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number
+): void {
+  for (let i = 0; i < k; i++) {
+    const ti = tau[otau + i];
+    const vi = ov + i * ldv;
+    for (let p = 0; p < i; p++) {
+      const vp = ov + p * ldv;
+      let s = 0;
+      for (let r = i; r < m; r++) {
+        s += V[vp + r] * V[vi + r];
+      }
+      T[ot + p + i * ldt] = -ti * s;
+    }
+    // T(0:i, i) ← T(0:i, 0:i)·T(0:i, i), ascending rows use only not-yet-updated entries.
+    for (let p = 0; p < i; p++) {
+      let s = 0;
+      for (let q = p; q < i; q++) {
+        s += T[ot + p + q * ldt] * T[ot + q + i * ldt];
+      }
+      T[ot + p + i * ldt] = s;
+    }
+    T[ot + i + i * ldt] = ti;
+    for (let p = i + 1; p < k; p++) {
+      T[ot + p + i * ldt] = 0;
+    }
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Block reflector application, complex (element offsets; data index = 2·element).
+
+/**
+ * C ← (I − V·op(T)·Vᴴ)·C, op(T) = T ('N') or Tᴴ ('C'); complex analogue of dlarfbLeft.
+ * `work` holds at least 4k numbers (2k complex). Two columns of C at a time, 2×2 blocks.
+ */
+export function zlarfbLeft(
+  trans: 'N' | 'C',
+  m: number,
+  n: number,
+  k: number,
+  V: Float64Array,
+  ov: number,
+  ldv: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number,
+  C: Float64Array,
+  oc: number,
+  ldc: number,
+  work: Float64Array
+): void {
+  if (m <= 0 || n <= 0 || k <= 0) {
+    return;
+  }
+  let j = 0;
+  for (; j + 2 <= n; j += 2) {
+    zlarfbChunk2(trans, m, k, V, ov, ldv, T, ot, ldt, C, oc + j * ldc, ldc, work);
+  }
+  for (; j < n; j++) {
+    zlarfbChunk1(trans, m, k, V, ov, ldv, T, ot, ldt, C, oc + j * ldc, work);
+  }
+}
+
+function zlarfbChunk2(
+  trans: 'N' | 'C',
+  m: number,
+  k: number,
+  V: Float64Array,
+  ov: number,
+  ldv: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number,
+  C: Float64Array,
+  oc: number,
+  ldc: number,
+  W: Float64Array
+): void {
+  const c0 = 2 * oc;
+  const c1 = 2 * (oc + ldc);
+  const k2 = 2 * k;
+  let p = 0;
+  for (; p + 2 <= k; p += 2) {
+    const v0 = 2 * (ov + p * ldv);
+    const v1 = v0 + 2 * ldv;
+    let r00 = 0,
+      i00 = 0,
+      r01 = 0,
+      i01 = 0,
+      r10 = 0,
+      i10 = 0,
+      r11 = 0,
+      i11 = 0;
+    for (let i = 0; i < 2 * m; i += 2) {
+      const ar = V[v0 + i],
+        ai = V[v0 + i + 1];
+      const br = V[v1 + i],
+        bi = V[v1 + i + 1];
+      const xr = C[c0 + i],
+        xi = C[c0 + i + 1];
+      const yr = C[c1 + i],
+        yi = C[c1 + i + 1];
+      // conj(v)·c
+      r00 += ar * xr + ai * xi;
+      i00 += ar * xi - ai * xr;
+      r01 += ar * yr + ai * yi;
+      i01 += ar * yi - ai * yr;
+      r10 += br * xr + bi * xi;
+      i10 += br * xi - bi * xr;
+      r11 += br * yr + bi * yi;
+      i11 += br * yi - bi * yr;
+    }
+    W[2 * p] = r00;
+    W[2 * p + 1] = i00;
+    W[2 * p + 2] = r10;
+    W[2 * p + 3] = i10;
+    W[k2 + 2 * p] = r01;
+    W[k2 + 2 * p + 1] = i01;
+    W[k2 + 2 * p + 2] = r11;
+    W[k2 + 2 * p + 3] = i11;
+  }
+  for (; p < k; p++) {
+    const v0 = 2 * (ov + p * ldv);
+    let r0 = 0,
+      i0 = 0,
+      r1 = 0,
+      i1 = 0;
+    for (let i = 0; i < 2 * m; i += 2) {
+      const ar = V[v0 + i],
+        ai = V[v0 + i + 1];
+      const xr = C[c0 + i],
+        xi = C[c0 + i + 1];
+      const yr = C[c1 + i],
+        yi = C[c1 + i + 1];
+      r0 += ar * xr + ai * xi;
+      i0 += ar * xi - ai * xr;
+      r1 += ar * yr + ai * yi;
+      i1 += ar * yi - ai * yr;
+    }
+    W[2 * p] = r0;
+    W[2 * p + 1] = i0;
+    W[k2 + 2 * p] = r1;
+    W[k2 + 2 * p + 1] = i1;
+  }
+  ztriMulUpper(trans, k, T, ot, ldt, W, 0);
+  ztriMulUpper(trans, k, T, ot, ldt, W, k);
+  p = 0;
+  for (; p + 2 <= k; p += 2) {
+    const v0 = 2 * (ov + p * ldv);
+    const v1 = v0 + 2 * ldv;
+    const w00r = W[2 * p],
+      w00i = W[2 * p + 1],
+      w10r = W[2 * p + 2],
+      w10i = W[2 * p + 3];
+    const w01r = W[k2 + 2 * p],
+      w01i = W[k2 + 2 * p + 1],
+      w11r = W[k2 + 2 * p + 2],
+      w11i = W[k2 + 2 * p + 3];
+    for (let i = 0; i < 2 * m; i += 2) {
+      const ar = V[v0 + i],
+        ai = V[v0 + i + 1];
+      const br = V[v1 + i],
+        bi = V[v1 + i + 1];
+      C[c0 + i] -= ar * w00r - ai * w00i + br * w10r - bi * w10i;
+      C[c0 + i + 1] -= ar * w00i + ai * w00r + br * w10i + bi * w10r;
+      C[c1 + i] -= ar * w01r - ai * w01i + br * w11r - bi * w11i;
+      C[c1 + i + 1] -= ar * w01i + ai * w01r + br * w11i + bi * w11r;
+    }
+  }
+  for (; p < k; p++) {
+    const v0 = 2 * (ov + p * ldv);
+    const w0r = W[2 * p],
+      w0i = W[2 * p + 1];
+    const w1r = W[k2 + 2 * p],
+      w1i = W[k2 + 2 * p + 1];
+    for (let i = 0; i < 2 * m; i += 2) {
+      const ar = V[v0 + i],
+        ai = V[v0 + i + 1];
+      C[c0 + i] -= ar * w0r - ai * w0i;
+      C[c0 + i + 1] -= ar * w0i + ai * w0r;
+      C[c1 + i] -= ar * w1r - ai * w1i;
+      C[c1 + i + 1] -= ar * w1i + ai * w1r;
+    }
+  }
+}
+
+function zlarfbChunk1(
+  trans: 'N' | 'C',
+  m: number,
+  k: number,
+  V: Float64Array,
+  ov: number,
+  ldv: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number,
+  C: Float64Array,
+  oc: number,
+  W: Float64Array
+): void {
+  const c0 = 2 * oc;
+  for (let p = 0; p < k; p++) {
+    const v0 = 2 * (ov + p * ldv);
+    let re = 0,
+      im = 0;
+    for (let i = 0; i < 2 * m; i += 2) {
+      const ar = V[v0 + i],
+        ai = V[v0 + i + 1];
+      const xr = C[c0 + i],
+        xi = C[c0 + i + 1];
+      re += ar * xr + ai * xi;
+      im += ar * xi - ai * xr;
+    }
+    W[2 * p] = re;
+    W[2 * p + 1] = im;
+  }
+  ztriMulUpper(trans, k, T, ot, ldt, W, 0);
+  for (let p = 0; p < k; p++) {
+    const v0 = 2 * (ov + p * ldv);
+    const wr = W[2 * p],
+      wi = W[2 * p + 1];
+    for (let i = 0; i < 2 * m; i += 2) {
+      const ar = V[v0 + i],
+        ai = V[v0 + i + 1];
+      C[c0 + i] -= ar * wr - ai * wi;
+      C[c0 + i + 1] -= ar * wi + ai * wr;
+    }
+  }
+}
+
+/** w ← op(T)·w, complex, T k×k upper, w at complex element ow of W. */
+function ztriMulUpper(
+  trans: 'N' | 'C',
+  k: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number,
+  W: Float64Array,
+  ow: number
+): void {
+  if (trans === 'N') {
+    for (let p = 0; p < k; p++) {
+      let re = 0,
+        im = 0;
+      for (let q = p; q < k; q++) {
+        const t = 2 * (ot + p + q * ldt);
+        const tr = T[t],
+          ti = T[t + 1];
+        const wr = W[2 * (ow + q)],
+          wi = W[2 * (ow + q) + 1];
+        re += tr * wr - ti * wi;
+        im += tr * wi + ti * wr;
+      }
+      W[2 * (ow + p)] = re;
+      W[2 * (ow + p) + 1] = im;
+    }
+  } else {
+    for (let p = k - 1; p >= 0; p--) {
+      let re = 0,
+        im = 0;
+      for (let q = 0; q <= p; q++) {
+        // (Tᴴ)(p, q) = conj(T(q, p))
+        const t = 2 * (ot + q + p * ldt);
+        const tr = T[t],
+          ti = -T[t + 1];
+        const wr = W[2 * (ow + q)],
+          wi = W[2 * (ow + q) + 1];
+        re += tr * wr - ti * wi;
+        im += tr * wi + ti * wr;
+      }
+      W[2 * (ow + p)] = re;
+      W[2 * (ow + p) + 1] = im;
+    }
+  }
+}
+
+/** Complex dlarft: T of H₁⋯H_k = I − V·T·Vᴴ (tau interleaved complex). */
+export function zlarft(
+  m: number,
+  k: number,
+  V: Float64Array,
+  ov: number,
+  ldv: number,
+  tau: Float64Array,
+  otau: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number
+): void {
+  for (let i = 0; i < k; i++) {
+    const tr = tau[2 * (otau + i)];
+    const tim = tau[2 * (otau + i) + 1];
+    const vi = 2 * (ov + i * ldv);
+    for (let p = 0; p < i; p++) {
+      const vp = 2 * (ov + p * ldv);
+      let sr = 0,
+        si = 0;
+      for (let r = 2 * i; r < 2 * m; r += 2) {
+        const ar = V[vp + r],
+          ai = V[vp + r + 1];
+        const br = V[vi + r],
+          bi = V[vi + r + 1];
+        sr += ar * br + ai * bi;
+        si += ar * bi - ai * br;
+      }
+      const t = 2 * (ot + p + i * ldt);
+      T[t] = -(tr * sr - tim * si);
+      T[t + 1] = -(tr * si + tim * sr);
+    }
+    for (let p = 0; p < i; p++) {
+      let sr = 0,
+        si = 0;
+      for (let q = p; q < i; q++) {
+        const a = 2 * (ot + p + q * ldt);
+        const b = 2 * (ot + q + i * ldt);
+        sr += T[a] * T[b] - T[a + 1] * T[b + 1];
+        si += T[a] * T[b + 1] + T[a + 1] * T[b];
+      }
+      T[2 * (ot + p + i * ldt)] = sr;
+      T[2 * (ot + p + i * ldt) + 1] = si;
+    }
+    T[2 * (ot + i + i * ldt)] = tr;
+    T[2 * (ot + i + i * ldt) + 1] = tim;
+    for (let p = i + 1; p < k; p++) {
+      T[2 * (ot + p + i * ldt)] = 0;
+      T[2 * (ot + p + i * ldt) + 1] = 0;
+    }
+  }
+}
