@@ -46,7 +46,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     this.p = mk(w * M);
     this.r = mk(w * M);
     const sd = this.f32
-      ? Math.fround(Math.sqrt(this.options.delta))
+      ? Math.fround(Math.sqrt(Math.fround(this.options.delta)))
       : Math.sqrt(this.options.delta);
     for (let j = 0; j < M; j++) {
       this.R[w * (j * M + j)] = sd;
