@@ -7,3 +7,6 @@ export * from './givens';
 export * from './reflector';
 export * from './householder';
 export * from './qr';
+export * from './pivoted';
+export * from './gramschmidt';
+export * from './triangular';

@@ -5,6 +5,7 @@
  */
 import { Dense, toDense, type MatrixLike } from '../dense';
 import { dgeqrfCM, dormqrCM, dorgqrCM, zgeqrfCM, zungqrCM, zunmqrCM } from './householder';
+import { triangularCondition, type ConditionEstimate } from './triangular';
 
 export class HouseholderQR {
   /** Rows and columns of A. */
@@ -40,6 +41,12 @@ export class HouseholderQR {
       }
     }
     return out;
+  }
+
+  /** 1-norm condition estimate of the leading k×k block of R (κ₁(R) = κ₁(A) when m ≥ n). */
+  condition(): ConditionEstimate {
+    const k = this.k;
+    return triangularCondition(this.R().slice(0, k, 0, k));
   }
 
   /** Q: m×k with orthonormal columns (thin, default) or the full m×m unitary matrix. */
