@@ -5,7 +5,7 @@
  * matrix, with applications to condition estimation", ACM TOMS 14, 1988, Algorithm 4.1 — the
  * estimator behind LAPACK's xLACN2 and xTRCON).
  */
-import { Dense, toDense, type MatrixLike } from '../dense';
+import { type Dense, toDense, type MatrixLike } from '../dense';
 
 export type Uplo = 'U' | 'L';
 export type Trans = 'N' | 'T' | 'C';
