@@ -6,3 +6,5 @@ export * from './errors';
 export * from './dense';
 export * from './linalg';
 export * from './filters';
+export * from './metrics';
+export * from './dsp';

@@ -1,0 +1,2 @@
+export * from './learning';
+export * from './ensemble';
