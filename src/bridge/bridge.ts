@@ -1,4 +1,4 @@
-import type { Kernel, KernelMessage } from '@jupyterlab/services';
+import type { CommsOverSubshells, Kernel, KernelMessage } from '@jupyterlab/services';
 import type { IDisposable } from '@lumino/disposable';
 import { Signal, type ISignal } from '@lumino/signaling';
 import { decodeBase64Into, encodeBase64 } from './base64';
@@ -244,7 +244,9 @@ export class KernelBridge implements IDisposable {
     }
     this._readChunk = clampChunk('readChunkBytes', options.readChunkBytes ?? 8 * MiB, 64 * MiB);
     this._writeChunk = clampChunk('writeChunkBytes', options.writeChunkBytes ?? 4 * MiB, 8 * MiB);
+    this._shellBusy = this._kernel.status === 'busy';
     this._kernel.statusChanged.connect(this._onStatus, this);
+    this._kernel.iopubMessage.connect(this._onIOPub, this);
     this._kernel.connectionStatusChanged.connect(this._onConnection, this);
     this._kernel.disposed.connect(this._onKernelDisposed, this);
   }
@@ -300,6 +302,7 @@ export class KernelBridge implements IDisposable {
     this._disposed = true;
     this._failAll('disposed', 'Perpend stopped talking to this kernel (the bridge was closed).');
     this._kernel.statusChanged.disconnect(this._onStatus, this);
+    this._kernel.iopubMessage.disconnect(this._onIOPub, this);
     this._kernel.connectionStatusChanged.disconnect(this._onConnection, this);
     this._kernel.disposed.disconnect(this._onKernelDisposed, this);
     const comm = this._comm;
@@ -541,7 +544,7 @@ export class KernelBridge implements IDisposable {
   /** Resolves when the kernel is not busy (deferral of listings); fails on kernel loss. */
   private async _whenIdle(label: string): Promise<void> {
     this._checkUsable();
-    if (this._kernel.status !== 'busy') {
+    if (!this._shellBusy) {
       return;
     }
     const op = this._newOp(label);
@@ -549,14 +552,12 @@ export class KernelBridge implements IDisposable {
       await Promise.race([
         op.promise,
         new Promise<void>(resolve => {
-          const onStatus = (_: unknown, s: Kernel.Status): void => {
-            if (s !== 'busy') {
-              this._kernel.statusChanged.disconnect(onStatus);
-              resolve();
-            }
+          const onIdle = (): void => {
+            this._shellIdle.disconnect(onIdle);
+            resolve();
           };
-          this._kernel.statusChanged.connect(onStatus);
-          op.promise.catch(() => this._kernel.statusChanged.disconnect(onStatus));
+          this._shellIdle.connect(onIdle);
+          op.promise.catch(() => this._shellIdle.disconnect(onIdle));
         })
       ]);
     } finally {
@@ -661,7 +662,7 @@ export class KernelBridge implements IDisposable {
   private _newOp(label: string): Op {
     const op = new Op(label, this._timeoutMs, () => this._emitActivity());
     this._ops.add(op);
-    if (this._kernel.status === 'idle') {
+    if (!this._shellBusy && this._kernel.status === 'idle') {
       op.armGuard();
     }
     this._emitActivity();
@@ -697,11 +698,28 @@ export class KernelBridge implements IDisposable {
   }
 
   private _onStatus(_: Kernel.IKernelConnection, status: Kernel.Status): void {
-    if (status === 'restarting' || status === 'autorestarting') {
+    if (status === 'restarting') {
+      // A restart the user asked for, or (when 'autorestarting' follows at once, as
+      // @jupyterlab/services reports a server-side restart after a kernel died) a death.
       this._dropComm();
+      this._shellBusy = false;
+      this._autoRestart = false;
+      setTimeout(() => {
+        if (this._autoRestart) {
+          return;
+        }
+        this._failAll(
+          'restarted',
+          "The kernel restarted before the request finished. Nothing in the panel was changed; the kernel's variables are gone, so run the cells again."
+        );
+      }, 0);
+    } else if (status === 'autorestarting') {
+      this._autoRestart = true;
+      this._dropComm();
+      this._shellBusy = false;
       this._failAll(
-        'restarted',
-        "The kernel restarted before the request finished. Nothing in the panel was changed; the kernel's variables are gone, so run the cells again."
+        'dead',
+        "The kernel died before the request finished and the server restarted it. Nothing in the panel was changed; the kernel's variables are gone, so run the cells again."
       );
     } else if (status === 'dead') {
       this._dropComm();
@@ -709,14 +727,34 @@ export class KernelBridge implements IDisposable {
         'dead',
         'The kernel died before the request finished. Nothing in the panel was changed; restart the kernel and run the cells again.'
       );
-    } else if (status === 'idle') {
-      for (const op of this._ops) {
-        op.armGuard();
-      }
-    } else if (status === 'busy') {
+    }
+  }
+
+  /**
+   * Tracks the main shell's busy/idle from iopub status messages, ignoring those of kernel
+   * subshells (other comms may run there while the main shell is busy), which the
+   * connection's own `status` mixes in.
+   */
+  private _onIOPub(_: Kernel.IKernelConnection, msg: KernelMessage.IIOPubMessage): void {
+    if (msg.header.msg_type !== 'status') {
+      return;
+    }
+    const parent = msg.parent_header as Partial<KernelMessage.IHeader> & { subshell_id?: unknown };
+    if (parent && parent.subshell_id !== undefined && parent.subshell_id !== null) {
+      return;
+    }
+    const s = (msg.content as { execution_state?: string }).execution_state;
+    if (s === 'busy') {
+      this._shellBusy = true;
       for (const op of this._ops) {
         op.cancelGuard();
       }
+    } else if (s === 'idle') {
+      this._shellBusy = false;
+      for (const op of this._ops) {
+        op.armGuard();
+      }
+      this._shellIdle.emit(undefined);
     }
   }
 
@@ -803,6 +841,12 @@ export class KernelBridge implements IDisposable {
         throw new BridgeError('comm-closed', 'The kernel has no comm support.');
       }
       const comm = this._kernel.createComm(COMM_TARGET);
+      // @jupyterlab/services 7.6 sends comm messages over a kernel subshell (JEP 91) by
+      // default, where they run in a thread beside the user's running cell. Perpend's reads
+      // and writes stay on the main shell instead: they queue behind the running cell and see
+      // the namespace between cells, never half-way through one. Set synchronously, before
+      // the comm's asynchronous subshell start-up checks it.
+      comm.commsOverSubshells = 'disabled' as CommsOverSubshells;
       this._comm = comm;
       const op = this._newOp('opening the data channel');
       try {
@@ -1210,7 +1254,7 @@ export class KernelBridge implements IDisposable {
       await Promise.all([worker(), worker(), worker()]);
       return { data: out, shape: head.shape, complex: head.complex, dtype: head.dtype };
     } finally {
-      this._evaluate(label, { r: `${HELPER_REF}.b64_close(${h})` }).catch(() => undefined);
+      this._release(`${HELPER_REF}.b64_close(${h})`);
     }
   }
 
@@ -1250,8 +1294,34 @@ export class KernelBridge implements IDisposable {
       }
       return r;
     } catch (e) {
-      this._evaluate(label, { r: `${HELPER_REF}.w_abort(${h})` }).catch(() => undefined);
+      this._release(`${HELPER_REF}.w_abort(${h})`);
       throw e;
+    }
+  }
+
+  /**
+   * Frees a staged transfer in the kernel: fire and forget, not tracked as activity (the
+   * helper also drops stale stages on its own).
+   */
+  private _release(expr: string): void {
+    if (this._disposed || this._kernel.isDisposed || this._kernel.status === 'dead') {
+      return;
+    }
+    try {
+      const f = this._kernel.requestExecute(
+        {
+          code: '',
+          silent: true,
+          store_history: false,
+          user_expressions: { r: expr },
+          allow_stdin: false,
+          stop_on_error: false
+        },
+        true
+      );
+      f.done.catch(() => undefined);
+    } catch {
+      // The connection is going away; the kernel side is dropped with it.
     }
   }
 
@@ -1273,6 +1343,9 @@ export class KernelBridge implements IDisposable {
   private _commHandlers = new Map<number, CommHandler>();
   private _req = 0;
   private _activityChanged = new Signal<this, KernelBridge.IActivity>(this);
+  private _shellIdle = new Signal<this, void>(this);
+  private _shellBusy = false;
+  private _autoRestart = false;
 }
 
 // ------------------------------------------------------------------- helpers (module)

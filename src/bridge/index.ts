@@ -4,5 +4,6 @@
  */
 export * from './bridge';
 export * from './errors';
+export { COMM_TARGET, HELPER_MODULE, HELPER_VERSION } from './helper';
 export * from './ledger';
 export * from './names';
