@@ -8,3 +8,4 @@ export * from './linalg';
 export * from './filters';
 export * from './metrics';
 export * from './dsp';
+export * from './subspace';

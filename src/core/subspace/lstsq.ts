@@ -1,0 +1,239 @@
+/**
+ * Linear least squares min‖A·x − b‖₂, real or complex, one or many right-hand sides.
+ *
+ * A·P = Q·R by rank-revealing QR (for m ≥ 2n, a plain blocked QR first, then the pivoted QR of
+ * the n×n R: the column norms, hence the pivots, are those of A — Golub & Van Loan, Matrix
+ * Computations 4e, §5.4.2 and §5.5). With numerical rank r:
+ *  - r = n: x = P·R⁻¹·(Qᴴb)(0:n) (Golub & Van Loan 4e §5.3.3, Algorithm 5.3.2);
+ *  - r < n: the complete orthogonal decomposition [R₁₁ R₁₂] = [L 0]·Zᴴ (from a QR of
+ *    [R₁₁ R₁₂]ᴴ) gives the minimum-norm solution x = P·Z·[L⁻¹c₁; 0] (Golub & Van Loan 4e
+ *    §5.5.2; Hanson & Lawson, Solving Least Squares Problems, ch. 14; LAPACK xGELSY).
+ * Rank deficiency is reported in the result, never thrown.
+ */
+import { Dense, toDense, type MatrixLike } from '../dense';
+import { dgeqrfCM, dormqrCM, zgeqrfCM, zunmqrCM } from '../linalg/householder';
+import { dgeqp3CM, zgeqp3CM } from '../linalg/pivoted';
+import { dtrsv, ztrsv } from '../linalg/triangular';
+import { checkNumber } from '../errors';
+
+export interface LeastSquaresResult {
+  /** n×p solution (a 1-D b gives n×1). Minimum-norm when rank < n. */
+  x: Dense;
+  /** Numerical rank of A. */
+  rank: number;
+  /** Tolerance used on |r_ii| (absolute). */
+  tol: number;
+  /** ‖b_j − A·x_j‖₂ for each right-hand side, measured. */
+  residualNorm: Float64Array;
+  /** |r_ii| of the rank-revealing QR. */
+  diagonal: Float64Array;
+}
+
+export interface LeastSquaresOptions {
+  /** Absolute tolerance on |r_ii| (default max(m, n)·ε·|r₁₁|). */
+  tol?: number;
+  /** Relative tolerance: tol = rtol·|r₁₁|, in [0, 1). */
+  rtol?: number;
+}
+
+/** Solves min‖A·x − b‖₂ (minimum-norm x when A is rank-deficient). */
+export function lstsq(
+  aIn: MatrixLike,
+  bIn: MatrixLike,
+  options: LeastSquaresOptions = {}
+): LeastSquaresResult {
+  const a0 = toDense('a', aIn);
+  const b0 = toDense('b', bIn);
+  const m = a0.rows;
+  const n = a0.cols;
+  if (m === 0 || n === 0) {
+    throw new RangeError(`a is empty (${m}x${n}); give at least one row and column`);
+  }
+  if (b0.rows !== m) {
+    throw new RangeError(`b has ${b0.rows} rows but a is ${m}x${n}; they must match`);
+  }
+  if (options.tol !== undefined) {
+    checkNumber('tol', options.tol);
+    if (options.tol < 0) {
+      throw new RangeError(`tol must be ≥ 0, got ${options.tol}`);
+    }
+  }
+  if (options.rtol !== undefined) {
+    checkNumber('rtol', options.rtol);
+    if (options.rtol < 0 || options.rtol >= 1) {
+      throw new RangeError(`rtol must be in [0, 1), got ${options.rtol}`);
+    }
+  }
+  const complex = a0.complex || b0.complex;
+  const a = complex && !a0.complex ? a0.toComplex().copy('F') : a0.copy('F');
+  const c = complex && !b0.complex ? b0.toComplex().copy('F') : b0.copy('F');
+  const p = c.cols;
+  const f = complex ? 2 : 1;
+  const geqrf = complex ? zgeqrfCM : dgeqrfCM;
+  const geqp3 = complex ? zgeqp3CM : dgeqp3CM;
+  const lda = m;
+  const perm = new Int32Array(n);
+  // R: the n'×n upper-trapezoidal factor to work with (column-major, ldr), c its rhs rows.
+  let rdata: Float64Array;
+  let ldr: number;
+  let rows: number; // rows of R (min(m, n))
+  let cTop: Float64Array; // rows×p right-hand side Qᴴb (top part), column-major
+  if (m >= 2 * n) {
+    const k = n;
+    const tau0 = new Float64Array(f * k);
+    geqrf(m, n, a.data, 0, lda, tau0, 0);
+    applyQh(complex, m, p, k, a.data, lda, tau0, c.data);
+    // R₀ (n×n) → pivoted QR
+    rdata = new Float64Array(f * n * n);
+    for (let j = 0; j < n; j++) {
+      for (let i = 0; i <= j; i++) {
+        copyEl(complex, a.data, i + j * lda, rdata, i + j * n);
+      }
+    }
+    ldr = n;
+    rows = n;
+    const tau1 = new Float64Array(f * n);
+    geqp3(n, n, rdata, 0, ldr, perm, tau1, 0);
+    cTop = new Float64Array(f * n * p);
+    for (let j = 0; j < p; j++) {
+      for (let i = 0; i < n; i++) {
+        copyEl(complex, c.data, i + j * m, cTop, i + j * n);
+      }
+    }
+    applyQh(complex, n, p, n, rdata, ldr, tau1, cTop);
+  } else {
+    const k = Math.min(m, n);
+    const tau = new Float64Array(f * k);
+    geqp3(m, n, a.data, 0, lda, perm, tau, 0);
+    applyQh(complex, m, p, k, a.data, lda, tau, c.data);
+    rdata = a.data;
+    ldr = lda;
+    rows = k;
+    cTop = new Float64Array(f * rows * p);
+    for (let j = 0; j < p; j++) {
+      for (let i = 0; i < rows; i++) {
+        copyEl(complex, c.data, i + j * m, cTop, i + j * rows);
+      }
+    }
+  }
+  const diag = new Float64Array(rows);
+  for (let i = 0; i < rows; i++) {
+    diag[i] = absEl(complex, rdata, i + i * ldr);
+  }
+  const tol =
+    options.tol ??
+    (options.rtol !== undefined
+      ? options.rtol * diag[0]
+      : Math.max(m, n) * Number.EPSILON * diag[0]);
+  let rank = 0;
+  while (rank < rows && diag[rank] > tol) {
+    rank++;
+  }
+  // z (n×p) in the permuted coordinates.
+  const z = new Float64Array(f * n * p);
+  const trsv = complex ? ztrsv : dtrsv;
+  if (rank === n) {
+    for (let j = 0; j < p; j++) {
+      for (let i = 0; i < n; i++) {
+        copyEl(complex, cTop, i + j * rows, z, i + j * n);
+      }
+      trsv('U', 'N', false, n, rdata, 1, ldr, 0, z, 1, j * n);
+    }
+  } else if (rank > 0) {
+    // [R₁₁ R₁₂]ᴴ (n×rank) = W·[L̃; 0]  ⇒  [R₁₁ R₁₂] = [L̃ᴴ 0]·Wᴴ.
+    const w = new Float64Array(f * n * rank);
+    for (let i = 0; i < rank; i++) {
+      for (let j = i; j < n; j++) {
+        // W(j, i) = conj(R(i, j))
+        const s = i + j * ldr;
+        const d = j + i * n;
+        if (complex) {
+          w[2 * d] = rdata[2 * s];
+          w[2 * d + 1] = -rdata[2 * s + 1];
+        } else {
+          w[d] = rdata[s];
+        }
+      }
+    }
+    const tauW = new Float64Array(f * rank);
+    geqrf(n, rank, w, 0, n, tauW, 0);
+    for (let j = 0; j < p; j++) {
+      // Solve L̃ᴴ·y = c₁ (L̃ upper in w, so L̃ᴴ is lower: trans 'C').
+      for (let i = 0; i < rank; i++) {
+        copyEl(complex, cTop, i + j * rows, z, i + j * n);
+      }
+      trsv('U', 'C', false, rank, w, 1, n, 0, z, 1, j * n);
+    }
+    // z ← W·[y; 0]
+    if (complex) {
+      zunmqrCM('N', n, p, rank, w, 0, n, tauW, 0, z, 0, n);
+    } else {
+      dormqrCM('N', n, p, rank, w, 0, n, tauW, 0, z, 0, n);
+    }
+  }
+  // x = P·z
+  const x = Dense.zeros([n, p], { complex, order: 'F' });
+  for (let j = 0; j < p; j++) {
+    for (let i = 0; i < n; i++) {
+      copyEl(complex, z, i + j * n, x.data, perm[i] + j * n);
+    }
+  }
+  const residualNorm = residuals(a0, b0, x, complex);
+  return { x, rank, tol, residualNorm, diagonal: diag };
+}
+
+function applyQh(
+  complex: boolean,
+  m: number,
+  p: number,
+  k: number,
+  a: Float64Array,
+  lda: number,
+  tau: Float64Array,
+  c: Float64Array
+) {
+  if (complex) {
+    zunmqrCM('C', m, p, k, a, 0, lda, tau, 0, c, 0, m);
+  } else {
+    dormqrCM('T', m, p, k, a, 0, lda, tau, 0, c, 0, m);
+  }
+}
+
+function copyEl(complex: boolean, src: Float64Array, s: number, dst: Float64Array, d: number) {
+  if (complex) {
+    dst[2 * d] = src[2 * s];
+    dst[2 * d + 1] = src[2 * s + 1];
+  } else {
+    dst[d] = src[s];
+  }
+}
+
+function absEl(complex: boolean, a: Float64Array, e: number): number {
+  return complex ? Math.hypot(a[2 * e], a[2 * e + 1]) : Math.abs(a[e]);
+}
+
+/** ‖b_j − A x_j‖₂ measured from the original data. */
+function residuals(a: Dense, b: Dense, x: Dense, complex: boolean): Float64Array {
+  const m = a.rows;
+  const n = a.cols;
+  const p = x.cols;
+  const out = new Float64Array(p);
+  for (let j = 0; j < p; j++) {
+    let s = 0;
+    for (let i = 0; i < m; i++) {
+      let rr = b.get(i, j);
+      let ri = b.getIm(i, j);
+      for (let q = 0; q < n; q++) {
+        const ar = a.get(i, q);
+        const ai = a.getIm(i, q);
+        const xr = x.get(q, j);
+        const xi = complex ? x.getIm(q, j) : 0;
+        rr -= ar * xr - ai * xi;
+        ri -= ar * xi + ai * xr;
+      }
+      s += rr * rr + ri * ri;
+    }
+    out[j] = Math.sqrt(s);
+  }
+  return out;
+}

@@ -1,0 +1,418 @@
+/**
+ * Projection of many vectors onto span(Q) and off it, y = Q(Qᴴx) or y = x − Q(Qᴴx), streaming
+ * over the vectors (the samples) in blocks, never forming the m×m projector (Golub & Van Loan,
+ * Matrix Computations 4e, §2.5.1, §5.4.1: P = QQᴴ, I − P for orthonormal Q). With an m×r basis,
+ * each vector costs 4mr flops (real) and only a block of r×B coefficients is held.
+ *
+ * The energy report gives, per basis direction k, E_k = Σ_j |q_kᴴ x_j|², whose sum is the removed
+ * (projected) energy because the q_k are orthonormal (Pythagoras).
+ */
+import { Dense, toDense, type MatrixLike } from '../dense';
+import { checkInteger, describe } from '../errors';
+import { orth } from './basis';
+import type { PivotedQROptions } from '../linalg/pivoted';
+
+const BLOCK = 64;
+
+/**
+ * Real kernel. Q is m×r (any strides), X and Y are m×n (columns are the vectors; any strides,
+ * Y may alias X). mode 'off' writes x − Q(Qᵀx), 'onto' writes Q(Qᵀx). energy (length r, or
+ * null) accumulates Σ_j (q_kᵀx_j)². Allocates its packed copy of Q and one block buffer at the
+ * entry only.
+ */
+export function dproject(
+  mode: 'off' | 'onto',
+  m: number,
+  n: number,
+  r: number,
+  Q: Float64Array,
+  sq1: number,
+  sq2: number,
+  oq: number,
+  X: Float64Array,
+  sx1: number,
+  sx2: number,
+  ox: number,
+  Y: Float64Array,
+  sy1: number,
+  sy2: number,
+  oy: number,
+  energy: Float64Array | null
+): void {
+  // Q packed row-major (row i's r coefficients contiguous) for the row sweep below.
+  const qr = new Float64Array(m * r);
+  for (let i = 0; i < m; i++) {
+    for (let k = 0; k < r; k++) {
+      qr[i * r + k] = Q[oq + i * sq1 + k * sq2];
+    }
+  }
+  const B = Math.min(BLOCK, Math.max(1, n));
+  const c = new Float64Array(r * B);
+  const t = new Float64Array(B);
+  const off = mode === 'off';
+  for (let j0 = 0; j0 < n; j0 += B) {
+    const nb = Math.min(B, n - j0);
+    c.fill(0, 0, r * B);
+    // c(k, b) = Σ_i q_ik x_i,j0+b, sweeping the rows of the block once.
+    for (let i = 0; i < m; i++) {
+      const xi = ox + i * sx1 + j0 * sx2;
+      const qi = i * r;
+      let k = 0;
+      for (; k + 4 <= r; k += 4) {
+        const q0 = qr[qi + k],
+          q1 = qr[qi + k + 1],
+          q2 = qr[qi + k + 2],
+          q3 = qr[qi + k + 3];
+        const c0 = k * B,
+          c1 = c0 + B,
+          c2 = c1 + B,
+          c3 = c2 + B;
+        for (let b = 0, e = xi; b < nb; b++, e += sx2) {
+          const v = X[e];
+          c[c0 + b] += q0 * v;
+          c[c1 + b] += q1 * v;
+          c[c2 + b] += q2 * v;
+          c[c3 + b] += q3 * v;
+        }
+      }
+      for (; k < r; k++) {
+        const q0 = qr[qi + k];
+        const c0 = k * B;
+        for (let b = 0, e = xi; b < nb; b++, e += sx2) {
+          c[c0 + b] += q0 * X[e];
+        }
+      }
+    }
+    if (energy) {
+      for (let k = 0; k < r; k++) {
+        let s = 0;
+        for (let b = 0; b < nb; b++) {
+          s += c[k * B + b] * c[k * B + b];
+        }
+        energy[k] += s;
+      }
+    }
+    // y_i = x_i − Σ_k q_ik c_k (or the sum itself for 'onto').
+    for (let i = 0; i < m; i++) {
+      const qi = i * r;
+      t.fill(0, 0, nb);
+      let k = 0;
+      for (; k + 4 <= r; k += 4) {
+        const q0 = qr[qi + k],
+          q1 = qr[qi + k + 1],
+          q2 = qr[qi + k + 2],
+          q3 = qr[qi + k + 3];
+        const c0 = k * B,
+          c1 = c0 + B,
+          c2 = c1 + B,
+          c3 = c2 + B;
+        for (let b = 0; b < nb; b++) {
+          t[b] += q0 * c[c0 + b] + q1 * c[c1 + b] + q2 * c[c2 + b] + q3 * c[c3 + b];
+        }
+      }
+      for (; k < r; k++) {
+        const q0 = qr[qi + k];
+        const c0 = k * B;
+        for (let b = 0; b < nb; b++) {
+          t[b] += q0 * c[c0 + b];
+        }
+      }
+      const xi = ox + i * sx1 + j0 * sx2;
+      const yi = oy + i * sy1 + j0 * sy2;
+      if (off) {
+        for (let b = 0; b < nb; b++) {
+          Y[yi + b * sy2] = X[xi + b * sx2] - t[b];
+        }
+      } else {
+        for (let b = 0; b < nb; b++) {
+          Y[yi + b * sy2] = t[b];
+        }
+      }
+    }
+  }
+}
+
+/** Complex kernel (interleaved; strides and offsets in complex elements): c = Qᴴx. */
+export function zproject(
+  mode: 'off' | 'onto',
+  m: number,
+  n: number,
+  r: number,
+  Q: Float64Array,
+  sq1: number,
+  sq2: number,
+  oq: number,
+  X: Float64Array,
+  sx1: number,
+  sx2: number,
+  ox: number,
+  Y: Float64Array,
+  sy1: number,
+  sy2: number,
+  oy: number,
+  energy: Float64Array | null
+): void {
+  const qr = new Float64Array(2 * m * r);
+  for (let i = 0; i < m; i++) {
+    for (let k = 0; k < r; k++) {
+      const s = 2 * (oq + i * sq1 + k * sq2);
+      qr[2 * (i * r + k)] = Q[s];
+      qr[2 * (i * r + k) + 1] = Q[s + 1];
+    }
+  }
+  const B = Math.min(BLOCK, Math.max(1, n));
+  const c = new Float64Array(2 * r * B);
+  const t = new Float64Array(2 * B);
+  const off = mode === 'off';
+  const dx = 2 * sx2;
+  for (let j0 = 0; j0 < n; j0 += B) {
+    const nb = Math.min(B, n - j0);
+    c.fill(0);
+    for (let i = 0; i < m; i++) {
+      const xi = 2 * (ox + i * sx1 + j0 * sx2);
+      for (let k = 0; k < r; k++) {
+        const qr0 = qr[2 * (i * r + k)];
+        const qi0 = -qr[2 * (i * r + k) + 1]; // conj(q)
+        const c0 = 2 * k * B;
+        for (let b = 0, e = xi; b < nb; b++, e += dx) {
+          const vr = X[e],
+            vi = X[e + 1];
+          c[c0 + 2 * b] += qr0 * vr - qi0 * vi;
+          c[c0 + 2 * b + 1] += qr0 * vi + qi0 * vr;
+        }
+      }
+    }
+    if (energy) {
+      for (let k = 0; k < r; k++) {
+        let s = 0;
+        for (let b = 0; b < 2 * nb; b++) {
+          s += c[2 * k * B + b] * c[2 * k * B + b];
+        }
+        energy[k] += s;
+      }
+    }
+    for (let i = 0; i < m; i++) {
+      t.fill(0);
+      for (let k = 0; k < r; k++) {
+        const qr0 = qr[2 * (i * r + k)];
+        const qi0 = qr[2 * (i * r + k) + 1];
+        const c0 = 2 * k * B;
+        for (let b = 0; b < 2 * nb; b += 2) {
+          const cr = c[c0 + b],
+            ci = c[c0 + b + 1];
+          t[b] += qr0 * cr - qi0 * ci;
+          t[b + 1] += qr0 * ci + qi0 * cr;
+        }
+      }
+      const xi = 2 * (ox + i * sx1 + j0 * sx2);
+      const yi = 2 * (oy + i * sy1 + j0 * sy2);
+      for (let b = 0; b < nb; b++) {
+        const xe = xi + b * dx;
+        const ye = yi + 2 * b * sy2;
+        Y[ye] = off ? X[xe] - t[2 * b] : t[2 * b];
+        Y[ye + 1] = off ? X[xe + 1] - t[2 * b + 1] : t[2 * b + 1];
+      }
+    }
+  }
+}
+
+export interface EnergyReport {
+  /** Σ|x|² over all vectors. */
+  inputEnergy: number;
+  /** Σ|y|² of the output (the residual for 'off', the projection for 'onto'). */
+  outputEnergy: number;
+  /** Energy in span(Q): Σ_k E_k. */
+  projectedEnergy: number;
+  /** Energy off span(Q): Σ|x − Q(Qᴴx)|², measured. */
+  residualEnergy: number;
+  /** 10·log10(input / residual): how much projecting off suppresses (Infinity if residual 0). */
+  suppressionDb: number;
+  /** Per basis direction k: E_k = Σ_j |q_kᴴ x_j|². */
+  directionEnergy: Float64Array;
+  /** Per direction: 10·log10(E_k / input), the share of the input along q_k in dB. */
+  directionShareDb: Float64Array;
+  /** Per direction: 10·log10(input / (input − E_k)), the suppression removing q_k alone gives. */
+  directionSuppressionDb: Float64Array;
+}
+
+export interface ProjectOptions extends PivotedQROptions {
+  /** The basis columns are already orthonormal: skip the rank-revealing QR. */
+  orthonormal?: boolean;
+  /**
+   * Which way the vectors run in x: 'columns' (x is m×N, each column a vector of length m) or
+   * 'rows' (x is N×m, e.g. K×N signals against a basis over the N samples). Default: whichever
+   * dimension of x equals the basis' m (columns when both do).
+   */
+  vectors?: 'columns' | 'rows';
+}
+
+export interface ProjectionResult {
+  /** Same shape (and C/F order when contiguous) as x. */
+  output: Dense;
+  /** The orthonormal basis used (m×rank). */
+  basis: Dense;
+  rank: number;
+  energy: EnergyReport;
+}
+
+function project(
+  mode: 'off' | 'onto',
+  basisIn: MatrixLike,
+  xIn: MatrixLike,
+  options: ProjectOptions
+): ProjectionResult {
+  const b = toDense('basis', basisIn);
+  const x0 = toDense('x', xIn);
+  const m = b.rows;
+  let vectors = options.vectors;
+  if (vectors !== undefined && vectors !== 'columns' && vectors !== 'rows') {
+    throw new RangeError(`vectors must be 'columns' or 'rows', got ${describe(vectors)}`);
+  }
+  if (vectors === undefined) {
+    vectors = x0.rows === m ? 'columns' : x0.cols === m ? 'rows' : undefined;
+  }
+  const xv = vectors === 'rows' ? x0.transpose() : x0;
+  if (vectors === undefined || xv.rows !== m) {
+    throw new RangeError(
+      `x is ${x0.rows}x${x0.cols} but the basis has ${m} rows; one dimension of x must be ${m}`
+    );
+  }
+  let q: Dense;
+  let rank: number;
+  if (options.orthonormal) {
+    q = b;
+    rank = b.cols;
+  } else {
+    const o = orth(b, options);
+    q = o.basis;
+    rank = o.rank;
+  }
+  const complex = q.complex || xv.complex;
+  const qq = complex && !q.complex ? q.toComplex() : q;
+  const xx = complex && !xv.complex ? xv.toComplex() : xv;
+  const outFull = Dense.zeros(x0.shape, {
+    complex,
+    order: x0.isFContiguous() && !x0.isCContiguous() ? 'F' : 'C'
+  });
+  const out = vectors === 'rows' ? outFull.transpose() : outFull;
+  const n = xx.cols;
+  checkInteger('rank', rank);
+  const energy = new Float64Array(rank);
+  (complex ? zproject : dproject)(
+    mode,
+    m,
+    n,
+    rank,
+    qq.data,
+    qq.strides[0],
+    qq.strides[1],
+    qq.offset,
+    xx.data,
+    xx.strides[0],
+    xx.strides[1],
+    xx.offset,
+    out.data,
+    out.strides[0],
+    out.strides[1],
+    out.offset,
+    energy
+  );
+  const inputEnergy = sumSquares(xx);
+  const outputEnergy = sumSquares(out);
+  let projected = 0;
+  for (const e of energy) {
+    projected += e;
+  }
+  const residual = mode === 'off' ? outputEnergy : Math.max(inputEnergy - outputEnergy, 0);
+  const share = new Float64Array(rank);
+  const supp = new Float64Array(rank);
+  for (let k = 0; k < rank; k++) {
+    share[k] = 10 * Math.log10(energy[k] / inputEnergy);
+    supp[k] = 10 * Math.log10(inputEnergy / Math.max(inputEnergy - energy[k], 0));
+  }
+  return {
+    output: outFull,
+    basis: q,
+    rank,
+    energy: {
+      inputEnergy,
+      outputEnergy,
+      projectedEnergy: projected,
+      residualEnergy: residual,
+      suppressionDb: 10 * Math.log10(inputEnergy / residual),
+      directionEnergy: energy,
+      directionShareDb: share,
+      directionSuppressionDb: supp
+    }
+  };
+}
+
+/**
+ * Projects x off span(basis): y = x − Q(Qᴴx), Q an orthonormal basis of span(basis) (found by
+ * rank-revealing QR unless `orthonormal`). Streams over the vectors; never forms QQᴴ.
+ */
+export function projectOff(
+  basis: MatrixLike,
+  x: MatrixLike,
+  options: ProjectOptions = {}
+): ProjectionResult {
+  return project('off', basis, x, options);
+}
+
+/** Projects x onto span(basis): y = Q(Qᴴx). See `projectOff`. */
+export function projectOnto(
+  basis: MatrixLike,
+  x: MatrixLike,
+  options: ProjectOptions = {}
+): ProjectionResult {
+  return project('onto', basis, x, options);
+}
+
+/** Σ|a_ij|² of a 1-D or 2-D array (any strides). */
+export function sumSquares(a: Dense): number {
+  const m = a.rows;
+  const n = a.cols;
+  const s0 = a.strides[0];
+  const s1 = a.ndim > 1 ? a.strides[1] : 0;
+  const d = a.data;
+  let s = 0;
+  for (let i = 0; i < m; i++) {
+    for (let j = 0; j < n; j++) {
+      const e = a.offset + i * s0 + j * s1;
+      if (a.complex) {
+        s += d[2 * e] * d[2 * e] + d[2 * e + 1] * d[2 * e + 1];
+      } else {
+        s += d[e] * d[e];
+      }
+    }
+  }
+  return s;
+}
+
+/**
+ * Suppression of `after` relative to `before` (same data, e.g. before and after projecting off
+ * an interference subspace): energies and 10·log10(E_before / E_after) in dB, in total and per
+ * row (channel or trial; for a 1-D signal there is one row).
+ */
+export function suppression(
+  beforeIn: MatrixLike,
+  afterIn: MatrixLike
+): { before: number; after: number; db: number; perRowDb: Float64Array } {
+  const before = toDense('before', beforeIn);
+  const after = toDense('after', afterIn);
+  if (before.rows !== after.rows || before.cols !== after.cols) {
+    throw new RangeError(
+      `before is ${before.rows}x${before.cols} but after is ${after.rows}x${after.cols}; they must match`
+    );
+  }
+  // A 1-D signal arrives as a column: report it as one row.
+  const b = before.cols === 1 ? before.transpose() : before;
+  const a = after.cols === 1 ? after.transpose() : after;
+  const perRow = new Float64Array(b.rows);
+  for (let i = 0; i < b.rows; i++) {
+    perRow[i] = 10 * Math.log10(sumSquares(b.row(i)) / sumSquares(a.row(i)));
+  }
+  const eb = sumSquares(b);
+  const ea = sumSquares(a);
+  return { before: eb, after: ea, db: 10 * Math.log10(eb / ea), perRowDb: perRow };
+}
