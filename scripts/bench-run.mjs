@@ -10,14 +10,25 @@ if (!entry || !entry.endsWith('.ts')) {
   console.error('usage: node scripts/bench-run.mjs bench/NAME.ts [--json]');
   process.exit(0);
 }
-const tsc = spawnSync(process.execPath, [path.join(root, 'node_modules/typescript/bin/tsc'), '-p', path.join(root, 'bench/tsconfig.json')], {
-  stdio: ['ignore', 'inherit', 'inherit']
-});
+const tsc = spawnSync(
+  process.execPath,
+  [
+    path.join(root, 'node_modules/typescript/bin/tsc'),
+    '-p',
+    path.join(root, 'bench/tsconfig.json')
+  ],
+  {
+    stdio: ['ignore', 'inherit', 'inherit']
+  }
+);
 if (tsc.status !== 0) {
   console.error('bench: compilation failed');
   process.exit(0);
 }
 const js = path.join(root, '.bench', entry.replace(/\.ts$/, '.js'));
-const run = spawnSync(process.execPath, ['--expose-gc', js, ...rest], { stdio: 'inherit', cwd: root });
+const run = spawnSync(process.execPath, ['--expose-gc', js, ...rest], {
+  stdio: 'inherit',
+  cwd: root
+});
 // Benchmarks report; they never fail the caller (DESIGN.md §9).
 process.exit(run.status === null ? 0 : 0);

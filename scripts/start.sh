@@ -14,6 +14,13 @@ export JUPYTER_CONFIG_DIR="$local_dir/config" JUPYTER_DATA_DIR="$local_dir/data"
 export JUPYTER_RUNTIME_DIR="$local_dir/runtime" IPYTHONDIR="$local_dir/ipython"
 export JUPYTERLAB_SETTINGS_DIR="$local_dir/settings" JUPYTERLAB_WORKSPACES_DIR="$local_dir/workspaces"
 
+# A quiet first start: no news prompt (the user can turn it on in the Settings Editor).
+news="$JUPYTERLAB_SETTINGS_DIR/@jupyterlab/apputils-extension/notification.jupyterlab-settings"
+if [ ! -f "$news" ]; then
+  mkdir -p "$(dirname "$news")"
+  echo '{ "fetchNews": "false" }' > "$news"
+fi
+
 port="${PORT:-8888}"
 token="${PERPEND_TOKEN:-$(.venv/bin/python -c 'import secrets; print(secrets.token_hex(24))')}"
 url="http://127.0.0.1:${port}/lab/tree/perpend-demo.ipynb?token=${token}"
@@ -25,5 +32,7 @@ Perpend is starting in JupyterLab. Open this URL (the demo notebook opens with i
     $url
 
 MSG
-exec .venv/bin/jupyter lab --no-browser --ip=127.0.0.1 --port="$port" --port-retries=0 \
+extra=()
+[ "$(id -u)" = 0 ] && extra+=(--allow-root)  # Jupyter refuses to run as root without it
+exec .venv/bin/jupyter lab "${extra[@]}" --no-browser --ip=127.0.0.1 --port="$port" --port-retries=0 \
   --IdentityProvider.token="$token" --ServerApp.root_dir="$root/demo"

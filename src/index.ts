@@ -8,6 +8,8 @@ import { INotebookTracker, NotebookActions, type NotebookPanel } from '@jupyterl
 import { ISettingRegistry } from '@jupyterlab/settingregistry';
 import { ITranslator, nullTranslator } from '@jupyterlab/translation';
 import { Signal } from '@lumino/signaling';
+import type { IDisposable } from '@lumino/disposable';
+import { SessionLedger, watchKernelExecutions } from './bridge';
 import { SourcesModel, type INotebookTarget } from './model/sources';
 import { PerpendSidebar } from './panel/sidebar';
 import { perpendIcon } from './panel/icons';
@@ -93,6 +95,10 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
       sources.setTarget(targetOf(panel));
     };
     tracker.currentChanged.connect(follow);
+    // Every notebook gets its ledger as soon as it opens, so executions in notebooks that are not
+    // current are recorded too.
+    tracker.widgetAdded.connect((_, panel) => void targetOf(panel));
+    tracker.forEach(panel => void targetOf(panel));
     follow();
 
     NotebookActions.executed.connect((_, args) => {
@@ -123,9 +129,27 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
 };
 
 namespace Private {
-  /** Adapts a NotebookPanel to what the sources model needs. */
+  /**
+   * Adapts a NotebookPanel to what the sources model needs, with a ledger of the executions its
+   * current kernel session produced (reset when the kernel changes or restarts).
+   */
   export function notebookTarget(panel: NotebookPanel): INotebookTarget {
+    const ledger = new SessionLedger();
+    let watcher: IDisposable | null = null;
+    const watch = (): void => {
+      watcher?.dispose();
+      watcher = null;
+      ledger.reset();
+      const kernel = panel.sessionContext.session?.kernel;
+      if (kernel) {
+        watcher = watchKernelExecutions(kernel, ledger);
+      }
+    };
+    panel.sessionContext.kernelChanged.connect(watch);
+    panel.disposed.connect(() => watcher?.dispose());
+    watch();
     return {
+      ledger,
       get name() {
         return panel.context.path;
       },

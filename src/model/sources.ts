@@ -1,7 +1,7 @@
 import { Signal, type ISignal } from '@lumino/signaling';
 import type { IDisposable } from '@lumino/disposable';
 import type { Kernel } from '@jupyterlab/services';
-import { KernelBridge, type ArrayInfo } from '../bridge';
+import { KernelBridge, type ArrayInfo, type SessionLedger } from '../bridge';
 
 /**
  * What the sources model needs to know of a notebook: its code cells and its kernel. The plugin
@@ -14,6 +14,11 @@ export interface INotebookTarget {
   cells(): ReadonlyArray<SourcesModel.ICellRef>;
   /** The kernel connection, or null when there is none. */
   readonly kernel: Kernel.IKernelConnection | null;
+  /**
+   * The (cell id, execution count) pairs this kernel session produced; when given, only those
+   * cell results are trusted (after a restart the notebook's counts point at other objects).
+   */
+  readonly ledger?: SessionLedger;
 }
 
 /**
@@ -26,6 +31,7 @@ export interface INotebookTarget {
 export class SourcesModel implements IDisposable {
   constructor(options: SourcesModel.IOptions = {}) {
     this._bridgeOptions = options.bridgeOptions ?? {};
+    this._createBridge = options.createBridge ?? (o => new KernelBridge(o));
   }
 
   /** Emitted when anything shown changes. */
@@ -49,14 +55,18 @@ export class SourcesModel implements IDisposable {
     return this._variables;
   }
   /** The bridge to the target's current kernel (created on demand), or null. */
-  get bridge(): KernelBridge | null {
+  get bridge(): SourcesModel.IBridge | null {
     const kernel = this._target?.kernel ?? null;
     if (!kernel) {
       return null;
     }
     if (!this._bridge || this._bridgeKernel !== kernel) {
       this._bridge?.dispose();
-      this._bridge = new KernelBridge({ ...this._bridgeOptions, kernel });
+      this._bridge = this._createBridge({
+        ...this._bridgeOptions,
+        kernel,
+        ledger: this._target?.ledger
+      });
       this._bridgeKernel = kernel;
     }
     return this._bridge;
@@ -183,7 +193,8 @@ export class SourcesModel implements IDisposable {
 
   private _bridgeOptions: Partial<KernelBridge.IOptions>;
   private _target: INotebookTarget | null = null;
-  private _bridge: KernelBridge | null = null;
+  private readonly _createBridge: (options: KernelBridge.IOptions) => SourcesModel.IBridge;
+  private _bridge: SourcesModel.IBridge | null = null;
   private _bridgeKernel: Kernel.IKernelConnection | null = null;
   private _cellResults: ArrayInfo[] = [];
   private _variables: ArrayInfo[] = [];
@@ -201,8 +212,15 @@ export namespace SourcesModel {
     cellId: string;
     executionCount: number | null;
   }
+  /** What the model uses of a bridge (KernelBridge; tests may pass a stand-in). */
+  export type IBridge = Pick<
+    KernelBridge,
+    'listCellResults' | 'listVariables' | 'readArray' | 'writeArray' | 'dispose'
+  >;
   export interface IOptions {
     bridgeOptions?: Partial<KernelBridge.IOptions>;
+    /** Makes the bridge for a kernel; defaults to `new KernelBridge(options)`. */
+    createBridge?: (options: KernelBridge.IOptions) => IBridge;
   }
 }
 

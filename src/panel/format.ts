@@ -1,8 +1,8 @@
 /** Small display formatters shared by the panel's views (pure functions, no DOM). */
 
-/** "48000", "4 × 48000", "scalar" for []. */
+/** "48000", "4 × 48000" (narrow no-break spaces around ×), "scalar" for []. */
 export function formatShape(shape: ReadonlyArray<number>): string {
-  return shape.length === 0 ? 'scalar' : shape.join(' × ');
+  return shape.length === 0 ? 'scalar' : shape.join('\u202f×\u202f');
 }
 
 /** Bytes in binary units, three significant digits: "768 B", "375 KiB", "1.50 MiB". */

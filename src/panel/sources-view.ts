@@ -158,7 +158,10 @@ namespace Private {
       const row = body.insertRow();
       row.className = 'pp-ArrayTable-row';
       row.dataset.label = info.label;
-      row.title = info.notes.join('\n');
+      row.title = [
+        `${info.label}: ${formatShape(info.shape)} ${info.dtype}, ${formatBytes(info.bytes)}`,
+        ...info.notes
+      ].join('\n');
       const cells = [info.label, formatShape(info.shape), info.dtype, formatBytes(info.bytes)];
       const classes = [
         'pp-ArrayTable-label',

@@ -54,7 +54,10 @@ export class LabBrowser {
     page.on('pageerror', err => this.faults.push({ kind: 'pageerror', text: String(err) }));
     page.on('response', r => {
       if (r.status() >= 400) {
-        this.faults.push({ kind: 'http', text: `${r.status()} ${r.request().method()} ${r.url()}` });
+        this.faults.push({
+          kind: 'http',
+          text: `${r.status()} ${r.request().method()} ${r.url()}`
+        });
       }
     });
   }

@@ -29,7 +29,9 @@ test('the demo arrays are listed in the Perpend panel with their shapes and dtyp
 
   const rows = sidebar.locator('.pp-SourcesView-section[data-kind="cells"] .pp-ArrayTable-row');
   await page.waitForFunction(
-    () => document.querySelectorAll('#perpend-sidebar [data-kind="cells"] .pp-ArrayTable-row').length >= 4,
+    () =>
+      document.querySelectorAll('#perpend-sidebar [data-kind="cells"] .pp-ArrayTable-row').length >=
+      4,
     undefined,
     { timeout: 60000 }
   );
@@ -41,12 +43,16 @@ test('the demo arrays are listed in the Perpend panel with their shapes and dtyp
     }))
   );
   // The shapes and dtypes numpy reports for the demo (demo/build_demo_notebook.py).
-  const pairs = listed.map(r => `${r.shape} ${r.dtype}`).sort();
-  expect(pairs).toEqual(['32000 float64', '32000 float64', '4 × 32000 float64', '4000 complex128'].sort());
+  const pairs = listed.map(r => `${r.shape.replace(/\u202f/g, ' ')} ${r.dtype}`).sort();
+  expect(pairs).toEqual(
+    ['32000 float64', '32000 float64', '4 × 32000 float64', '4000 complex128'].sort()
+  );
   // The summary cell returns a dict, not an array: it must not be listed.
   expect(listed.length).toBe(4);
 
-  const variables = sidebar.locator('.pp-SourcesView-section[data-kind="variables"] .pp-ArrayTable-row');
+  const variables = sidebar.locator(
+    '.pp-SourcesView-section[data-kind="variables"] .pp-ArrayTable-row'
+  );
   const names = await variables.evaluateAll(trs => trs.map(tr => tr.getAttribute('data-label')));
   for (const name of ['reference', 'primary', 'rail', 'baseband', 't']) {
     expect(names).toContain(name);
@@ -67,7 +73,10 @@ test('the settings schema shows in the Settings Editor', async () => {
   const entry = page.locator('.jp-PluginList-entry', { hasText: 'Perpend' }).first();
   await entry.waitFor({ state: 'visible', timeout: 30000 });
   await entry.click();
-  await page.getByText('Kernel request timeout (s)').first().waitFor({ state: 'visible', timeout: 30000 });
+  await page
+    .getByText('Kernel request timeout (s)')
+    .first()
+    .waitFor({ state: 'visible', timeout: 30000 });
   await lab.screenshot('settings-editor');
   expect(lab.unexpectedFaults(ALLOW)).toEqual([]);
 });

@@ -4,12 +4,32 @@ import type { Page } from 'playwright-core';
 export async function openNotebook(page: Page, url: string): Promise<void> {
   await page.goto(url);
   await page.locator('.jp-NotebookPanel').first().waitFor({ state: 'visible', timeout: 60000 });
+  // JupyterLab may ask which kernel to start; a user accepts the preferred one.
+  const deadline = Date.now() + 60000;
+  for (;;) {
+    const dialog = page.locator('.jp-Dialog', { hasText: 'Select Kernel' });
+    if (await dialog.isVisible()) {
+      await dialog.locator('.jp-Dialog-button.jp-mod-accept').click();
+    }
+    const status = (
+      await page.locator('.jp-StatusBar-Widget', { hasText: '|' }).allTextContents()
+    ).join(' ');
+    if (/\|\s*Idle/.test(status)) {
+      break;
+    }
+    if (Date.now() > deadline) {
+      throw new Error(`the kernel did not become idle within 60 s (status bar: ${status})`);
+    }
+    await page.waitForTimeout(250);
+  }
   await waitKernelIdle(page);
 }
 
 export async function waitKernelIdle(page: Page, timeout = 60000): Promise<void> {
   await page
-    .locator('.jp-NotebookPanel:not(.lm-mod-hidden) .jp-Notebook-ExecutionIndicator[data-status="idle"]')
+    .locator(
+      '.jp-NotebookPanel:not(.lm-mod-hidden) .jp-Notebook-ExecutionIndicator[data-status="idle"]'
+    )
     .first()
     .waitFor({ state: 'attached', timeout });
 }
@@ -29,7 +49,11 @@ export async function runAllCells(page: Page): Promise<void> {
   // Every code cell gets a number and none stays queued ([*]).
   await page.waitForFunction(
     () => {
-      const prompts = Array.from(document.querySelectorAll('.jp-NotebookPanel:not(.lm-mod-hidden) .jp-CodeCell .jp-InputPrompt'));
+      const prompts = Array.from(
+        document.querySelectorAll(
+          '.jp-NotebookPanel:not(.lm-mod-hidden) .jp-CodeCell .jp-InputPrompt'
+        )
+      );
       return prompts.length > 0 && prompts.every(p => /\[\d+\]/.test(p.textContent ?? ''));
     },
     undefined,
@@ -49,10 +73,28 @@ export async function palette(page: Page, command: string): Promise<void> {
     .click();
 }
 
-export async function setTheme(page: Page, theme: 'JupyterLab Light' | 'JupyterLab Dark'): Promise<void> {
+export async function setTheme(
+  page: Page,
+  theme: 'JupyterLab Light' | 'JupyterLab Dark'
+): Promise<void> {
+  const already = await page.evaluate(t => document.body.dataset.jpThemeName === t, theme);
+  if (already) {
+    return;
+  }
+  const before = await page.evaluate(() =>
+    getComputedStyle(document.body).getPropertyValue('--jp-layout-color1').trim()
+  );
   await menu(page, 'Settings', 'Theme', theme);
-  await page.waitForFunction(t => document.body.dataset.jpThemeName === t, theme, { timeout: 30000 });
-  await page.waitForTimeout(500);
+  await page.waitForFunction(t => document.body.dataset.jpThemeName === t, theme, {
+    timeout: 30000
+  });
+  // The theme's stylesheet loads after the attribute changes: wait until its colours apply.
+  await page.waitForFunction(
+    b => getComputedStyle(document.body).getPropertyValue('--jp-layout-color1').trim() !== b,
+    before,
+    { timeout: 30000 }
+  );
+  await page.waitForTimeout(300);
 }
 
 function escape(text: string): string {

@@ -42,7 +42,17 @@ export async function startLab(): Promise<{ state: ILabState; child: ChildProces
   fs.rmSync(home, { recursive: true, force: true });
   const rootDir = path.join(home, 'root');
   fs.mkdirSync(rootDir, { recursive: true });
-  fs.copyFileSync(path.join(REPO, 'demo', 'perpend-demo.ipynb'), path.join(rootDir, 'perpend-demo.ipynb'));
+  fs.copyFileSync(
+    path.join(REPO, 'demo', 'perpend-demo.ipynb'),
+    path.join(rootDir, 'perpend-demo.ipynb')
+  );
+  // No news prompt in the screenshots (a JupyterLab user setting, written where this server reads).
+  const notification = path.join(home, 'settings', '@jupyterlab', 'apputils-extension');
+  fs.mkdirSync(notification, { recursive: true });
+  fs.writeFileSync(
+    path.join(notification, 'notification.jupyterlab-settings'),
+    JSON.stringify({ fetchNews: 'false' })
+  );
   const port = await freePort();
   const token = crypto.randomBytes(24).toString('hex');
   const env = {
@@ -67,7 +77,9 @@ export async function startLab(): Promise<{ state: ILabState; child: ChildProces
       `--IdentityProvider.token=${token}`,
       `--ServerApp.root_dir=${rootDir}`,
       '--LabApp.news_url=',
-      '--LabApp.check_for_updates_class=jupyterlab.NeverCheckForUpdate'
+      '--LabApp.check_for_updates_class=jupyterlab.NeverCheckForUpdate',
+      // CI and the development machines run as root.
+      ...(process.getuid?.() === 0 ? ['--allow-root'] : [])
     ],
     { env, stdio: ['ignore', log, log], detached: true }
   );
@@ -75,7 +87,9 @@ export async function startLab(): Promise<{ state: ILabState; child: ChildProces
   const deadline = Date.now() + 60000;
   for (;;) {
     if (child.exitCode !== null) {
-      throw new Error(`jupyter lab exited with ${child.exitCode}; see test-artifacts/e2e-jupyter.log`);
+      throw new Error(
+        `jupyter lab exited with ${child.exitCode}; see test-artifacts/e2e-jupyter.log`
+      );
     }
     try {
       const r = await fetch(`${baseUrl}/api/status?token=${token}`);

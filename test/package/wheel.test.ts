@@ -14,7 +14,9 @@ const VENV = path.join(OUT, 'venv');
 function run(cmd: string, args: string[], env: NodeJS.ProcessEnv = process.env): string {
   const r = spawnSync(cmd, args, { cwd: REPO, encoding: 'utf8', env, maxBuffer: 64 << 20 });
   if (r.status !== 0) {
-    throw new Error(`${path.basename(cmd)} ${args.join(' ')} failed (${r.status}):\n${r.stdout}\n${r.stderr}`);
+    throw new Error(
+      `${path.basename(cmd)} ${args.join(' ')} failed (${r.status}):\n${r.stdout}\n${r.stderr}`
+    );
   }
   return r.stdout + r.stderr;
 }
@@ -26,7 +28,16 @@ beforeAll(() => {
   fs.mkdirSync(OUT, { recursive: true });
   expect(fs.existsSync(path.join(REPO, 'perpend', 'labextension', 'package.json'))).toBe(true);
   // --retries 0: only the machine's local wheel store is reachable here (DESIGN.md §5).
-  run(path.join(REPO, '.venv', 'bin', 'pip'), ['wheel', '.', '--no-deps', '--retries', '0', '-q', '-w', OUT]);
+  run(path.join(REPO, '.venv', 'bin', 'pip'), [
+    'wheel',
+    '.',
+    '--no-deps',
+    '--retries',
+    '0',
+    '-q',
+    '-w',
+    OUT
+  ]);
   wheel = fs.readdirSync(OUT).find(f => f.endsWith('.whl')) ?? '';
 });
 
@@ -40,7 +51,9 @@ test('the wheel holds the prebuilt extension in its shared data', () => {
   const data = 'perpend-0.1.0.data/data/share/jupyter/labextensions/perpend/';
   expect(listing).toContain(`${data}package.json`);
   expect(listing).toContain(`${data}install.json`);
-  expect(listing).toMatch(new RegExp(`${data.replace(/[.]/g, '\\.')}static/remoteEntry\\.[0-9a-f]+\\.js`));
+  expect(listing).toMatch(
+    new RegExp(`${data.replace(/[.]/g, '\\.')}static/remoteEntry\\.[0-9a-f]+\\.js`)
+  );
   expect(listing).toContain(`${data}schemas/perpend/plugin.json`);
 });
 
@@ -48,7 +61,11 @@ test('installed into a fresh venv with JupyterLab, it is listed as enabled and O
   run('python3', ['-m', 'venv', VENV]);
   const pip = path.join(VENV, 'bin', 'pip');
   run(pip, ['install', '--retries', '0', '-q', 'jupyterlab==4.6.4', path.join(OUT, wheel)]);
-  const env = { ...process.env, JUPYTER_CONFIG_DIR: path.join(OUT, 'config'), JUPYTER_DATA_DIR: path.join(OUT, 'data') };
+  const env = {
+    ...process.env,
+    JUPYTER_CONFIG_DIR: path.join(OUT, 'config'),
+    JUPYTER_DATA_DIR: path.join(OUT, 'data')
+  };
   const listing = run(path.join(VENV, 'bin', 'jupyter'), ['labextension', 'list'], env);
   expect(listing).toMatch(/perpend v0\.1\.0 enabled\s+.*OK/);
 });
