@@ -7,3 +7,5 @@ export * from './errors';
 export { COMM_TARGET, HELPER_MODULE, HELPER_VERSION } from './helper';
 export * from './ledger';
 export * from './names';
+export * from './parsers';
+export { decodeBase64Into, encodeBase64, base64DecodedLength } from './base64';
