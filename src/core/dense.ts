@@ -10,13 +10,13 @@
  *
  * ml-matrix's `Matrix` is accepted and returned at the API edge (`fromMatrix`, `toMatrix`).
  */
-import { Matrix } from 'ml-matrix';
+import { Matrix, type AbstractMatrix } from 'ml-matrix';
 import { checkInteger, describe } from './errors';
 
 export type Order = 'C' | 'F';
 
 /** Anything the friendly entry points accept as a matrix. */
-export type MatrixLike = Dense | Matrix | number[][];
+export type MatrixLike = Dense | AbstractMatrix | number[][];
 
 export class Dense {
   /** The underlying storage (interleaved re, im when `complex`). */
@@ -171,7 +171,7 @@ export class Dense {
   }
 
   /** From ml-matrix (real part, and optionally an imaginary part of the same size). */
-  static fromMatrix(re: Matrix, im?: Matrix, order: Order = 'F'): Dense {
+  static fromMatrix(re: AbstractMatrix, im?: AbstractMatrix, order: Order = 'F'): Dense {
     if (!Matrix.isMatrix(re)) {
       throw new TypeError(`re must be an ml-matrix Matrix, got ${describe(re)}`);
     }
@@ -491,7 +491,7 @@ export function toDense(name: string, a: unknown): Dense {
     d = a.asColumn();
   } else if (Matrix.isMatrix(a)) {
     try {
-      d = Dense.fromMatrix(a as Matrix);
+      d = Dense.fromMatrix(a as AbstractMatrix);
     } catch (e) {
       throw rename(e, name);
     }
