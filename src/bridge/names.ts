@@ -53,9 +53,10 @@ export const PYTHON_KEYWORDS: ReadonlySet<string> = new Set([
 // Python's identifier grammar: XID_Start (plus "_") followed by XID_Continue, checked on the
 // NFKC form (PEP 3131). JavaScript's Unicode property escapes know ID_Start/ID_Continue; the
 // XID variants differ from them only on a handful of characters that NFKC maps away, and the
-// final check below runs on the normalised text, as Python does.
-const IDENTIFIER =
-  /^[\p{ID_Start}_][\p{ID_Continue}\u00B7\u0387\u1369-\u1371\u19DA\u200C\u200D]*$/u;
+// final check below runs on the normalised text, as Python does. Python may know an older
+// Unicode than the browser: a character newer than the kernel's Python is accepted here and
+// refused by the kernel's own check (the helper validates every name again).
+const IDENTIFIER = /^[\p{ID_Start}_][\p{ID_Continue}\u00B7\u0387\u1369-\u1371\u19DA]*$/u;
 
 /** Longest name accepted (a sanity bound; Python itself has none). */
 export const MAX_NAME_LENGTH = 200;
@@ -79,7 +80,8 @@ export function normalizeIdentifier(raw: unknown): NameCheck {
   if (name.length > MAX_NAME_LENGTH) {
     return { ok: false, reason: `the name is longer than ${MAX_NAME_LENGTH} characters` };
   }
-  if (!IDENTIFIER.test(name)) {
+  // Unicode 15.1 added ZWNJ/ZWJ to ID_Continue; Python (Unicode ≤ 15.0) refuses them.
+  if (!IDENTIFIER.test(name) || /[\u200C\u200D]/.test(name)) {
     return {
       ok: false,
       reason: `${JSON.stringify(raw.slice(0, 40))} is not a Python identifier (letters, digits and _ only, not starting with a digit)`
