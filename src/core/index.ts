@@ -9,3 +9,4 @@ export * from './filters';
 export * from './metrics';
 export * from './dsp';
 export * from './subspace';
+export * from './stats';
