@@ -430,6 +430,10 @@ export class KernelBridge implements IDisposable {
     if (parts.length > 4) {
       throw new RangeError(`path must have at most 4 parts, got ${parts.length}`);
     }
+    const dunder = parts.slice(1).find(p => p.startsWith('__'));
+    if (dunder !== undefined) {
+      throw new TypeError(`path must not reach private attributes, got ${JSON.stringify(dunder)}`);
+    }
     const expr = `${HELPER_REF}.read_scalar([${parts.map(pyStringLiteral).join(', ')}])`;
     const r = await this._evaluate(`reading ${parts.join('.')}`, { r: expr });
     const v = parseJsonExpression(r.r, `reading ${parts.join('.')}`);

@@ -21,7 +21,8 @@ import sys, json, base64, keyword, unicodedata, builtins, types
 VERSION = @@VERSION@@
 TARGET = "@@TARGET@@"
 LIMB = 2 ** 53
-MAX_LIST = 1000000
+MAX_LIST = 10000000
+MAX_LIST_LISTED = 200000
 
 class Text(object):
     __slots__ = ("s",)
@@ -49,20 +50,42 @@ def valid_name(n):
 def np_mod():
     return sys.modules.get("numpy")
 
-def as_array(v, convert_lists):
+PLAIN = (int, float, complex, bool)
+
+def plain(x):
+    # Exact built-in number types, or numpy's own scalars: nothing whose methods the user
+    # wrote (a subclass's __float__ or an object's __array__ would run user code).
+    t = type(x)
+    return t in PLAIN or (t.__module__ == "numpy" and isinstance(x, np_mod().generic))
+
+def plain_list(v, limit):
+    if len(v) == 0 or len(v) > limit:
+        return False
+    if type(v[0]) in (list, tuple):
+        total = 0
+        for row in v:
+            if type(row) not in (list, tuple) or len(row) == 0:
+                return False
+            total += len(row)
+            if total > limit:
+                return False
+            for x in row:
+                if not plain(x):
+                    return False
+        return True
+    for x in v:
+        if not plain(x):
+            return False
+    return True
+
+def as_array(v, convert_lists, limit=MAX_LIST):
     np = np_mod()
-    if isinstance(v, (list, tuple)):
+    if type(v) in (list, tuple):
         if not convert_lists:
             return None
         if np is None:
             import numpy as np
-        if len(v) == 0 or len(v) > MAX_LIST:
-            return None
-        first = v[0]
-        if isinstance(first, (list, tuple)):
-            if len(first) == 0 or len(v) * len(first) > MAX_LIST:
-                return None
-        elif isinstance(first, (str, bytes, dict)) or first is None:
+        if not plain_list(v, limit):
             return None
         try:
             a = np.asarray(v)
@@ -72,17 +95,18 @@ def as_array(v, convert_lists):
             return None
         return a
     if np is not None and isinstance(v, np.ndarray):
-        return v
+        # A subclass is read as its plain ndarray data, without calling its own methods.
+        return v if type(v) is np.ndarray else np.asarray(v)
     return None
 
 def info(v, convert_lists=True):
-    a = as_array(v, convert_lists)
+    a = as_array(v, convert_lists, MAX_LIST_LISTED)
     if a is None or a.ndim == 0 or a.dtype.kind not in "biufc":
         return None
     notes = []
-    if isinstance(v, (list, tuple)):
-        notes.append("list" if isinstance(v, list) else "tuple")
-    elif type(a).__name__ != "ndarray" or type(a).__module__ != "numpy":
+    if type(v) in (list, tuple):
+        notes.append("list" if type(v) is list else "tuple")
+    elif type(v).__name__ != "ndarray" or type(v).__module__ != "numpy":
         notes.append("subclass")
     if a.dtype.byteorder == ">":
         notes.append("big-endian")
@@ -199,6 +223,12 @@ def attr_path(ref):
     return v
 
 def read_scalar(ref):
+    try:
+        return read_scalar_(ref)
+    except Err as e:
+        return reply({"error": e.code, "detail": e.detail})
+
+def read_scalar_(ref):
     v = attr_path(ref)
     np = np_mod()
     if np is not None and isinstance(v, np.ndarray):
