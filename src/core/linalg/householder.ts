@@ -13,7 +13,7 @@
  * Kernels: `geqrf(m, n, A, sa1, sa2, oa, tau, otau, complex)` and friends take any strides; they
  * pack non-column-major input into a column-major copy once at the entry.
  */
-import { dlarfbLeft, dlarfg, dlarft, zlarfbLeft, zlarfg, zlarft } from './reflector';
+import { dgemmTN, dlarfbLeft, dlarfg, dlarft, zlarfbLeft, zlarfg, zlarft } from './reflector';
 
 /** Panel width of the blocked algorithms (tuned on the benchmark machine). */
 export const QR_BLOCK = 32;
@@ -154,18 +154,8 @@ function dqrPanel(
       vp[ov + i + j * ldv] = 0;
     }
   }
-  // T₁₂ = −T₁·(V₁ᵀV₂)·T₂ (V₂ is zero above row n1).
-  for (let j = 0; j < k2; j++) {
-    const v2 = ov + (n1 + j) * ldv;
-    for (let p = 0; p < n1; p++) {
-      const v1 = ov + p * ldv;
-      let s = 0;
-      for (let i = n1 + j; i < m; i++) {
-        s += vp[v1 + i] * vp[v2 + i];
-      }
-      t[ott + p + (n1 + j) * ldt] = s;
-    }
-  }
+  // T₁₂ = −T₁·(V₁ᵀV₂)·T₂ (V₂ is zero above row n1, so rows n1: suffice).
+  dgemmTN(n1, k2, m - n1, vp, ov + n1, ldv, vp, ov + n1 + n1 * ldv, ldv, t, ott + n1 * ldt, ldt);
   for (let j = 0; j < k2; j++) {
     const c = ott + (n1 + j) * ldt;
     for (let p = 0; p < n1; p++) {

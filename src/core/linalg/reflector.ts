@@ -175,6 +175,144 @@ export function hypot3(a: number, b: number, c: number): number {
   return w * Math.sqrt((x / w) ** 2 + (y / w) ** 2 + (z / w) ** 2);
 }
 
+/**
+ * C ← Aᵀ·B for column-major A (m×k1), B (m×k2), C (k1×k2, ldc): the Gram-type products of the
+ * block reflectors, in 4×4 register blocks with four independent accumulators in the
+ * remainders (a single running sum is latency-bound).
+ */
+export function dgemmTN(
+  k1: number,
+  k2: number,
+  m: number,
+  A: Float64Array,
+  oa: number,
+  lda: number,
+  B: Float64Array,
+  ob: number,
+  ldb: number,
+  C: Float64Array,
+  oc: number,
+  ldc: number
+): void {
+  let p = 0;
+  for (; p + 4 <= k1; p += 4) {
+    const a0 = oa + p * lda;
+    const a1 = a0 + lda;
+    const a2 = a1 + lda;
+    const a3 = a2 + lda;
+    let q = 0;
+    for (; q + 4 <= k2; q += 4) {
+      const b0 = ob + q * ldb;
+      const b1 = b0 + ldb;
+      const b2 = b1 + ldb;
+      const b3 = b2 + ldb;
+      let s00 = 0,
+        s01 = 0,
+        s02 = 0,
+        s03 = 0,
+        s10 = 0,
+        s11 = 0,
+        s12 = 0,
+        s13 = 0,
+        s20 = 0,
+        s21 = 0,
+        s22 = 0,
+        s23 = 0,
+        s30 = 0,
+        s31 = 0,
+        s32 = 0,
+        s33 = 0;
+      for (let i = 0; i < m; i++) {
+        const x0 = A[a0 + i],
+          x1 = A[a1 + i],
+          x2 = A[a2 + i],
+          x3 = A[a3 + i];
+        const y0 = B[b0 + i],
+          y1 = B[b1 + i],
+          y2 = B[b2 + i],
+          y3 = B[b3 + i];
+        s00 += x0 * y0;
+        s01 += x0 * y1;
+        s02 += x0 * y2;
+        s03 += x0 * y3;
+        s10 += x1 * y0;
+        s11 += x1 * y1;
+        s12 += x1 * y2;
+        s13 += x1 * y3;
+        s20 += x2 * y0;
+        s21 += x2 * y1;
+        s22 += x2 * y2;
+        s23 += x2 * y3;
+        s30 += x3 * y0;
+        s31 += x3 * y1;
+        s32 += x3 * y2;
+        s33 += x3 * y3;
+      }
+      const c0 = oc + p + q * ldc;
+      C[c0] = s00;
+      C[c0 + 1] = s10;
+      C[c0 + 2] = s20;
+      C[c0 + 3] = s30;
+      C[c0 + ldc] = s01;
+      C[c0 + ldc + 1] = s11;
+      C[c0 + ldc + 2] = s21;
+      C[c0 + ldc + 3] = s31;
+      C[c0 + 2 * ldc] = s02;
+      C[c0 + 2 * ldc + 1] = s12;
+      C[c0 + 2 * ldc + 2] = s22;
+      C[c0 + 2 * ldc + 3] = s32;
+      C[c0 + 3 * ldc] = s03;
+      C[c0 + 3 * ldc + 1] = s13;
+      C[c0 + 3 * ldc + 2] = s23;
+      C[c0 + 3 * ldc + 3] = s33;
+    }
+    for (; q < k2; q++) {
+      const b0 = ob + q * ldb;
+      let s0 = 0,
+        s1 = 0,
+        s2 = 0,
+        s3 = 0;
+      for (let i = 0; i < m; i++) {
+        const y = B[b0 + i];
+        s0 += A[a0 + i] * y;
+        s1 += A[a1 + i] * y;
+        s2 += A[a2 + i] * y;
+        s3 += A[a3 + i] * y;
+      }
+      const c0 = oc + p + q * ldc;
+      C[c0] = s0;
+      C[c0 + 1] = s1;
+      C[c0 + 2] = s2;
+      C[c0 + 3] = s3;
+    }
+  }
+  for (; p < k1; p++) {
+    const a0 = oa + p * lda;
+    for (let q = 0; q < k2; q++) {
+      C[oc + p + q * ldc] = dot4(m, A, a0, B, ob + q * ldb);
+    }
+  }
+}
+
+/** Σ x_i y_i over contiguous runs, four accumulators. */
+function dot4(m: number, x: Float64Array, ox: number, y: Float64Array, oy: number): number {
+  let s0 = 0,
+    s1 = 0,
+    s2 = 0,
+    s3 = 0;
+  let i = 0;
+  for (; i + 4 <= m; i += 4) {
+    s0 += x[ox + i] * y[oy + i];
+    s1 += x[ox + i + 1] * y[oy + i + 1];
+    s2 += x[ox + i + 2] * y[oy + i + 2];
+    s3 += x[ox + i + 3] * y[oy + i + 3];
+  }
+  for (; i < m; i++) {
+    s0 += x[ox + i] * y[oy + i];
+  }
+  return s0 + s1 + (s2 + s3);
+}
+
 // ---------------------------------------------------------------------------------------------
 // Block reflector application, real.
 
@@ -384,15 +522,24 @@ function larfbChunk1(
   W: Float64Array
 ): void {
   for (let p = 0; p < k; p++) {
-    const v0 = ov + p * ldv;
-    let s = 0;
-    for (let i = 0; i < m; i++) {
-      s += V[v0 + i] * C[oc + i];
-    }
-    W[p] = s;
+    W[p] = dot4(m, V, ov + p * ldv, C, oc);
   }
   triMulUpper(trans, k, T, ot, ldt, W, 0);
-  for (let p = 0; p < k; p++) {
+  let p = 0;
+  for (; p + 4 <= k; p += 4) {
+    const v0 = ov + p * ldv;
+    const v1 = v0 + ldv;
+    const v2 = v1 + ldv;
+    const v3 = v2 + ldv;
+    const w0 = W[p],
+      w1 = W[p + 1],
+      w2 = W[p + 2],
+      w3 = W[p + 3];
+    for (let i = 0; i < m; i++) {
+      C[oc + i] -= V[v0 + i] * w0 + V[v1 + i] * w1 + V[v2 + i] * w2 + V[v3 + i] * w3;
+    }
+  }
+  for (; p < k; p++) {
     const v0 = ov + p * ldv;
     const w = W[p];
     for (let i = 0; i < m; i++) {
@@ -447,16 +594,13 @@ export function dlarft(
   ot: number,
   ldt: number
 ): void {
+  // G = VᵀV (k×k) by the blocked kernel: v_i is zero above row i, so the full-length dot
+  // products equal LAPACK's V(i:m, 0:i)ᵀ v_i. Stored in T's strict upper part, then overwritten.
+  dgemmTN(k, k, m, V, ov, ldv, V, ov, ldv, T, ot, ldt);
   for (let i = 0; i < k; i++) {
     const ti = tau[otau + i];
-    const vi = ov + i * ldv;
     for (let p = 0; p < i; p++) {
-      const vp = ov + p * ldv;
-      let s = 0;
-      for (let r = i; r < m; r++) {
-        s += V[vp + r] * V[vi + r];
-      }
-      T[ot + p + i * ldt] = -ti * s;
+      T[ot + p + i * ldt] *= -ti;
     }
     // T(0:i, i) ← T(0:i, 0:i)·T(0:i, i), ascending rows use only not-yet-updated entries.
     for (let p = 0; p < i; p++) {
@@ -467,6 +611,8 @@ export function dlarft(
       T[ot + p + i * ldt] = s;
     }
     T[ot + i + i * ldt] = ti;
+  }
+  for (let i = 0; i < k; i++) {
     for (let p = i + 1; p < k; p++) {
       T[ot + p + i * ldt] = 0;
     }

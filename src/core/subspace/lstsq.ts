@@ -212,26 +212,51 @@ function absEl(complex: boolean, a: Float64Array, e: number): number {
   return complex ? Math.hypot(a[2 * e], a[2 * e + 1]) : Math.abs(a[e]);
 }
 
-/** ‖b_j − A x_j‖₂ measured from the original data. */
+/** ‖b_j − A x_j‖₂ measured from the original data (column sweeps over A's strides). */
 function residuals(a: Dense, b: Dense, x: Dense, complex: boolean): Float64Array {
   const m = a.rows;
   const n = a.cols;
   const p = x.cols;
   const out = new Float64Array(p);
+  const f = complex ? 2 : 1;
+  const r = new Float64Array(f * m);
+  const [sa1, sa2] = a.strides;
+  const [sb1, sb2] = b.strides;
+  const A = a.data;
+  const B = b.data;
+  const X = x.data;
   for (let j = 0; j < p; j++) {
-    let s = 0;
     for (let i = 0; i < m; i++) {
-      let rr = b.get(i, j);
-      let ri = b.getIm(i, j);
-      for (let q = 0; q < n; q++) {
-        const ar = a.get(i, q);
-        const ai = a.getIm(i, q);
-        const xr = x.get(q, j);
-        const xi = complex ? x.getIm(q, j) : 0;
-        rr -= ar * xr - ai * xi;
-        ri -= ar * xi + ai * xr;
+      const e = b.offset + i * sb1 + j * sb2;
+      if (complex) {
+        r[2 * i] = b.complex ? B[2 * e] : B[e];
+        r[2 * i + 1] = b.complex ? B[2 * e + 1] : 0;
+      } else {
+        r[i] = B[e];
       }
-      s += rr * rr + ri * ri;
+    }
+    for (let q = 0; q < n; q++) {
+      const base = a.offset + q * sa2;
+      if (complex) {
+        const xr = X[2 * (q + j * n)];
+        const xi = X[2 * (q + j * n) + 1];
+        for (let i = 0; i < m; i++) {
+          const e = base + i * sa1;
+          const ar = a.complex ? A[2 * e] : A[e];
+          const ai = a.complex ? A[2 * e + 1] : 0;
+          r[2 * i] -= ar * xr - ai * xi;
+          r[2 * i + 1] -= ar * xi + ai * xr;
+        }
+      } else {
+        const xv = X[q + j * n];
+        for (let i = 0; i < m; i++) {
+          r[i] -= A[base + i * sa1] * xv;
+        }
+      }
+    }
+    let s = 0;
+    for (let i = 0; i < f * m; i++) {
+      s += r[i] * r[i];
     }
     out[j] = Math.sqrt(s);
   }
