@@ -10,7 +10,9 @@ import { ITranslator, nullTranslator } from '@jupyterlab/translation';
 import { Signal } from '@lumino/signaling';
 import type { IDisposable } from '@lumino/disposable';
 import { SessionLedger, watchKernelExecutions } from './bridge';
+import { LoadedArraysModel } from './model/loaded';
 import { SourcesModel, type INotebookTarget } from './model/sources';
+import { OUTPUT_SELECTOR, outputUnderContextMenu } from './panel/output-target';
 import { PerpendSidebar } from './panel/sidebar';
 import { perpendIcon } from './panel/icons';
 import { DEFAULT_SETTINGS, IPerpend, type IPerpendSettings } from './tokens';
@@ -18,6 +20,7 @@ import { DEFAULT_SETTINGS, IPerpend, type IPerpendSettings } from './tokens';
 namespace CommandIDs {
   export const open = 'perpend:open';
   export const refresh = 'perpend:refresh-arrays';
+  export const sendOutput = 'perpend:send-output';
 }
 
 const PLUGIN_ID = 'perpend:plugin';
@@ -40,10 +43,11 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
   ): IPerpend => {
     const trans = (translator ?? nullTranslator).load('perpend');
     const sources = new SourcesModel();
-    const sidebar = new PerpendSidebar({ sources, trans });
+    const loaded = new LoadedArraysModel({ bridge: () => sources.bridge });
+    const sidebar = new PerpendSidebar({ sources, loaded, trans });
     const settingsChanged = new Signal<IPerpend, IPerpendSettings>({} as IPerpend);
     let settings: IPerpendSettings = { ...DEFAULT_SETTINGS };
-    const perpend: IPerpend = { sources, settingsChanged };
+    const perpend: IPerpend = { sources, loaded, settingsChanged };
 
     app.shell.add(sidebar, 'right', { rank: 650 });
     restorer?.add(sidebar, sidebar.id);
@@ -59,6 +63,50 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
     app.commands.addCommand(CommandIDs.refresh, {
       label: trans.__('Perpend: List Notebook Arrays Again'),
       execute: () => sources.refresh()
+    });
+    app.commands.addCommand(CommandIDs.sendOutput, {
+      label: trans.__('Send Output to Perpend'),
+      caption: trans.__(
+        'Load this output into the Perpend panel (from the kernel at full precision when it can)'
+      ),
+      icon: perpendIcon,
+      isEnabled: () => tracker.currentWidget !== null,
+      execute: async () => {
+        const output = outputUnderContextMenu(app, tracker);
+        if (!output) {
+          return;
+        }
+        app.shell.activateById(sidebar.id);
+        const ledger = targetOf(tracker.currentWidget)?.ledger;
+        const count = output.executionCount;
+        if (
+          output.type === 'execute_result' &&
+          count !== null &&
+          ledger?.trusts(output.cellId, count) &&
+          sources.bridge
+        ) {
+          const item = await loaded.loadFromKernel({
+            source: { kind: 'cell', cellId: output.cellId, executionCount: count },
+            label: `Out[${count}]`
+          });
+          if (item) {
+            return;
+          }
+        }
+        // Not in this kernel session's output cache (or no kernel): parse what the output shows.
+        const label = count !== null ? `Out[${count}] (text)` : `cell ${output.cellIndex} output`;
+        const json = output.data['application/json'];
+        if (json !== undefined) {
+          loaded.loadFromText(label, json, 'application/json');
+        } else {
+          loaded.loadFromText(label, output.data['text/plain'] ?? '');
+        }
+      }
+    });
+    app.contextMenu.addItem({
+      command: CommandIDs.sendOutput,
+      selector: OUTPUT_SELECTOR,
+      rank: 20
     });
     palette?.addItem({ command: CommandIDs.open, category: 'Perpend' });
     palette?.addItem({ command: CommandIDs.refresh, category: 'Perpend' });

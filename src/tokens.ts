@@ -1,5 +1,6 @@
 import { Token } from '@lumino/coreutils';
 import type { ISignal } from '@lumino/signaling';
+import type { LoadedArraysModel } from './model/loaded';
 import type { SourcesModel } from './model/sources';
 
 /** Settings read by Perpend (schema/plugin.json). */
@@ -20,6 +21,8 @@ export const DEFAULT_SETTINGS: IPerpendSettings = {
 export interface IPerpend {
   /** The array sources of the active notebook. */
   readonly sources: SourcesModel;
+  /** The arrays brought into the panel. */
+  readonly loaded: LoadedArraysModel;
   /** Emitted when the settings change. */
   readonly settingsChanged: ISignal<IPerpend, IPerpendSettings>;
 }

@@ -215,7 +215,7 @@ export namespace SourcesModel {
   /** What the model uses of a bridge (KernelBridge; tests may pass a stand-in). */
   export type IBridge = Pick<
     KernelBridge,
-    'listCellResults' | 'listVariables' | 'readArray' | 'writeArray' | 'dispose'
+    'listCellResults' | 'listVariables' | 'readArray' | 'readScalar' | 'writeArray' | 'dispose'
   >;
   export interface IOptions {
     bridgeOptions?: Partial<KernelBridge.IOptions>;

@@ -19,3 +19,15 @@ export function formatBytes(bytes: number): string {
   }
   return `${value >= 100 ? value.toFixed(0) : value >= 10 ? value.toFixed(1) : value.toFixed(2)} ${units[unit]}`;
 }
+
+/** A statistic for display: four significant digits, plain or exponent form as fits. */
+export function formatValue(v: number): string {
+  if (!Number.isFinite(v)) {
+    return String(v);
+  }
+  if (v === 0) {
+    return '0';
+  }
+  const a = Math.abs(v);
+  return a >= 1e-3 && a < 1e5 ? String(Number(v.toPrecision(4))) : v.toExponential(3);
+}

@@ -15,6 +15,7 @@ export class SourcesView extends Widget {
   constructor(options: SourcesView.IOptions) {
     super();
     this._trans = options.trans;
+    this._onActivate = options.onActivate ?? null;
     this.addClass('pp-SourcesView');
     const header = document.createElement('div');
     header.className = 'pp-SourcesView-header';
@@ -79,14 +80,16 @@ export class SourcesView extends Widget {
         'cells',
         model.cellResults,
         trans.__('No executed cell has returned an array yet.'),
-        trans
+        trans,
+        this._onActivate
       ),
       Private.section(
         trans.__('Kernel variables'),
         'variables',
         model.variables,
         trans.__('No array variables in the kernel.'),
-        trans
+        trans,
+        this._onActivate
       )
     );
   }
@@ -101,6 +104,7 @@ export class SourcesView extends Widget {
   }
 
   private _model: SourcesModel | null = null;
+  private readonly _onActivate: ((info: ArrayInfo) => void) | null;
   private _stale = false;
   private readonly _trans: TranslationBundle;
   private readonly _title: HTMLSpanElement;
@@ -112,6 +116,8 @@ export namespace SourcesView {
   export interface IOptions {
     model: SourcesModel | null;
     trans: TranslationBundle;
+    /** Called when the user clicks (or presses Enter on) a listed array. */
+    onActivate?: (info: ArrayInfo) => void;
   }
 }
 
@@ -128,7 +134,8 @@ namespace Private {
     kind: string,
     infos: ReadonlyArray<ArrayInfo>,
     empty: string,
-    trans: TranslationBundle
+    trans: TranslationBundle,
+    onActivate: ((info: ArrayInfo) => void) | null
   ): HTMLElement {
     const section = document.createElement('section');
     section.className = 'pp-SourcesView-section';
@@ -162,6 +169,17 @@ namespace Private {
         `${info.label}: ${formatShape(info.shape)} ${info.dtype}, ${formatBytes(info.bytes)}`,
         ...info.notes
       ].join('\n');
+      if (onActivate && info.readable !== false) {
+        row.tabIndex = 0;
+        row.classList.add('pp-mod-activatable');
+        row.setAttribute('aria-label', trans.__('Load %1 into Perpend', info.label));
+        row.addEventListener('click', () => onActivate(info));
+        row.addEventListener('keydown', event => {
+          if (event.key === 'Enter') {
+            onActivate(info);
+          }
+        });
+      }
       const cells = [info.label, formatShape(info.shape), info.dtype, formatBytes(info.bytes)];
       const classes = [
         'pp-ArrayTable-label',

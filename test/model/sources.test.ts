@@ -47,6 +47,9 @@ function setup(opts: { fail?: () => boolean } = {}) {
     readArray: async () => {
       throw new Error('not used');
     },
+    readScalar: async () => {
+      throw new Error('not used');
+    },
     writeArray: async () => {
       throw new Error('not used');
     },
