@@ -656,3 +656,75 @@ export function parseArrayText(text: unknown, mimeType?: string): ParsedArray {
   }
   throw new RangeError(`text is not an array Perpend can read (${errors.join('; ')})`);
 }
+
+/**
+ * Parses an output's MIME bundle as stored in a notebook (`text/plain` may be a string or
+ * nbformat's list of lines): `application/json` first, then `text/csv`, then `text/plain`
+ * (numpy repr/str, JSON, CSV). HTML and other rich types are never looked at. Throws a
+ * RangeError when nothing in the bundle is an array of numbers.
+ */
+export function parseOutputData(bundle: unknown): ParsedArray {
+  if (typeof bundle !== 'object' || bundle === null || Array.isArray(bundle)) {
+    throw new TypeError(
+      `bundle must be a MIME bundle object, got ${bundle === null ? 'null' : typeof bundle}`
+    );
+  }
+  const b = bundle as Record<string, unknown>;
+  const text = (v: unknown): string | null =>
+    typeof v === 'string'
+      ? v
+      : Array.isArray(v) && v.every(x => typeof x === 'string')
+        ? v.join('')
+        : null;
+  const errors: string[] = [];
+  if (b['application/json'] !== undefined) {
+    try {
+      return parseJsonArray(b['application/json'], 'application/json');
+    } catch (e) {
+      errors.push((e as Error).message);
+    }
+  }
+  const csv = text(b['text/csv']);
+  if (csv !== null) {
+    try {
+      return parseCsv(csv, 'text/csv');
+    } catch (e) {
+      errors.push((e as Error).message);
+    }
+  }
+  const plain = text(b['text/plain']);
+  if (plain !== null) {
+    try {
+      return parseArrayText(plain);
+    } catch (e) {
+      errors.push((e as Error).message);
+    }
+  }
+  throw new RangeError(
+    errors.length > 0
+      ? errors.join('; ')
+      : 'bundle has no application/json, text/csv or text/plain data'
+  );
+}
+
+/**
+ * The {@link ParsedArray} as the bridge's ArrayData shape (C order, complex interleaved),
+ * for the panel. Refuses truncated text (its values are incomplete) with a RangeError that
+ * says so; pass `allowTruncated` to take the shown values anyway.
+ */
+export function parsedToArrayData(
+  p: ParsedArray,
+  allowTruncated = false
+): { data: Float64Array; shape: number[]; complex: boolean; dtype: string } {
+  if (p.truncated && !allowTruncated) {
+    throw new RangeError(
+      `the printed array was truncated by numpy ("..."${p.fullShape ? `, full shape (${p.fullShape.join(', ')})` : ''}): its values are incomplete; read it from the kernel, or print it with np.set_printoptions(threshold=sys.maxsize)`
+    );
+  }
+  return {
+    data: p.data,
+    shape: p.shape.slice(),
+    complex: p.complex,
+    dtype: p.dtype ?? (p.complex ? 'complex128' : 'float64')
+  };
+}

@@ -5,7 +5,14 @@
  */
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
-import { parseArrayText, parseCsv, parseJsonArray, parseNumpyRepr } from '../../src/bridge/parsers';
+import {
+  parseArrayText,
+  parseCsv,
+  parseJsonArray,
+  parseNumpyRepr,
+  parseOutputData,
+  parsedToArrayData
+} from '../../src/bridge/parsers';
 
 interface Case {
   id: string;
@@ -192,5 +199,34 @@ describe('parseArrayText', () => {
     expect(parseArrayText('[1, NaN]').format).toBe('numpy-str');
     expect(parseArrayText('[1, 2]', 'application/json').format).toBe('json');
     expect(parseArrayText('1,2\n3,4').format).toBe('csv');
+  });
+});
+
+describe('notebook outputs', () => {
+  it('parses MIME bundles as stored in notebooks, never looking at HTML', () => {
+    const p = parseOutputData({
+      'text/plain': ['array([1., 2.,\n', '       3.])'],
+      'text/html': '<b onclick="x()">1</b>'
+    });
+    expect(Array.from(p.data)).toEqual([1, 2, 3]);
+    expect(parseOutputData({ 'application/json': [[1, 2]], 'text/plain': 'junk' }).shape).toEqual([
+      1, 2
+    ]);
+    expect(() => parseOutputData({ 'text/html': '<table><tr><td>1</td></tr></table>' })).toThrow(
+      /no application\/json, text\/csv or text\/plain/
+    );
+    expect(() => parseOutputData('array([1])')).toThrow(TypeError);
+  });
+
+  it('refuses truncated text unless asked, saying why', () => {
+    const p = parseNumpyRepr('array([0., 1., 2., ..., 7., 8., 9.], shape=(1000,))');
+    expect(() => parsedToArrayData(p)).toThrow(
+      /truncated by numpy \("...", full shape \(1000\)\): its values are incomplete/
+    );
+    expect(parsedToArrayData(p, true).shape).toEqual([6]);
+    expect(parsedToArrayData(parseNumpyRepr('array([1, 2], dtype=int8)'))).toMatchObject({
+      dtype: 'int8',
+      complex: false
+    });
   });
 });

@@ -15,7 +15,15 @@ import path from 'node:path';
 import { KernelManager, ServerConnection, type Kernel } from '@jupyterlab/services';
 import WebSocket from 'ws';
 
-export const REPO_ROOT = path.resolve(__dirname, '..', '..');
+/** The repository root: the nearest folder above this file with a package.json (this file
+ * also runs compiled from .bench/ for the benchmark). */
+export const REPO_ROOT = ((): string => {
+  let d = __dirname;
+  while (!existsSync(path.join(d, 'package.json')) && path.dirname(d) !== d) {
+    d = path.dirname(d);
+  }
+  return d;
+})();
 export const VENV_BIN = path.join(REPO_ROOT, '.venv', 'bin');
 export const PYTHON = path.join(VENV_BIN, 'python');
 
@@ -69,7 +77,10 @@ function killGroup(child: ChildProcess, signal: NodeJS.Signals): void {
 }
 
 /** Starts a server and waits until its REST API answers. */
-export async function startServer(label = 'it'): Promise<JupyterServer> {
+export async function startServer(
+  label = 'it',
+  options: { env?: Record<string, string | undefined> } = {}
+): Promise<JupyterServer> {
   if (!existsSync(path.join(VENV_BIN, 'jupyter'))) {
     throw new Error(
       `No .venv with Jupyter at ${path.relative(process.cwd(), VENV_BIN)}: create it first (see README).`
@@ -94,6 +105,13 @@ export async function startServer(label = 'it'): Promise<JupyterServer> {
     PYTHONDONTWRITEBYTECODE: '1',
     PATH: `${VENV_BIN}${path.delimiter}${process.env.PATH ?? ''}`
   };
+  for (const [k, v] of Object.entries(options.env ?? {})) {
+    if (v === undefined) {
+      delete env[k];
+    } else {
+      env[k] = v;
+    }
+  }
   for (const k of Object.keys(env)) {
     if (k.startsWith('JUPYTER_') && k.endsWith('_DIR') && !env[k]!.startsWith(dir)) {
       env[k] = sub(k.toLowerCase());
