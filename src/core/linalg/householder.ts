@@ -13,7 +13,18 @@
  * Kernels: `geqrf(m, n, A, sa1, sa2, oa, tau, otau, complex)` and friends take any strides; they
  * pack non-column-major input into a column-major copy once at the entry.
  */
-import { dgemmTN, dlarfbLeft, dlarfg, dlarft, zlarfbLeft, zlarfg, zlarft } from './reflector';
+import {
+  dgemmTN,
+  dlarfbIdentity,
+  dlarfbLeft,
+  dlarfg,
+  dlarft,
+  zgemmCN,
+  zlarfbIdentity,
+  zlarfbLeft,
+  zlarfg,
+  zlarft
+} from './reflector';
 
 /** Panel width of the blocked algorithms (tuned on the benchmark machine). */
 export const QR_BLOCK = 32;
@@ -324,6 +335,8 @@ export function dorgqrCM(
     }
   }
   // Apply blocks last to first; block b touches rows j0: and only columns j0: are non-trivial.
+  // Its own kb columns are still identity columns then: they take the cheaper closed form.
+  const wk = new Float64Array(nb * nb);
   for (let blk = nblocks - 1; blk >= 0; blk--) {
     const j0 = blk * nb;
     const kb = Math.min(nb, k - j0);
@@ -331,7 +344,7 @@ export function dorgqrCM(
     dlarfbLeft(
       'N',
       rows,
-      ncols - j0,
+      ncols - j0 - kb,
       kb,
       vs[blk],
       0,
@@ -340,10 +353,11 @@ export function dorgqrCM(
       0,
       nb,
       q,
-      oq + j0 + j0 * ldq,
+      oq + j0 + (j0 + kb) * ldq,
       ldq,
       ws.w
     );
+    dlarfbIdentity(rows, kb, vs[blk], 0, rows, ts[blk], 0, nb, q, oq + j0 + j0 * ldq, ldq, wk);
   }
 }
 
@@ -479,25 +493,8 @@ function zqrPanel(
       vp[2 * (ov + i + j * ldv) + 1] = 0;
     }
   }
-  // T₁₂ = −T₁·(V₁ᴴV₂)·T₂
-  for (let j = 0; j < k2; j++) {
-    const v2 = 2 * (ov + (n1 + j) * ldv);
-    for (let p = 0; p < n1; p++) {
-      const v1 = 2 * (ov + p * ldv);
-      let sr = 0,
-        si = 0;
-      for (let i = 2 * (n1 + j); i < 2 * m; i += 2) {
-        const ar = vp[v1 + i],
-          ai = vp[v1 + i + 1];
-        const br = vp[v2 + i],
-          bi = vp[v2 + i + 1];
-        sr += ar * br + ai * bi;
-        si += ar * bi - ai * br;
-      }
-      t[2 * (ott + p + (n1 + j) * ldt)] = sr;
-      t[2 * (ott + p + (n1 + j) * ldt) + 1] = si;
-    }
-  }
+  // T₁₂ = −T₁·(V₁ᴴV₂)·T₂ (V₂ is zero above row n1, so rows n1: suffice).
+  zgemmCN(n1, k2, m - n1, vp, ov + n1, ldv, vp, ov + n1 + n1 * ldv, ldv, t, ott + n1 * ldt, ldt);
   for (let j = 0; j < k2; j++) {
     const c = ott + (n1 + j) * ldt;
     for (let p = 0; p < n1; p++) {
@@ -668,6 +665,7 @@ export function zungqrCM(
       q[col + 2 * i + 1] = 0;
     }
   }
+  const wk = new Float64Array(2 * nb * nb);
   for (let blk = nblocks - 1; blk >= 0; blk--) {
     const j0 = blk * nb;
     const kb = Math.min(nb, k - j0);
@@ -675,7 +673,7 @@ export function zungqrCM(
     zlarfbLeft(
       'N',
       rows,
-      ncols - j0,
+      ncols - j0 - kb,
       kb,
       vs[blk],
       0,
@@ -684,10 +682,11 @@ export function zungqrCM(
       0,
       nb,
       q,
-      oq + j0 + j0 * ldq,
+      oq + j0 + (j0 + kb) * ldq,
       ldq,
       ws.w
     );
+    zlarfbIdentity(rows, kb, vs[blk], 0, rows, ts[blk], 0, nb, q, oq + j0 + j0 * ldq, ldq, wk);
   }
 }
 

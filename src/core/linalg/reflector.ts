@@ -192,15 +192,17 @@ export function dgemmTN(
   ldb: number,
   C: Float64Array,
   oc: number,
-  ldc: number
+  ldc: number,
+  upper = false
 ): void {
+  // upper: only blocks touching the strict upper triangle are needed (a Gram matrix VᵀV).
   let p = 0;
   for (; p + 4 <= k1; p += 4) {
     const a0 = oa + p * lda;
     const a1 = a0 + lda;
     const a2 = a1 + lda;
     const a3 = a2 + lda;
-    let q = 0;
+    let q = upper ? p : 0;
     for (; q + 4 <= k2; q += 4) {
       const b0 = ob + q * ldb;
       const b1 = b0 + ldb;
@@ -288,7 +290,7 @@ export function dgemmTN(
   }
   for (; p < k1; p++) {
     const a0 = oa + p * lda;
-    for (let q = 0; q < k2; q++) {
+    for (let q = upper ? p : 0; q < k2; q++) {
       C[oc + p + q * ldc] = dot4(m, A, a0, B, ob + q * ldb);
     }
   }
@@ -579,6 +581,134 @@ function triMulUpper(
 }
 
 /**
+ * C ← C − V·W for column-major V (m×k), W (k×n, ldw), C (m×n): the second half of a block
+ * reflector update on its own (used where W = VᵀC is known in closed form). 4×4 blocks.
+ */
+export function dgemmNNsub(
+  m: number,
+  n: number,
+  k: number,
+  V: Float64Array,
+  ov: number,
+  ldv: number,
+  W: Float64Array,
+  ow: number,
+  ldw: number,
+  C: Float64Array,
+  oc: number,
+  ldc: number
+): void {
+  let j = 0;
+  for (; j + 4 <= n; j += 4) {
+    const c0 = oc + j * ldc;
+    const c1 = c0 + ldc;
+    const c2 = c1 + ldc;
+    const c3 = c2 + ldc;
+    const wj = ow + j * ldw;
+    let p = 0;
+    for (; p + 4 <= k; p += 4) {
+      const v0 = ov + p * ldv;
+      const v1 = v0 + ldv;
+      const v2 = v1 + ldv;
+      const v3 = v2 + ldv;
+      const b0 = wj + p;
+      const b1 = b0 + ldw;
+      const b2 = b1 + ldw;
+      const b3 = b2 + ldw;
+      const w00 = W[b0],
+        w10 = W[b0 + 1],
+        w20 = W[b0 + 2],
+        w30 = W[b0 + 3];
+      const w01 = W[b1],
+        w11 = W[b1 + 1],
+        w21 = W[b1 + 2],
+        w31 = W[b1 + 3];
+      const w02 = W[b2],
+        w12 = W[b2 + 1],
+        w22 = W[b2 + 2],
+        w32 = W[b2 + 3];
+      const w03 = W[b3],
+        w13 = W[b3 + 1],
+        w23 = W[b3 + 2],
+        w33 = W[b3 + 3];
+      for (let i = 0; i < m; i++) {
+        const a0 = V[v0 + i];
+        const a1 = V[v1 + i];
+        const a2 = V[v2 + i];
+        const a3 = V[v3 + i];
+        C[c0 + i] -= a0 * w00 + a1 * w10 + a2 * w20 + a3 * w30;
+        C[c1 + i] -= a0 * w01 + a1 * w11 + a2 * w21 + a3 * w31;
+        C[c2 + i] -= a0 * w02 + a1 * w12 + a2 * w22 + a3 * w32;
+        C[c3 + i] -= a0 * w03 + a1 * w13 + a2 * w23 + a3 * w33;
+      }
+    }
+    for (; p < k; p++) {
+      const v0 = ov + p * ldv;
+      const w0 = W[wj + p],
+        w1 = W[wj + ldw + p],
+        w2 = W[wj + 2 * ldw + p],
+        w3 = W[wj + 3 * ldw + p];
+      for (let i = 0; i < m; i++) {
+        const a = V[v0 + i];
+        C[c0 + i] -= a * w0;
+        C[c1 + i] -= a * w1;
+        C[c2 + i] -= a * w2;
+        C[c3 + i] -= a * w3;
+      }
+    }
+  }
+  for (; j < n; j++) {
+    const c0 = oc + j * ldc;
+    const wj = ow + j * ldw;
+    for (let p = 0; p < k; p++) {
+      const v0 = ov + p * ldv;
+      const w = W[wj + p];
+      for (let i = 0; i < m; i++) {
+        C[c0 + i] -= V[v0 + i] * w;
+      }
+    }
+  }
+}
+
+/**
+ * Overwrites the m×k column-major block Q with (I − V·T·Vᵀ)·[I_k; 0] = [I; 0] − V·(T·V₁ᵀ), V₁ the
+ * unit lower k×k top of V: forming a block's own columns of Q needs no VᵀC product
+ * (half the flops of a general block-reflector update). `work` holds k·k numbers.
+ */
+export function dlarfbIdentity(
+  m: number,
+  k: number,
+  V: Float64Array,
+  ov: number,
+  ldv: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number,
+  Q: Float64Array,
+  oq: number,
+  ldq: number,
+  work: Float64Array
+): void {
+  // W = T·V₁ᵀ (k×k): W(p, c) = Σ_{q=p..c} T(p, q)·V(c, q).
+  for (let c = 0; c < k; c++) {
+    for (let p = 0; p < k; p++) {
+      let s = 0;
+      for (let q = p; q <= c; q++) {
+        s += T[ot + p + q * ldt] * V[ov + c + q * ldv];
+      }
+      work[p + c * k] = s;
+    }
+  }
+  for (let c = 0; c < k; c++) {
+    const col = oq + c * ldq;
+    for (let i = 0; i < m; i++) {
+      Q[col + i] = i === c ? 1 : 0;
+    }
+  }
+  dgemmNNsub(m, k, k, V, ov, ldv, work, 0, k, Q, oq, ldq);
+}
+
+/**
  * Forms the k×k upper triangular T of H₁⋯H_k = I − V·T·Vᵀ from packed V (m×k, zeros above the
  * unit diagonal) and τ (LAPACK dlarft, forward, columnwise).
  */
@@ -596,7 +726,7 @@ export function dlarft(
 ): void {
   // G = VᵀV (k×k) by the blocked kernel: v_i is zero above row i, so the full-length dot
   // products equal LAPACK's V(i:m, 0:i)ᵀ v_i. Stored in T's strict upper part, then overwritten.
-  dgemmTN(k, k, m, V, ov, ldv, V, ov, ldv, T, ot, ldt);
+  dgemmTN(k, k, m, V, ov, ldv, V, ov, ldv, T, ot, ldt, true);
   for (let i = 0; i < k; i++) {
     const ti = tau[otau + i];
     for (let p = 0; p < i; p++) {
@@ -867,6 +997,229 @@ function ztriMulUpper(
   }
 }
 
+/**
+ * C ← Aᴴ·B for complex column-major A (m×k1), B (m×k2), C (k1×k2, ldc); element offsets.
+ * 2×2 blocks of complex accumulators.
+ */
+export function zgemmCN(
+  k1: number,
+  k2: number,
+  m: number,
+  A: Float64Array,
+  oa: number,
+  lda: number,
+  B: Float64Array,
+  ob: number,
+  ldb: number,
+  C: Float64Array,
+  oc: number,
+  ldc: number,
+  upper = false
+): void {
+  const m2 = 2 * m;
+  let p = 0;
+  for (; p + 2 <= k1; p += 2) {
+    const a0 = 2 * (oa + p * lda);
+    const a1 = a0 + 2 * lda;
+    let q = upper ? p : 0;
+    for (; q + 2 <= k2; q += 2) {
+      const b0 = 2 * (ob + q * ldb);
+      const b1 = b0 + 2 * ldb;
+      let r00 = 0,
+        i00 = 0,
+        r01 = 0,
+        i01 = 0,
+        r10 = 0,
+        i10 = 0,
+        r11 = 0,
+        i11 = 0;
+      for (let i = 0; i < m2; i += 2) {
+        const xr = A[a0 + i],
+          xi = A[a0 + i + 1];
+        const yr = A[a1 + i],
+          yi = A[a1 + i + 1];
+        const ur = B[b0 + i],
+          ui = B[b0 + i + 1];
+        const vr = B[b1 + i],
+          vi = B[b1 + i + 1];
+        r00 += xr * ur + xi * ui;
+        i00 += xr * ui - xi * ur;
+        r01 += xr * vr + xi * vi;
+        i01 += xr * vi - xi * vr;
+        r10 += yr * ur + yi * ui;
+        i10 += yr * ui - yi * ur;
+        r11 += yr * vr + yi * vi;
+        i11 += yr * vi - yi * vr;
+      }
+      const c0 = 2 * (oc + p + q * ldc);
+      const c1 = c0 + 2 * ldc;
+      C[c0] = r00;
+      C[c0 + 1] = i00;
+      C[c0 + 2] = r10;
+      C[c0 + 3] = i10;
+      C[c1] = r01;
+      C[c1 + 1] = i01;
+      C[c1 + 2] = r11;
+      C[c1 + 3] = i11;
+    }
+    for (; q < k2; q++) {
+      const b0 = 2 * (ob + q * ldb);
+      let r0 = 0,
+        i0 = 0,
+        r1 = 0,
+        i1 = 0;
+      for (let i = 0; i < m2; i += 2) {
+        const ur = B[b0 + i],
+          ui = B[b0 + i + 1];
+        const xr = A[a0 + i],
+          xi = A[a0 + i + 1];
+        const yr = A[a1 + i],
+          yi = A[a1 + i + 1];
+        r0 += xr * ur + xi * ui;
+        i0 += xr * ui - xi * ur;
+        r1 += yr * ur + yi * ui;
+        i1 += yr * ui - yi * ur;
+      }
+      const c0 = 2 * (oc + p + q * ldc);
+      C[c0] = r0;
+      C[c0 + 1] = i0;
+      C[c0 + 2] = r1;
+      C[c0 + 3] = i1;
+    }
+  }
+  for (; p < k1; p++) {
+    const a0 = 2 * (oa + p * lda);
+    for (let q = upper ? p : 0; q < k2; q++) {
+      const b0 = 2 * (ob + q * ldb);
+      let r0 = 0,
+        i0 = 0,
+        r1 = 0,
+        i1 = 0;
+      let i = 0;
+      for (; i + 4 <= m2; i += 4) {
+        r0 += A[a0 + i] * B[b0 + i] + A[a0 + i + 1] * B[b0 + i + 1];
+        i0 += A[a0 + i] * B[b0 + i + 1] - A[a0 + i + 1] * B[b0 + i];
+        r1 += A[a0 + i + 2] * B[b0 + i + 2] + A[a0 + i + 3] * B[b0 + i + 3];
+        i1 += A[a0 + i + 2] * B[b0 + i + 3] - A[a0 + i + 3] * B[b0 + i + 2];
+      }
+      for (; i < m2; i += 2) {
+        r0 += A[a0 + i] * B[b0 + i] + A[a0 + i + 1] * B[b0 + i + 1];
+        i0 += A[a0 + i] * B[b0 + i + 1] - A[a0 + i + 1] * B[b0 + i];
+      }
+      const c0 = 2 * (oc + p + q * ldc);
+      C[c0] = r0 + r1;
+      C[c0 + 1] = i0 + i1;
+    }
+  }
+}
+
+/**
+ * Complex dlarfbIdentity: Q(m×k) ← [I; 0] − V·(T·V₁ᴴ). `work` holds 2·k·k numbers; the update
+ * goes through zlarfbLeft's second half via an explicit loop (2 columns at a time).
+ */
+export function zlarfbIdentity(
+  m: number,
+  k: number,
+  V: Float64Array,
+  ov: number,
+  ldv: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number,
+  Q: Float64Array,
+  oq: number,
+  ldq: number,
+  work: Float64Array
+): void {
+  // W(p, c) = Σ_{q=p..c} T(p, q)·conj(V(c, q))
+  for (let c = 0; c < k; c++) {
+    for (let p = 0; p < k; p++) {
+      let sr = 0,
+        si = 0;
+      for (let q = p; q <= c; q++) {
+        const t = 2 * (ot + p + q * ldt);
+        const v = 2 * (ov + c + q * ldv);
+        const tr = T[t],
+          ti = T[t + 1];
+        const vr = V[v],
+          vi = -V[v + 1];
+        sr += tr * vr - ti * vi;
+        si += tr * vi + ti * vr;
+      }
+      work[2 * (p + c * k)] = sr;
+      work[2 * (p + c * k) + 1] = si;
+    }
+  }
+  for (let c = 0; c < k; c++) {
+    const col = 2 * (oq + c * ldq);
+    for (let i = 0; i < m; i++) {
+      Q[col + 2 * i] = i === c ? 1 : 0;
+      Q[col + 2 * i + 1] = 0;
+    }
+  }
+  // Q −= V·W, two columns of Q and two of V at a time.
+  let c = 0;
+  for (; c + 2 <= k; c += 2) {
+    const q0 = 2 * (oq + c * ldq);
+    const q1 = q0 + 2 * ldq;
+    let p = 0;
+    for (; p + 2 <= k; p += 2) {
+      const v0 = 2 * (ov + p * ldv);
+      const v1 = v0 + 2 * ldv;
+      const w = 2 * (p + c * k);
+      const w00r = work[w],
+        w00i = work[w + 1],
+        w10r = work[w + 2],
+        w10i = work[w + 3];
+      const w01r = work[w + 2 * k],
+        w01i = work[w + 2 * k + 1],
+        w11r = work[w + 2 * k + 2],
+        w11i = work[w + 2 * k + 3];
+      for (let i = 0; i < 2 * m; i += 2) {
+        const ar = V[v0 + i],
+          ai = V[v0 + i + 1];
+        const br = V[v1 + i],
+          bi = V[v1 + i + 1];
+        Q[q0 + i] -= ar * w00r - ai * w00i + br * w10r - bi * w10i;
+        Q[q0 + i + 1] -= ar * w00i + ai * w00r + br * w10i + bi * w10r;
+        Q[q1 + i] -= ar * w01r - ai * w01i + br * w11r - bi * w11i;
+        Q[q1 + i + 1] -= ar * w01i + ai * w01r + br * w11i + bi * w11r;
+      }
+    }
+    for (; p < k; p++) {
+      const v0 = 2 * (ov + p * ldv);
+      const w = 2 * (p + c * k);
+      const w0r = work[w],
+        w0i = work[w + 1];
+      const w1r = work[w + 2 * k],
+        w1i = work[w + 2 * k + 1];
+      for (let i = 0; i < 2 * m; i += 2) {
+        const ar = V[v0 + i],
+          ai = V[v0 + i + 1];
+        Q[q0 + i] -= ar * w0r - ai * w0i;
+        Q[q0 + i + 1] -= ar * w0i + ai * w0r;
+        Q[q1 + i] -= ar * w1r - ai * w1i;
+        Q[q1 + i + 1] -= ar * w1i + ai * w1r;
+      }
+    }
+  }
+  for (; c < k; c++) {
+    const q0 = 2 * (oq + c * ldq);
+    for (let p = 0; p < k; p++) {
+      const v0 = 2 * (ov + p * ldv);
+      const w = 2 * (p + c * k);
+      const wr = work[w],
+        wi = work[w + 1];
+      for (let i = 0; i < 2 * m; i += 2) {
+        const ar = V[v0 + i],
+          ai = V[v0 + i + 1];
+        Q[q0 + i] -= ar * wr - ai * wi;
+        Q[q0 + i + 1] -= ar * wi + ai * wr;
+      }
+    }
+  }
+}
+
 /** Complex dlarft: T of H₁⋯H_k = I − V·T·Vᴴ (tau interleaved complex). */
 export function zlarft(
   m: number,
@@ -880,23 +1233,15 @@ export function zlarft(
   ot: number,
   ldt: number
 ): void {
+  // G = VᴴV by the blocked kernel (v_i is zero above row i), then the recurrence of dlarft.
+  zgemmCN(k, k, m, V, ov, ldv, V, ov, ldv, T, ot, ldt, true);
   for (let i = 0; i < k; i++) {
     const tr = tau[2 * (otau + i)];
     const tim = tau[2 * (otau + i) + 1];
-    const vi = 2 * (ov + i * ldv);
     for (let p = 0; p < i; p++) {
-      const vp = 2 * (ov + p * ldv);
-      let sr = 0,
-        si = 0;
-      for (let r = 2 * i; r < 2 * m; r += 2) {
-        const ar = V[vp + r],
-          ai = V[vp + r + 1];
-        const br = V[vi + r],
-          bi = V[vi + r + 1];
-        sr += ar * br + ai * bi;
-        si += ar * bi - ai * br;
-      }
       const t = 2 * (ot + p + i * ldt);
+      const sr = T[t];
+      const si = T[t + 1];
       T[t] = -(tr * sr - tim * si);
       T[t + 1] = -(tr * si + tim * sr);
     }
@@ -914,6 +1259,8 @@ export function zlarft(
     }
     T[2 * (ot + i + i * ldt)] = tr;
     T[2 * (ot + i + i * ldt) + 1] = tim;
+  }
+  for (let i = 0; i < k; i++) {
     for (let p = i + 1; p < k; p++) {
       T[2 * (ot + p + i * ldt)] = 0;
       T[2 * (ot + p + i * ldt) + 1] = 0;
