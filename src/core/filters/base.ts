@@ -24,6 +24,15 @@ import type {
 /** Smoothing of the health monitor's power estimates: time constant 256 samples. */
 export const HEALTH_ALPHA = 1 / 256;
 
+/** Bit order of the health mask (nonfinite = 1, divergence = 2, indefinite = 4, …). */
+const HEALTH_KINDS: HealthKind[] = [
+  'nonfinite',
+  'divergence',
+  'indefinite',
+  'asymmetry',
+  'step-size'
+];
+
 const ALGORITHMS = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-legacy', 'nlms', 'lms'];
 
 /** Applies defaults and checks every option; throws TypeError/RangeError naming the option. */
@@ -283,8 +292,7 @@ export abstract class AdaptiveFilter {
 
   /** Records the first occurrence of a health event (called only on the rare failing path). */
   protected flag(kind: HealthKind, index: number, message: string): void {
-    const bit =
-      1 << ['nonfinite', 'divergence', 'indefinite', 'asymmetry', 'step-size'].indexOf(kind);
+    const bit = 1 << HEALTH_KINDS.indexOf(kind);
     if (this.hMask & bit) {
       return;
     }
@@ -299,7 +307,10 @@ export abstract class AdaptiveFilter {
   protected checkError(ee: number, index: number): void {
     if (ee - ee !== 0) {
       this.flag('nonfinite', index, `the a-priori error became ${ee} at sample ${index}`);
-    } else if (!(this.hPe <= this.options.divergenceThreshold * this.hPd)) {
+    } else if (
+      (this.hMask & 2) === 0 &&
+      !(this.hPe <= this.options.divergenceThreshold * this.hPd)
+    ) {
       this.flag(
         'divergence',
         index,

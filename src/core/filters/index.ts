@@ -6,3 +6,4 @@ export { RlsFilter } from './rls';
 export { LmsFilter } from './lms';
 export { NlmsFilter } from './nlms';
 export * from './create';
+export * from './configurations';

@@ -17,6 +17,9 @@
 import { AdaptiveFilter, HEALTH_ALPHA } from './base';
 import type { FilterOptions, Real } from './types';
 
+// Module-level alias: a global lookup per call is slow in some hosts (e.g. vm contexts).
+const sqrt = Math.sqrt;
+
 export class InverseQrRlsFilter extends AdaptiveFilter {
   /** Sᵀ, lower triangle, row-major (interleaved complex, or always interleaved in float32). */
   protected T!: Real;
@@ -41,8 +44,8 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     this.w = mk(w * M);
     this.v = mk(w * M);
     const s = this.f32
-      ? Math.fround(1 / Math.fround(Math.sqrt(Math.fround(this.options.delta))))
-      : 1 / Math.sqrt(this.options.delta);
+      ? Math.fround(1 / Math.fround(sqrt(Math.fround(this.options.delta))))
+      : 1 / sqrt(this.options.delta);
     for (let j = 0; j < M; j++) {
       this.T[w * (j * M + j)] = s;
     }
@@ -158,7 +161,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     const w = this.w as Float64Array;
     const v = this.v as Float64Array;
     const ub = this.ub as Float64Array;
-    const isl = 1 / Math.sqrt(this.options.lambda);
+    const isl = 1 / sqrt(this.options.lambda);
     const tv = this.transversal;
     const dec = this.options.decimation;
     const thr = this.options.divergenceThreshold;
@@ -197,7 +200,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
           a += T[b0 + k] * ub[uo + k];
         }
         a *= isl;
-        const etaN = Math.sqrt(eta * eta + a * a);
+        const etaN = sqrt(eta * eta + a * a);
         const inv = 1 / etaN;
         const c = eta * inv;
         const s = a * inv;
@@ -257,7 +260,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     const w = this.w as Float64Array;
     const v = this.v as Float64Array;
     const ub = this.ub as Float64Array;
-    const isl = 1 / Math.sqrt(this.options.lambda);
+    const isl = 1 / sqrt(this.options.lambda);
     const tv = this.transversal;
     const dec = this.options.decimation;
     const thr = this.options.divergenceThreshold;
@@ -317,7 +320,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
         }
         ar *= isl;
         ai *= isl;
-        const etaN = Math.sqrt(eta * eta + ar * ar + ai * ai);
+        const etaN = sqrt(eta * eta + ar * ar + ai * ai);
         const inv = 1 / etaN;
         const c = eta * inv;
         const sr = ar * inv;
@@ -396,7 +399,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     const w = this.w as Float32Array;
     const v = this.v as Float32Array;
     const ub = this.ub as Float32Array;
-    const isl = f(1 / f(Math.sqrt(f(this.options.lambda))));
+    const isl = f(1 / f(sqrt(f(this.options.lambda))));
     const tv = this.transversal;
     const dec = this.options.decimation;
     const thr = this.options.divergenceThreshold;
@@ -454,7 +457,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
         }
         ar = f(ar * isl);
         ai = f(ai * isl);
-        const etaN = f(Math.sqrt(f(f(eta * eta) + f(f(ar * ar) + f(ai * ai)))));
+        const etaN = f(sqrt(f(f(eta * eta) + f(f(ar * ar) + f(ai * ai)))));
         const inv = f(1 / etaN);
         const c = f(eta * inv);
         const sr = f(ar * inv);

@@ -20,6 +20,9 @@ import { AdaptiveFilter } from './base';
 import { HEALTH_ALPHA } from './base';
 import type { FilterOptions, Real } from './types';
 
+// Module-level alias: a global lookup per call is slow in some hosts (e.g. vm contexts).
+const sqrt = Math.sqrt;
+
 export class QrRlsFilter extends AdaptiveFilter {
   /** R, upper triangle, row-major M×M (interleaved complex, or always interleaved in float32). */
   protected R!: Real;
@@ -46,8 +49,8 @@ export class QrRlsFilter extends AdaptiveFilter {
     this.p = mk(w * M);
     this.r = mk(w * M);
     const sd = this.f32
-      ? Math.fround(Math.sqrt(Math.fround(this.options.delta)))
-      : Math.sqrt(this.options.delta);
+      ? Math.fround(sqrt(Math.fround(this.options.delta)))
+      : sqrt(this.options.delta);
     for (let j = 0; j < M; j++) {
       this.R[w * (j * M + j)] = sd;
     }
@@ -175,7 +178,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     const p = this.p as Float64Array;
     const r = this.r as Float64Array;
     const ub = this.ub as Float64Array;
-    const sl = Math.sqrt(this.options.lambda);
+    const sl = sqrt(this.options.lambda);
     const tv = this.transversal;
     const dec = this.options.decimation;
     const L = M;
@@ -210,7 +213,7 @@ export class QrRlsFilter extends AdaptiveFilter {
         const jj = j * M + j;
         const a = sl * R[jj];
         const b = r[j];
-        const rho = Math.sqrt(a * a + b * b);
+        const rho = sqrt(a * a + b * b);
         const inv = 1 / rho;
         const c = a * inv;
         const s = b * inv;
@@ -271,7 +274,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     const p = this.p as Float64Array;
     const r = this.r as Float64Array;
     const ub = this.ub as Float64Array;
-    const sl = Math.sqrt(this.options.lambda);
+    const sl = sqrt(this.options.lambda);
     const tv = this.transversal;
     const dec = this.options.decimation;
     const L = M2;
@@ -314,7 +317,7 @@ export class QrRlsFilter extends AdaptiveFilter {
         const a = sl * R[jj];
         const br = r[2 * j];
         const bi = r[2 * j + 1];
-        const rho = Math.sqrt(a * a + br * br + bi * bi);
+        const rho = sqrt(a * a + br * br + bi * bi);
         const inv = 1 / rho;
         const c = a * inv;
         const sr = br * inv;
@@ -397,7 +400,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     const p = this.p as Float32Array;
     const r = this.r as Float32Array;
     const ub = this.ub as Float32Array;
-    const sl = f(Math.sqrt(f(this.options.lambda)));
+    const sl = f(sqrt(f(this.options.lambda)));
     const tv = this.transversal;
     const dec = this.options.decimation;
     const L = cx ? M2 : M;
@@ -439,7 +442,7 @@ export class QrRlsFilter extends AdaptiveFilter {
         const a = f(sl * R[jj]);
         const br = r[2 * j];
         const bi = r[2 * j + 1];
-        const rho = f(Math.sqrt(f(f(a * a) + f(f(br * br) + f(bi * bi)))));
+        const rho = f(sqrt(f(f(a * a) + f(f(br * br) + f(bi * bi)))));
         const inv = f(1 / rho);
         const c = f(a * inv);
         const sr = f(br * inv);

@@ -23,6 +23,9 @@
 import { AdaptiveFilter, HEALTH_ALPHA } from './base';
 import type { FilterOptions, Real } from './types';
 
+// Module-level alias: a global lookup per call is slow in some hosts (e.g. vm contexts).
+const sqrt = Math.sqrt;
+
 export class RlsFilter extends AdaptiveFilter {
   /** P, row-major M×M (interleaved complex, or always interleaved in float32). */
   protected P!: Real;
@@ -97,7 +100,7 @@ export class RlsFilter extends AdaptiveFilter {
 
   /** Slow path: reports a loss of definiteness or symmetry at `index`. */
   private report(q: number, diagBad: boolean, asym: number, index: number): void {
-    if (!(q >= 0) || diagBad) {
+    if ((this.hMask & 4) === 0 && (!(q >= 0) || diagBad)) {
       this.flag(
         'indefinite',
         index,
@@ -106,7 +109,7 @@ export class RlsFilter extends AdaptiveFilter {
           : `P lost positive definiteness (uᴴPu = ${q.toExponential(3)}) at sample ${index}`
       );
     }
-    if (asym > this.options.asymmetryTolerance) {
+    if ((this.hMask & 8) === 0 && asym > this.options.asymmetryTolerance) {
       this.flag(
         'asymmetry',
         index,
@@ -249,7 +252,7 @@ export class RlsFilter extends AdaptiveFilter {
           dn += t * t;
           nn += pi[k] * pi[k];
         }
-        asym = Math.sqrt(dn / nn);
+        asym = sqrt(dn / nn);
       }
       let q = 0;
       for (let k = 0; k < M; k++) {
@@ -431,7 +434,7 @@ export class RlsFilter extends AdaptiveFilter {
           dn += tr * tr + ti * ti;
           nn += pi[k] * pi[k] + pi[k + 1] * pi[k + 1];
         }
-        asym = Math.sqrt(dn / nn);
+        asym = sqrt(dn / nn);
       }
       let q = 0;
       for (let k = 0; k < M2; k += 2) {
@@ -635,7 +638,7 @@ export class RlsFilter extends AdaptiveFilter {
           dn += tr * tr + ti * ti;
           nn += pi[k] * pi[k] + pi[k + 1] * pi[k + 1];
         }
-        asym = Math.sqrt(dn / nn);
+        asym = sqrt(dn / nn);
       }
       let q = 0;
       for (let k = 0; k < M; k++) {
