@@ -923,6 +923,8 @@ export class KernelBridge implements IDisposable {
   }
 
   private _dropComm(): void {
+    // A new kernel process may support the comm even if the last one did not.
+    this._commFailed = false;
     this._comm = null;
     this._commReady = null;
     this._commHandlers.clear();
@@ -1091,6 +1093,7 @@ export class KernelBridge implements IDisposable {
         reject: (e: unknown) => void;
       } | null = null;
       let failure: BridgeError | null = null;
+      const inbox: Record<string, unknown>[] = [];
       this._commHandlers.set(req, d => {
         op.touch();
         let err: BridgeError | null = null;
@@ -1111,6 +1114,10 @@ export class KernelBridge implements IDisposable {
           waiter = null;
           w.resolve(d);
           return;
+        } else {
+          // Pipelined small writes: a reply may come before anyone waits for it.
+          inbox.push(d);
+          return;
         }
         if (err) {
           failure = err;
@@ -1126,6 +1133,15 @@ export class KernelBridge implements IDisposable {
         opName: string
       ): Promise<Record<string, unknown>> =>
         new Promise<Record<string, unknown>>((resolve, reject) => {
+          const queued = inbox.shift();
+          if (queued) {
+            if (queued.op === opName) {
+              resolve(queued);
+            } else {
+              reject(malformed(label));
+            }
+            return;
+          }
           if (failure) {
             reject(failure);
             return;
@@ -1148,14 +1164,20 @@ export class KernelBridge implements IDisposable {
         nbytes: raw.byteLength,
         overwrite
       });
-      const begun = await Promise.race([expect(begin, 'w-begun'), op.promise]);
-      const early = parseWriteReply(begun, label);
-      if (early && 'conflict' in early) {
-        return early;
-      }
       const cs = this._writeChunk;
+      // A small write goes in one burst (begin, data, end) without waiting for the kernel's
+      // answer to begin: one round trip. A large one waits, so that nothing is sent when the
+      // name needs confirmation.
+      const small = raw.byteLength <= cs;
+      if (!small) {
+        const begun = await Promise.race([expect(begin, 'w-begun'), op.promise]);
+        const early = parseWriteReply(begun, label);
+        if (early && 'conflict' in early) {
+          return early;
+        }
+      }
       for (let offset = 0; offset < raw.byteLength; offset += cs) {
-        if (failure) {
+        if (failure && !small) {
           throw failure;
         }
         if (op.done) {
@@ -1170,9 +1192,18 @@ export class KernelBridge implements IDisposable {
         ) as ArrayBuffer;
         this._commSend(comm, op, { req, op: 'w-chunk', offset }, [chunk]);
         // Let the socket drain so that memory stays bounded on large writes.
-        await yieldToEventLoop();
+        if (!small) {
+          await yieldToEventLoop();
+        }
       }
       const endF = this._commSend(comm, op, { req, op: 'w-end' });
+      if (small) {
+        const begun = await Promise.race([expect(begin, 'w-begun'), op.promise]);
+        const early = parseWriteReply(begun, label);
+        if (early && 'conflict' in early) {
+          return early;
+        }
+      }
       const ended = await Promise.race([expect(endF, 'w-ended'), op.promise]);
       const r = parseWriteReply(ended, label);
       if (!r) {
@@ -1199,8 +1230,12 @@ export class KernelBridge implements IDisposable {
   private async _readBase64(src: string, label: string, original: ArraySource): Promise<ArrayData> {
     const h = ++this._req;
     const what = sourceLabel(original);
+    const cs = this._readChunk;
+    // One request opens the stage and brings the first chunk (closing the stage when that
+    // was all): a small array costs one round trip.
     const openR = await this._evaluate(label, {
-      r: `${HELPER_REF}.b64_open(${h}, ${src}, ${pyIntLiteral('maxBytes', this._maxBytes)})`
+      r: `${HELPER_REF}.b64_open(${h}, ${src}, ${pyIntLiteral('maxBytes', this._maxBytes)})`,
+      c: `${HELPER_REF}.b64_chunk(${h}, 0, ${cs}, True)`
     });
     const head0 = parseJsonExpression(openR.r, label);
     if (isRecord(head0) && typeof head0.error === 'string') {
@@ -1211,8 +1246,8 @@ export class KernelBridge implements IDisposable {
         this._maxBytesSetting
       );
     }
+    let closed = false;
     try {
-      const cs = this._readChunk;
       const head = parseHeader(
         {
           ...(head0 as object),
@@ -1225,9 +1260,30 @@ export class KernelBridge implements IDisposable {
       const out = new Float64Array(head.nbytes / 8);
       const bytes = new Uint8Array(out.buffer);
       const offsets: number[] = [];
-      for (let o = 0; o < head.nbytes; o += cs) {
+      for (let o = cs; o < head.nbytes; o += cs) {
         offsets.push(o);
       }
+      closed = offsets.length === 0;
+      const put = (entry: unknown, o: number): void => {
+        const size = Math.min(cs, head.nbytes - o);
+        const text = plainText(entry, label);
+        if (text.startsWith('{')) {
+          throw new BridgeError(
+            'malformed',
+            `The kernel lost the staged array while ${label} (was the helper reset?). Try again.`
+          );
+        }
+        let n: number;
+        try {
+          n = decodeBase64Into(text, bytes, o);
+        } catch {
+          throw malformed(label);
+        }
+        if (n !== size) {
+          throw malformed(label);
+        }
+      };
+      put(openR.c, 0);
       // A few requests in flight keep the kernel busy while the previous reply is decoded.
       let next = 0;
       const worker = async (): Promise<void> => {
@@ -1237,28 +1293,15 @@ export class KernelBridge implements IDisposable {
           const r = await this._evaluate(label, {
             r: `${HELPER_REF}.b64_chunk(${h}, ${o}, ${size})`
           });
-          const text = plainText(r.r, label);
-          if (text.startsWith('{')) {
-            throw new BridgeError(
-              'malformed',
-              `The kernel lost the staged array while ${label} (was the helper reset?). Try again.`
-            );
-          }
-          let n: number;
-          try {
-            n = decodeBase64Into(text, bytes, o);
-          } catch {
-            throw malformed(label);
-          }
-          if (n !== size) {
-            throw malformed(label);
-          }
+          put(r.r, o);
         }
       };
       await Promise.all([worker(), worker(), worker()]);
       return { data: out, shape: head.shape, complex: head.complex, dtype: head.dtype };
     } finally {
-      this._release(`${HELPER_REF}.b64_close(${h})`);
+      if (!closed) {
+        this._release(`${HELPER_REF}.b64_close(${h})`);
+      }
     }
   }
 
@@ -1271,26 +1314,56 @@ export class KernelBridge implements IDisposable {
     label: string
   ): Promise<{ conflict: WriteConflict } | { was: WriteConflict }> {
     const h = ++this._req;
-    const begin = await this._evaluate(label, {
-      r: `${HELPER_REF}.w_begin(${h}, ${pyStringLiteral(name)}, [${shape.map(s => pyIntLiteral('shape', s)).join(', ')}], ${complex ? 'True' : 'False'}, ${raw.byteLength}, ${overwrite ? 'True' : 'False'})`
-    });
+    // 3 MiB of bytes is 4 MiB of base64: far below the 10 MiB message limit.
+    const cs = Math.min(this._writeChunk, 3 * MiB);
+    const beginExpr = `${HELPER_REF}.w_begin(${h}, ${pyStringLiteral(name)}, [${shape.map(s => pyIntLiteral('shape', s)).join(', ')}], ${complex ? 'True' : 'False'}, ${raw.byteLength}, ${overwrite ? 'True' : 'False'})`;
+    const chunkExpr = (o: number): string =>
+      `${HELPER_REF}.w_chunk(${h}, ${o}, "${encodeBase64(raw.subarray(o, Math.min(o + cs, raw.byteLength)))}")`;
+    const checkChunk = (entry: unknown): void => {
+      const v = parseJsonExpression(entry, label);
+      if (!isRecord(v) || v.ok !== true) {
+        throw this._kernelRefusal(v, name);
+      }
+    };
+    if (raw.byteLength <= cs) {
+      // Small: begin, data and end in one request (evaluated in order; after a conflict the
+      // later two find no stage and are ignored).
+      const r = await this._evaluate(label, {
+        b: beginExpr,
+        c: chunkExpr(0),
+        e: `${HELPER_REF}.w_end(${h})`
+      });
+      const b = parseWriteReply(parseJsonExpression(r.b, label), label);
+      if (b && 'conflict' in b) {
+        return b;
+      }
+      checkChunk(r.c);
+      const done = parseWriteReply(parseJsonExpression(r.e, label), label);
+      if (!done) {
+        throw malformed(label);
+      }
+      return done;
+    }
+    const begin = await this._evaluate(label, { r: beginExpr });
     const b = parseWriteReply(parseJsonExpression(begin.r, label), label);
     if (b && 'conflict' in b) {
       return b;
     }
-    // 3 MiB of bytes is 4 MiB of base64: far below the 10 MiB message limit.
-    const cs = Math.min(this._writeChunk, 3 * MiB);
     try {
+      const offsets: number[] = [];
       for (let o = 0; o < raw.byteLength; o += cs) {
-        const text = encodeBase64(raw.subarray(o, Math.min(o + cs, raw.byteLength)));
-        const r = await this._evaluate(label, {
-          r: `${HELPER_REF}.w_chunk(${h}, ${o}, "${text}")`
-        });
-        const v = parseJsonExpression(r.r, label);
-        if (!isRecord(v) || v.ok !== true) {
-          throw this._kernelRefusal(v, name);
-        }
+        offsets.push(o);
       }
+      // A few chunks in flight: the kernel decodes one while the next is on its way.
+      let next = 0;
+      const worker = async (): Promise<void> => {
+        while (next < offsets.length) {
+          const o = offsets[next++];
+          const r = await this._evaluate(label, { r: chunkExpr(o) });
+          checkChunk(r.r);
+        }
+      };
+      await Promise.all([worker(), worker(), worker()]);
       const end = await this._evaluate(label, { r: `${HELPER_REF}.w_end(${h})` });
       const r = parseWriteReply(parseJsonExpression(end.r, label), label);
       if (!r) {

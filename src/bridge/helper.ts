@@ -322,11 +322,14 @@ def b64_open(h, src, max_bytes):
     drop_old(stash, 4)
     return reply(head)
 
-def b64_chunk(h, offset, size):
+def b64_chunk(h, offset, size, close_if_last=False):
     raw = stash.get(h)
     if raw is None:
         return reply({"error": "stale"})
-    return Text(base64.b64encode(raw[offset:offset + size].tobytes()).decode("ascii"))
+    text = base64.b64encode(raw[offset:offset + size].tobytes()).decode("ascii")
+    if close_if_last and offset + size >= raw.size:
+        stash.pop(h, None)
+    return Text(text)
 
 def b64_close(h):
     stash.pop(h, None)

@@ -288,6 +288,36 @@ describe.each(['comm', 'base64'] as const)('write over %s', transport => {
   });
 });
 
+describe('large writes that need confirmation', () => {
+  it.each(['comm', 'base64'] as const)(
+    'over %s: nothing but the request is sent when the name is taken',
+    async transport => {
+      const bridge = new KernelBridge({ kernel, transport });
+      await runCell(kernel, 'taken_big = "keep me"');
+      let sent = 0;
+      const watch = (_: unknown, a: Kernel.IAnyMessageArgs): void => {
+        if (a.direction === 'send') {
+          const bufs = (a.msg.buffers ?? []) as ArrayBuffer[];
+          sent += bufs.reduce((n, b) => n + b.byteLength, 0) + JSON.stringify(a.msg.content).length;
+        }
+      };
+      kernel.anyMessage.connect(watch);
+      const data = new Float64Array(1_000_000); // 8 MB: more than one chunk
+      const r = await bridge.writeArray('taken_big', {
+        data,
+        shape: [data.length],
+        complex: false,
+        dtype: 'float64'
+      });
+      kernel.anyMessage.disconnect(watch);
+      expect(r).toMatchObject({ status: 'exists', conflict: { existingType: 'str' } });
+      expect(sent).toBeLessThan(100_000);
+      expect(await evalText(kernel, 'taken_big')).toBe("'keep me'");
+      bridge.dispose();
+    }
+  );
+});
+
 describe('large arrays', () => {
   it('reads 1e7 float64 bit-exact over the comm and writes them back', async () => {
     await runCell(kernel, 'big = np.random.default_rng(7).standard_normal(10_000_000)');
