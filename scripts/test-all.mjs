@@ -17,7 +17,11 @@ function staticChecks() {
     ['tsc (extension)', bin('tsc'), ['-b', 'tsconfig.json']],
     ['tsc (core, no DOM)', bin('tsc'), ['-p', 'src/core/tsconfig.json', '--noEmit']],
     ['tsc (tests and benches)', bin('tsc'), ['-p', 'tsconfig.test.json', '--noEmit']],
-    ['eslint', bin('eslint'), ['--no-error-on-unmatched-pattern', 'src', 'test', 'scripts', 'bench']],
+    [
+      'eslint',
+      bin('eslint'),
+      ['--no-error-on-unmatched-pattern', 'src', 'test', 'scripts', 'bench']
+    ],
     [
       'prettier',
       bin('prettier'),

@@ -6,9 +6,9 @@ import {
   showErrorMessage
 } from '@jupyterlab/apputils';
 import type { TranslationBundle } from '@jupyterlab/translation';
-import type { ILoadedArray, IHumOptions, LoadedArraysModel } from '../model/loaded';
+import type { ILoadedArray, LoadedArraysModel } from '../model/loaded';
 import type { SourcesModel } from '../model/sources';
-import { HumDialogBody } from './hum-dialog';
+import { HumDialogBody, type IHumDialogValue } from './hum-dialog';
 
 /**
  * What the panel's buttons do: ask the user (dialogs), then let the model do the work. Failures
@@ -65,7 +65,7 @@ export class PanelActions {
     if (bridge) {
       fs = await bridge.readScalar('fs').catch(() => null);
     }
-    const answer = await showDialog<IHumOptions>({
+    const answer = await showDialog<IHumDialogValue>({
       title: trans.__('Remove mains hum from %1', item.label),
       body: new HumDialogBody({ trans, fs }),
       buttons: [Dialog.cancelButton(), Dialog.okButton({ label: trans.__('Remove hum') })],
@@ -74,7 +74,27 @@ export class PanelActions {
     if (!answer.button.accept || !answer.value) {
       return;
     }
-    if (!this._loaded.removeHum(item.id, answer.value)) {
+    let rate = answer.value.fs;
+    if (typeof rate === 'string') {
+      // A name: read the sample rate from the kernel (validated as identifiers by the bridge).
+      try {
+        if (!bridge) {
+          throw new Error('there is no kernel to read it from');
+        }
+        rate = await bridge.readScalar(rate);
+      } catch (reason) {
+        await showErrorMessage(
+          trans.__('Hum removal failed'),
+          trans.__(
+            'Could not read the sample rate %1: %2',
+            answer.value.fs,
+            String((reason as Error).message ?? reason)
+          )
+        );
+        return;
+      }
+    }
+    if (!this._loaded.removeHum(item.id, { ...answer.value, fs: rate })) {
       await showErrorMessage(trans.__('Hum removal failed'), this._loaded.message);
     }
   }

@@ -2,6 +2,11 @@ import { Widget } from '@lumino/widgets';
 import type { TranslationBundle } from '@jupyterlab/translation';
 import type { IHumOptions } from '../model/loaded';
 
+/** What the dialog returns: the hum options, with fs possibly naming a kernel variable. */
+export interface IHumDialogValue extends Omit<IHumOptions, 'fs'> {
+  fs: number | string;
+}
+
 /**
  * The body of the hum-removal dialog: fundamental, sample rate and number of harmonics. It only
  * collects numbers; the core checks them (and says which one is wrong) when the tool runs.
@@ -14,7 +19,7 @@ export class HumDialogBody extends Widget {
     this._f0 = Private.field(this.node, trans.__('Fundamental f₀ (Hz)'), '50', 'f0');
     this._fs = Private.field(
       this.node,
-      trans.__('Sample rate fs (Hz)'),
+      trans.__('Sample rate fs (Hz, or a kernel variable such as fs or rec.fs)'),
       options.fs === null ? '' : String(options.fs),
       'fs'
     );
@@ -27,10 +32,12 @@ export class HumDialogBody extends Widget {
     this.node.append(hint);
   }
 
-  getValue(): IHumOptions {
+  /** The numbers typed; `fs` may instead be the name of a kernel variable or attribute. */
+  getValue(): IHumDialogValue {
+    const fs = this._fs.value.trim();
     return {
       f0: Number(this._f0.value),
-      fs: this._fs.value.trim() === '' ? NaN : Number(this._fs.value),
+      fs: fs === '' ? NaN : /^[+-]?[\d.]/.test(fs) ? Number(fs) : fs,
       harmonics: Number(this._harmonics.value)
     };
   }
