@@ -325,6 +325,21 @@ export class Dense {
 
   /** A contiguous copy in the given order. */
   copy(order: Order = 'C'): Dense {
+    const f = this.complex ? 2 : 1;
+    if (
+      (order === 'F' && this.isFContiguous()) ||
+      (order === 'C' && this.isCContiguous()) ||
+      (this.ndim === 1 && this.strides[0] === 1)
+    ) {
+      const start = f * this.offset;
+      return new Dense(
+        this.data.slice(start, start + f * this.size),
+        this.shape,
+        contiguousStrides(this.shape, order),
+        0,
+        this.complex
+      );
+    }
     const out = Dense.zeros(this.shape, { complex: this.complex, order });
     if (this.ndim === 1) {
       for (let i = 0; i < this.rows; i++) {

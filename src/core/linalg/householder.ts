@@ -31,6 +31,12 @@ export const QR_BLOCK = 32;
 /** Below this many columns a panel is factored by the unblocked (level-2) algorithm. */
 const PANEL_BASE = 4;
 
+/**
+ * Below this many columns of C, Q is applied one reflector at a time (LAPACK xORM2R): forming
+ * the block factor T costs k²m flops, more than the 4kmn of the application itself.
+ */
+const UNBLOCKED_COLS = 4;
+
 /** Workspace of one factorisation (allocated once per call, reused in the loops). */
 interface Work {
   vp: Float64Array; // packed V of the current panel, ldv = rows of the panel
@@ -276,6 +282,10 @@ export function dormqrCM(
   if (m === 0 || n === 0 || k === 0) {
     return;
   }
+  if (n < UNBLOCKED_COLS) {
+    dorm2r(trans, m, n, k, a, oa, lda, tau, otau, c, oc, ldc);
+    return;
+  }
   const ws = makeWork(m, nb, false);
   const nblocks = Math.ceil(k / nb);
   for (let b = 0; b < nblocks; b++) {
@@ -286,6 +296,99 @@ export function dormqrCM(
     dpackV(rows, kb, a, oa + j0 + j0 * lda, lda, ws.vp, 0, rows);
     dlarft(rows, kb, ws.vp, 0, rows, tau, otau + j0, ws.t, 0, nb);
     dlarfbLeft(trans, rows, n, kb, ws.vp, 0, rows, ws.t, 0, nb, c, oc + j0, ldc, ws.w);
+  }
+}
+
+/** Applies Q ('N') or Qᵀ ('T') one reflector at a time (LAPACK dorm2r, side L). */
+export function dorm2r(
+  trans: 'N' | 'T',
+  m: number,
+  n: number,
+  k: number,
+  a: Float64Array,
+  oa: number,
+  lda: number,
+  tau: Float64Array,
+  otau: number,
+  c: Float64Array,
+  oc: number,
+  ldc: number
+): void {
+  for (let s = 0; s < k; s++) {
+    const i = trans === 'T' ? s : k - 1 - s;
+    const t = tau[otau + i];
+    if (t === 0) {
+      continue;
+    }
+    const v = oa + i + i * lda; // v(0) = 1 implicitly, v(1:) = a(i+1:m, i)
+    for (let j = 0; j < n; j++) {
+      const cj = oc + i + j * ldc;
+      let d0 = c[cj];
+      let d1 = 0;
+      let r = 1;
+      for (; r + 1 < m - i; r += 2) {
+        d0 += a[v + r] * c[cj + r];
+        d1 += a[v + r + 1] * c[cj + r + 1];
+      }
+      if (r < m - i) {
+        d0 += a[v + r] * c[cj + r];
+      }
+      const f = t * (d0 + d1);
+      c[cj] -= f;
+      for (let q = 1; q < m - i; q++) {
+        c[cj + q] -= f * a[v + q];
+      }
+    }
+  }
+}
+
+/** Applies Q ('N') or Qᴴ ('C') one reflector at a time (LAPACK zunm2r, side L). */
+export function zunm2r(
+  trans: 'N' | 'C',
+  m: number,
+  n: number,
+  k: number,
+  a: Float64Array,
+  oa: number,
+  lda: number,
+  tau: Float64Array,
+  otau: number,
+  c: Float64Array,
+  oc: number,
+  ldc: number
+): void {
+  for (let s = 0; s < k; s++) {
+    const i = trans === 'C' ? s : k - 1 - s;
+    const tr = tau[2 * (otau + i)];
+    const ti = trans === 'C' ? -tau[2 * (otau + i) + 1] : tau[2 * (otau + i) + 1];
+    if (tr === 0 && ti === 0) {
+      continue;
+    }
+    const v = 2 * (oa + i + i * lda);
+    const len = 2 * (m - i);
+    for (let j = 0; j < n; j++) {
+      const cj = 2 * (oc + i + j * ldc);
+      let sr = c[cj];
+      let si = c[cj + 1];
+      for (let r = 2; r < len; r += 2) {
+        const vr = a[v + r],
+          vi = a[v + r + 1];
+        const xr = c[cj + r],
+          xi = c[cj + r + 1];
+        sr += vr * xr + vi * xi;
+        si += vr * xi - vi * xr;
+      }
+      const fr = tr * sr - ti * si;
+      const fi = tr * si + ti * sr;
+      c[cj] -= fr;
+      c[cj + 1] -= fi;
+      for (let r = 2; r < len; r += 2) {
+        const vr = a[v + r],
+          vi = a[v + r + 1];
+        c[cj + r] -= fr * vr - fi * vi;
+        c[cj + r + 1] -= fr * vi + fi * vr;
+      }
+    }
   }
 }
 
@@ -610,6 +713,10 @@ export function zunmqrCM(
   nb = QR_BLOCK
 ): void {
   if (m === 0 || n === 0 || k === 0) {
+    return;
+  }
+  if (n < UNBLOCKED_COLS) {
+    zunm2r(trans, m, n, k, a, oa, lda, tau, otau, c, oc, ldc);
     return;
   }
   const ws = makeWork(m, nb, true);
