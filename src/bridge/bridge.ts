@@ -765,6 +765,8 @@ export class KernelBridge implements IDisposable {
   private _onConnection(_: Kernel.IKernelConnection, status: Kernel.ConnectionStatus): void {
     if (status !== 'connected') {
       this._dropComm();
+      // Status messages may have been missed; the next one tells the truth again.
+      this._shellBusy = false;
       this._failAll(
         'disconnected',
         'The connection to the Jupyter server dropped before the request finished. Nothing in the panel was changed; try again when the kernel is connected.'
