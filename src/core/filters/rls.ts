@@ -10,15 +10,17 @@
  * its conjugate), so P stays exactly Hermitian; π is formed from the upper triangle. Per sample
  * (real): about 3.5M² flops.
  *
- * Legacy variant (`rls-legacy`, for reproducing old code only): the textbook form with the full
- * matrix, P(n) = λ⁻¹(P(n−1) − k uᴴP(n−1)), where uᴴP is computed separately from Pu. Rounding
- * makes P slightly non-Hermitian, and that defect grows like λ⁻ⁿ (Verhaegen, "Round-off error
- * propagation in four generally-applicable, recursive, least-squares estimation schemes",
- * Automatica 25(3), 1989): in float64 at λ = 0.999 it diverges within about 1e5 samples. The
- * health monitor reports the relative asymmetry ‖(P − Pᴴ)u‖/‖Pu‖ (free: both products are
- * formed anyway) and loss of positive definiteness, each with its sample index. For complex data
- * the legacy form uses the real part of uᴴPu (its imaginary part is a Hermitian defect). About
- * 7M² flops per sample.
+ * Legacy variant (`rls-legacy`, for reproducing old code only): the same formulas applied to
+ * every entry of the full matrix, P(n) = λ⁻¹(P(n−1) − k πᴴ), with nothing that keeps P
+ * Hermitian. k πᴴ = ππᴴ/α is Hermitian, so the anti-Hermitian part D of P is not damped at all:
+ * D(n) = λ⁻¹D(n−1) + rounding, i.e. it grows like λ⁻ⁿ from the first rounding errors (Verhaegen,
+ * "Round-off error propagation in four generally-applicable, recursive, least-squares estimation
+ * schemes", Automatica 25(3), 1989; Haykin, 4th ed., §13.1 on the numerical instability of
+ * conventional RLS (from memory)). In float64 at λ = 0.999 that takes P apart within about
+ * 1e5 samples. The health monitor forms Pᴴu as well (ψ, an extra M² multiply-adds that only the
+ * legacy variant pays) and reports the relative asymmetry ‖(P − Pᴴ)u‖/‖Pu‖ and any loss of
+ * positive definiteness, each with its sample index. For complex data α uses the real part of
+ * uᴴPu. About 7M² flops per sample.
  */
 import { AdaptiveFilter, HEALTH_ALPHA } from './base';
 import type { FilterOptions, Real } from './types';
@@ -233,7 +235,7 @@ export class RlsFilter extends AdaptiveFilter {
           pi[r] = acc;
         }
       } else {
-        // π = P u and ψ = uᵀP, separately, as the textbook code does.
+        // π = P u over the full matrix; ψ = uᵀP only for the asymmetry monitor.
         for (let r = 0; r < M; r++) {
           const b = r * M;
           const ur = ub[uo + r];
@@ -283,7 +285,7 @@ export class RlsFilter extends AdaptiveFilter {
           const b = r * M;
           const kr = pi[r] * ia;
           for (let j = 0; j < M; j++) {
-            P[b + j] = (P[b + j] - kr * psi[j]) * il;
+            P[b + j] = (P[b + j] - kr * pi[j]) * il;
           }
           if (!(P[b + r] > 0)) {
             diagBad = true;
@@ -480,10 +482,11 @@ export class RlsFilter extends AdaptiveFilter {
           const kr = pi[2 * r] * ia;
           const ki = pi[2 * r + 1] * ia;
           for (let j = 0; j < M; j++) {
-            const sr = psi[2 * j];
-            const si = psi[2 * j + 1];
-            P[b + 2 * j] = (P[b + 2 * j] - (kr * sr - ki * si)) * il;
-            P[b + 2 * j + 1] = (P[b + 2 * j + 1] - (kr * si + ki * sr)) * il;
+            // P_rj − k_r conj(π_j), every entry
+            const pr = pi[2 * j];
+            const pim = pi[2 * j + 1];
+            P[b + 2 * j] = (P[b + 2 * j] - (kr * pr + ki * pim)) * il;
+            P[b + 2 * j + 1] = (P[b + 2 * j + 1] - (ki * pr - kr * pim)) * il;
           }
           if (!(P[b + 2 * r] > 0)) {
             diagBad = true;
@@ -683,10 +686,10 @@ export class RlsFilter extends AdaptiveFilter {
           const kr = f(pi[2 * r] * ia);
           const ki = f(pi[2 * r + 1] * ia);
           for (let j = 0; j < M; j++) {
-            const sr = psi[2 * j];
-            const si = psi[2 * j + 1];
-            P[b + 2 * j] = f(f(P[b + 2 * j] - f(f(kr * sr) - f(ki * si))) * il);
-            P[b + 2 * j + 1] = f(f(P[b + 2 * j + 1] - f(f(kr * si) + f(ki * sr))) * il);
+            const pr = pi[2 * j];
+            const pim = pi[2 * j + 1];
+            P[b + 2 * j] = f(f(P[b + 2 * j] - f(f(kr * pr) + f(ki * pim))) * il);
+            P[b + 2 * j + 1] = f(f(P[b + 2 * j + 1] - f(f(ki * pr) - f(kr * pim))) * il);
           }
           if (!(P[b + 2 * r] > 0)) {
             diagBad = true;

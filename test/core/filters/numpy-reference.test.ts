@@ -94,9 +94,14 @@ test('every algorithm matches the numpy reference to 1e-10 (real/complex, transv
       epsilon: c.epsilon,
       decimation: 1
     });
+    // The legacy variant amplifies rounding like λ⁻ⁿ (that is its defect), so two correct
+    // implementations part after a while: compare it over the first 400 samples (λ⁻⁴⁰⁰ ≈ 3e3).
+    const span = c.algorithm === 'rls-legacy' ? 400 : Infinity;
     const rel = (a: ArrayLike<number>, name: string) => {
-      const ref = readF64(dir, `${c.tag}.${name}.bin`);
-      expect(ref.length).toBe(a.length);
+      const full = readF64(dir, `${c.tag}.${name}.bin`);
+      expect(full.length).toBe(a.length);
+      const per = full.length / r.length;
+      const ref = full.subarray(0, Math.min(full.length, span * per));
       const s = rms(ref);
       let m = 0;
       for (let i = 0; i < ref.length; i++) {
