@@ -12,7 +12,7 @@ import { checkInteger, describe } from '../errors';
 import { orth } from './basis';
 import type { PivotedQROptions } from '../linalg/pivoted';
 
-const BLOCK = 64;
+const BLOCK = 64; // vectors per block in the complex kernel
 
 /**
  * Real kernel. Q is m×r (any strides), X and Y are m×n (columns are the vectors; any strides,
@@ -39,94 +39,127 @@ export function dproject(
   oy: number,
   energy: Float64Array | null
 ): void {
-  // Q packed row-major (row i's r coefficients contiguous) for the row sweep below.
-  const qr = new Float64Array(m * r);
-  for (let i = 0; i < m; i++) {
-    for (let k = 0; k < r; k++) {
-      qr[i * r + k] = Q[oq + i * sq1 + k * sq2];
+  // Q packed direction-major (q_k contiguous). One vector at a time: c = Qᵀx in groups of four
+  // directions held in registers, then y = x − Q·c in groups of eight, then four, then one.
+  // The m entries of x are touched twice while they are in L1; x is read from memory once.
+  const qd = new Float64Array(m * r);
+  for (let k = 0; k < r; k++) {
+    for (let i = 0; i < m; i++) {
+      qd[k * m + i] = Q[oq + i * sq1 + k * sq2];
     }
   }
-  const B = Math.min(BLOCK, Math.max(1, n));
-  const c = new Float64Array(r * B);
-  const t = new Float64Array(B);
+  const qr = new Float64Array(m * r); // row-major copy for the update y = x − Q·c
+  for (let i = 0; i < m; i++) {
+    for (let k = 0; k < r; k++) {
+      qr[i * r + k] = qd[k * m + i];
+    }
+  }
+  const c = new Float64Array(r);
   const off = mode === 'off';
-  for (let j0 = 0; j0 < n; j0 += B) {
-    const nb = Math.min(B, n - j0);
-    c.fill(0, 0, r * B);
-    // c(k, b) = Σ_i q_ik x_i,j0+b, sweeping the rows of the block once.
-    for (let i = 0; i < m; i++) {
-      const xi = ox + i * sx1 + j0 * sx2;
-      const qi = i * r;
-      let k = 0;
-      for (; k + 4 <= r; k += 4) {
-        const q0 = qr[qi + k],
-          q1 = qr[qi + k + 1],
-          q2 = qr[qi + k + 2],
-          q3 = qr[qi + k + 3];
-        const c0 = k * B,
-          c1 = c0 + B,
-          c2 = c1 + B,
-          c3 = c2 + B;
-        for (let b = 0, e = xi; b < nb; b++, e += sx2) {
-          const v = X[e];
-          c[c0 + b] += q0 * v;
-          c[c1 + b] += q1 * v;
-          c[c2 + b] += q2 * v;
-          c[c3 + b] += q3 * v;
-        }
+  const sg = off ? -1 : 1;
+  const xs = off ? 1 : 0;
+  for (let j = 0; j < n; j++) {
+    const xj = ox + j * sx2;
+    const yj = oy + j * sy2;
+    let k = 0;
+    for (; k + 4 <= r; k += 4) {
+      const q0 = k * m;
+      const q1 = q0 + m;
+      const q2 = q1 + m;
+      const q3 = q2 + m;
+      let s0 = 0,
+        s1 = 0,
+        s2 = 0,
+        s3 = 0;
+      for (let i = 0, e = xj; i < m; i++, e += sx1) {
+        const v = X[e];
+        s0 += qd[q0 + i] * v;
+        s1 += qd[q1 + i] * v;
+        s2 += qd[q2 + i] * v;
+        s3 += qd[q3 + i] * v;
       }
-      for (; k < r; k++) {
-        const q0 = qr[qi + k];
-        const c0 = k * B;
-        for (let b = 0, e = xi; b < nb; b++, e += sx2) {
-          c[c0 + b] += q0 * X[e];
-        }
+      c[k] = s0;
+      c[k + 1] = s1;
+      c[k + 2] = s2;
+      c[k + 3] = s3;
+    }
+    for (; k < r; k++) {
+      const q0 = k * m;
+      let s0 = 0;
+      for (let i = 0, e = xj; i < m; i++, e += sx1) {
+        s0 += qd[q0 + i] * X[e];
       }
+      c[k] = s0;
     }
     if (energy) {
-      for (let k = 0; k < r; k++) {
-        let s = 0;
-        for (let b = 0; b < nb; b++) {
-          s += c[k * B + b] * c[k * B + b];
-        }
-        energy[k] += s;
+      for (let p = 0; p < r; p++) {
+        energy[p] += c[p] * c[p];
       }
     }
-    // y_i = x_i − Σ_k q_ik c_k (or the sum itself for 'onto').
-    for (let i = 0; i < m; i++) {
-      const qi = i * r;
-      t.fill(0, 0, nb);
-      let k = 0;
-      for (; k + 4 <= r; k += 4) {
-        const q0 = qr[qi + k],
-          q1 = qr[qi + k + 1],
-          q2 = qr[qi + k + 2],
-          q3 = qr[qi + k + 3];
-        const c0 = k * B,
-          c1 = c0 + B,
-          c2 = c1 + B,
-          c3 = c2 + B;
-        for (let b = 0; b < nb; b++) {
-          t[b] += q0 * c[c0 + b] + q1 * c[c1 + b] + q2 * c[c2 + b] + q3 * c[c3 + b];
-        }
-      }
-      for (; k < r; k++) {
-        const q0 = qr[qi + k];
-        const c0 = k * B;
-        for (let b = 0; b < nb; b++) {
-          t[b] += q0 * c[c0 + b];
-        }
-      }
-      const xi = ox + i * sx1 + j0 * sx2;
-      const yi = oy + i * sy1 + j0 * sy2;
-      if (off) {
-        for (let b = 0; b < nb; b++) {
-          Y[yi + b * sy2] = X[xi + b * sx2] - t[b];
+    // y = xs·x + Q·(sg·c) with (xs, sg) = (1, −1) for 'off' and (0, 1) for 'onto'; the first
+    // group of directions writes y, later groups add to it (inputs are finite, so 0·x = 0).
+    k = 0;
+    for (; k + 8 <= r; k += 8) {
+      const c0 = sg * c[k],
+        c1 = sg * c[k + 1],
+        c2 = sg * c[k + 2],
+        c3 = sg * c[k + 3],
+        c4 = sg * c[k + 4],
+        c5 = sg * c[k + 5],
+        c6 = sg * c[k + 6],
+        c7 = sg * c[k + 7];
+      if (k === 0) {
+        for (let i = 0, e = xj, o = yj; i < m; i++, e += sx1, o += sy1) {
+          const q = i * r;
+          Y[o] =
+            xs * X[e] +
+            (qr[q] * c0 + qr[q + 1] * c1 + qr[q + 2] * c2 + qr[q + 3] * c3) +
+            (qr[q + 4] * c4 + qr[q + 5] * c5 + qr[q + 6] * c6 + qr[q + 7] * c7);
         }
       } else {
-        for (let b = 0; b < nb; b++) {
-          Y[yi + b * sy2] = t[b];
+        for (let i = 0, o = yj; i < m; i++, o += sy1) {
+          const q = i * r + k;
+          Y[o] +=
+            qr[q] * c0 +
+            qr[q + 1] * c1 +
+            qr[q + 2] * c2 +
+            qr[q + 3] * c3 +
+            (qr[q + 4] * c4 + qr[q + 5] * c5 + qr[q + 6] * c6 + qr[q + 7] * c7);
         }
+      }
+    }
+    for (; k + 4 <= r; k += 4) {
+      const c0 = sg * c[k],
+        c1 = sg * c[k + 1],
+        c2 = sg * c[k + 2],
+        c3 = sg * c[k + 3];
+      if (k === 0) {
+        for (let i = 0, e = xj, o = yj; i < m; i++, e += sx1, o += sy1) {
+          const q = i * r;
+          Y[o] = xs * X[e] + (qr[q] * c0 + qr[q + 1] * c1 + qr[q + 2] * c2 + qr[q + 3] * c3);
+        }
+      } else {
+        for (let i = 0, o = yj; i < m; i++, o += sy1) {
+          const q = i * r + k;
+          Y[o] += qr[q] * c0 + qr[q + 1] * c1 + qr[q + 2] * c2 + qr[q + 3] * c3;
+        }
+      }
+    }
+    for (; k < r; k++) {
+      const c0 = sg * c[k];
+      if (k === 0) {
+        for (let i = 0, e = xj, o = yj; i < m; i++, e += sx1, o += sy1) {
+          Y[o] = xs * X[e] + qr[i * r] * c0;
+        }
+      } else {
+        for (let i = 0, o = yj; i < m; i++, o += sy1) {
+          Y[o] += qr[i * r + k] * c0;
+        }
+      }
+    }
+    if (r === 0) {
+      for (let i = 0, e = xj, o = yj; i < m; i++, e += sx1, o += sy1) {
+        Y[o] = xs * X[e];
       }
     }
   }
