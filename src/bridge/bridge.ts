@@ -990,8 +990,10 @@ export class KernelBridge implements IDisposable {
             switch (d.op) {
               case 'header': {
                 head = parseHeader(d, this._maxBytes, label);
-                out = new Float64Array(head.nbytes / 8);
-                bytes = new Uint8Array(out.buffer);
+                if (head.chunks > 1) {
+                  out = new Float64Array(head.nbytes / 8);
+                  bytes = new Uint8Array(out.buffer);
+                }
                 seen = new Uint8Array(head.chunks);
                 return;
               }
@@ -1000,7 +1002,6 @@ export class KernelBridge implements IDisposable {
                 const offset = d.offset;
                 if (
                   !head ||
-                  !bytes ||
                   !seen ||
                   typeof i !== 'number' ||
                   !Number.isInteger(i) ||
@@ -1017,7 +1018,17 @@ export class KernelBridge implements IDisposable {
                 if (b.byteLength !== expect) {
                   throw malformed(label);
                 }
-                bytes.set(new Uint8Array(b.buffer, b.byteOffset, b.byteLength), offset);
+                if (bytes) {
+                  bytes.set(new Uint8Array(b.buffer, b.byteOffset, b.byteLength), offset);
+                } else if (b.byteOffset % 8 === 0) {
+                  // One chunk: its buffer (a fresh copy made by the deserialiser) is the result.
+                  out = new Float64Array(b.buffer, b.byteOffset, b.byteLength / 8);
+                } else {
+                  out = new Float64Array(b.byteLength / 8);
+                  new Uint8Array(out.buffer).set(
+                    new Uint8Array(b.buffer, b.byteOffset, b.byteLength)
+                  );
+                }
                 seen[i] = 1;
                 received += b.byteLength;
                 return;
