@@ -6,7 +6,14 @@
  * afterwards.
  */
 import type { Kernel } from '@jupyterlab/services';
-import { BridgeError, KernelBridge, HELPER_MODULE, type ArrayData } from '../../src/bridge';
+import {
+  BridgeError,
+  KernelBridge,
+  HELPER_MODULE,
+  SessionLedger,
+  watchKernelExecutions,
+  type ArrayData
+} from '../../src/bridge';
 import { evalText, runCell, startServer, type JupyterServer } from './harness';
 
 let server: JupyterServer;
@@ -147,7 +154,12 @@ describe.each(['comm', 'base64'] as const)('over %s', transport => {
 
 describe('kernel lifecycle', () => {
   it('reports a restart mid-transfer, forgets the comm, and works after the restart', async () => {
-    const bridge = new KernelBridge({ kernel, timeoutMs: 20000 });
+    const ledger = new SessionLedger();
+    const watch = watchKernelExecutions(kernel, ledger);
+    const bridge = new KernelBridge({ kernel, timeoutMs: 20000, ledger });
+    const before = await runCell(kernel, 'np.arange(3.0)', 'cell-r');
+    const cells = [{ cellId: 'cell-r', executionCount: before.executionCount }];
+    expect(await bridge.listCellResults(cells)).toHaveLength(1);
     await bridge.listVariables();
     await runCell(kernel, slowHelper(10));
     const p = bridge.readArray({ kind: 'variable', name: 'y' });
@@ -159,6 +171,15 @@ describe('kernel lifecycle', () => {
       "The kernel restarted before the request finished. Nothing in the panel was changed; the kernel's variables are gone, so run the cells again."
     );
     await restart;
+    // After the restart the notebook's counts point at nothing: the ledger forgot them.
+    expect(ledger.size).toBe(0);
+    expect(await bridge.listCellResults(cells)).toEqual([]);
+    const stale = await failure(
+      bridge.readArray({ kind: 'cell', cellId: 'cell-r', executionCount: before.executionCount! })
+    );
+    expect(stale.code).toBe('stale-count');
+    expect(stale.message).toMatch(/was not produced by the kernel running now/);
+    watch.dispose();
     const err = await failure(bridge.readArray({ kind: 'variable', name: 'y' }));
     expect(err.code).toBe('not-found');
     await setup();

@@ -92,6 +92,7 @@ describe('listVariables', () => {
 
 describe('listCellResults', () => {
   it('lists array-like results of cells run in this session, and only those', async () => {
+    await runCell(kernel, 'import numpy as np\na = np.arange(12, dtype=np.float32).reshape(3, 4)');
     const ledger = new SessionLedger();
     const watch = watchKernelExecutions(kernel, ledger);
     const bridge = new KernelBridge({ kernel, ledger });
@@ -127,6 +128,23 @@ describe('listCellResults', () => {
     expect(infos[1]).toMatchObject({ shape: [3, 4], dtype: 'float32' });
     expect(infos[0].notes.some(n => /reference/.test(n))).toBe(true);
     expect(infos[2].notes.some(n => /same object as the variable a/.test(n))).toBe(true);
+    // display() and ';' keep results out of the output cache: reading says so.
+    const c6 = await runCell(kernel, 'display(np.ones(3))', 'cell-6');
+    expect(
+      await bridge.listCellResults([{ cellId: 'cell-6', executionCount: c6.executionCount }])
+    ).toEqual([]);
+    const e = await bridge
+      .readArray({ kind: 'cell', cellId: 'cell-4', executionCount: c4.executionCount! })
+      .catch(x => x);
+    expect(e).toMatchObject({ code: 'not-in-cache' });
+    expect(e.message).toBe(
+      `Out[${c4.executionCount}] is not in IPython's output cache. Results suppressed with ';' or shown with display() are not in IPython's output cache; pick the variable instead.`
+    );
+    // A count the ledger did not record (from another session) is refused before asking.
+    const stale = await bridge
+      .readArray({ kind: 'cell', cellId: 'cell-old', executionCount: 1 })
+      .catch(x => x);
+    expect(stale).toMatchObject({ code: 'stale-count' });
     // Without a ledger, the caller's counts are taken as given.
     const loose = new KernelBridge({ kernel });
     const all = await loose.listCellResults(cells);
