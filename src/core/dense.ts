@@ -405,8 +405,19 @@ export class Dense {
     );
   }
 
-  /** Real part as an ml-matrix Matrix (1-D arrays become a column). */
-  toMatrix(): Matrix {
+  /**
+   * As an ml-matrix Matrix (1-D arrays become a column). ml-matrix is real-only: a complex array
+   * throws a TypeError unless `part` says which part to take ('re' or 'im').
+   */
+  toMatrix(part?: 're' | 'im'): Matrix {
+    if (part === 'im') {
+      return this.toMatrixIm();
+    }
+    if (this.complex && part !== 're') {
+      throw new TypeError(
+        "this array is complex but ml-matrix's Matrix is real: call toMatrix('re') and toMatrix('im')"
+      );
+    }
     const a = this.asColumn();
     const m = new Matrix(a.rows, a.cols);
     for (let i = 0; i < a.rows; i++) {

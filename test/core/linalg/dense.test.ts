@@ -64,7 +64,10 @@ describe('layouts and views', () => {
       [5, 6]
     ]);
     const d = Dense.fromMatrix(m, Matrix.ones(3, 2));
-    expect(d.toMatrix().to2DArray()).toEqual(m.to2DArray());
+    expect(d.toMatrix('re').to2DArray()).toEqual(m.to2DArray());
+    // complex where real is required: ml-matrix is real-only
+    expect(() => d.toMatrix()).toThrow(TypeError);
+    expect(() => d.toMatrix()).toThrow(/complex but ml-matrix's Matrix is real/);
     expect(d.toMatrixIm().to2DArray()).toEqual(Matrix.ones(3, 2).to2DArray());
     expect(toDense('a', m).get(2, 1)).toBe(6);
   });

@@ -3,8 +3,10 @@
  * 2017, §4) at ordinary and extreme magnitudes where the naive √(f²+g²) overflows or underflows.
  * SciPy's dlartg/zlartg comparison lives in scipy-fixtures.test.ts.
  */
-import { drot, givens, givensComplex, zrot } from '../../../src/core/linalg';
-import { Rng } from './helpers';
+import { Dense } from '../../../src/core/dense';
+import { drot, givens, givensComplex, householderQR, zrot } from '../../../src/core/linalg';
+import { Rng, randn } from './helpers';
+import { rowPhaseDistance } from './scipyref';
 
 const EPS = Number.EPSILON;
 
@@ -148,4 +150,43 @@ describe('complex Givens', () => {
     expect(x[1]).toBeCloseTo(o[4], 14);
     expect(Math.abs(y[0]) + Math.abs(y[1])).toBeLessThan(1e-15);
   });
+});
+
+describe('updating a factorisation with Givens rotations', () => {
+  // Appending a row u to A: [R; uᴴ-row] is brought back to triangular form by n rotations,
+  // giving the R of [A; u] up to row phases (Golub & Van Loan, Matrix Computations 4e, §6.5.3).
+  test.each([false, true])(
+    'row append matches the Householder R of the stacked matrix (complex %s)',
+    complex => {
+      const rng = new Rng(21 + (complex ? 1 : 0));
+      const m = 12;
+      const n = 5;
+      const a = randn(rng, m, n, complex);
+      const u = randn(rng, 1, n, complex);
+      const r = householderQR(a).R().copy('F'); // n×n, column-major
+      const row = u.copy('F'); // 1×n
+      const o = new Float64Array(5);
+      for (let k = 0; k < n; k++) {
+        if (complex) {
+          givensComplex(r.get(k, k), r.getIm(k, k), row.get(0, k), row.getIm(0, k), o);
+          // rotate row k of R (stride n) against the new row (stride 1), columns k..n−1
+          zrot(n - k, r.data, n, k + k * n, row.data, 1, k, o[0], o[1], o[2]);
+        } else {
+          givens(r.get(k, k), row.get(0, k), o);
+          drot(n - k, r.data, n, k + k * n, row.data, 1, k, o[0], o[1]);
+        }
+      }
+      const stacked = Dense.zeros([m + 1, n], { complex, order: 'F' });
+      for (let i = 0; i < m; i++) {
+        for (let j = 0; j < n; j++) {
+          stacked.set(i, j, a.get(i, j), a.getIm(i, j));
+        }
+      }
+      for (let j = 0; j < n; j++) {
+        stacked.set(m, j, u.get(0, j), u.getIm(0, j));
+        expect(Math.hypot(row.get(0, j), row.getIm(0, j))).toBeLessThan(1e-14);
+      }
+      expect(rowPhaseDistance(r, householderQR(stacked).R())).toBeLessThan(1e-14);
+    }
+  );
 });
