@@ -152,6 +152,46 @@ describe.each(['comm', 'base64'] as const)('over %s', transport => {
   });
 });
 
+describe('writes under faults', () => {
+  it('an interrupt mid-write binds nothing and says so', async () => {
+    const bridge = new KernelBridge({ kernel, timeoutMs: 20000 });
+    await bridge.listVariables();
+    await runCell(
+      kernel,
+      `_p = ${H}; _p.w_put_orig = getattr(_p, 'w_put_orig', _p.w_put)\n` +
+        `def _slow(h, o, d, _o=_p.w_put_orig):\n    __import__('time').sleep(0.5)\n    return _o(h, o, d)\n` +
+        `_p.w_put = _slow\ndel _p, _slow`
+    );
+    const n = 3_000_000;
+    const data = new Float64Array(n).fill(1.25);
+    const p = bridge.writeArray('half_written', {
+      data,
+      shape: [n],
+      complex: false,
+      dtype: 'float64'
+    });
+    await sleep(1200);
+    await kernel.interrupt();
+    const e = await failure(p);
+    expect(e.code).toBe('interrupted');
+    expect(e.message).toBe(
+      'The kernel was interrupted while working on half_written. Nothing in the panel was changed.'
+    );
+    await runCell(kernel, `${H}.w_put = ${H}.w_put_orig`);
+    expect(await evalText(kernel, "'half_written' in get_ipython().user_ns")).toBe('False');
+    // And the next write goes through whole.
+    const ok = await bridge.writeArray('half_written', {
+      data,
+      shape: [n],
+      complex: false,
+      dtype: 'float64'
+    });
+    expect(ok.status).toBe('written');
+    expect(await evalText(kernel, 'float(half_written.sum())')).toBe('3750000.0');
+    bridge.dispose();
+  }, 60000);
+});
+
 describe('kernel lifecycle', () => {
   it('reports a restart mid-transfer, forgets the comm, and works after the restart', async () => {
     const ledger = new SessionLedger();
