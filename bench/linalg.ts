@@ -4,7 +4,7 @@
  * Perpend's QR family and subspace tools against ml-matrix (same process) and LAPACK through
  * numpy/scipy (a child process of the same run, single-threaded OpenBLAS, with OPENBLAS_CORETYPE
  * and OPENBLAS_L2_SIZE unset for that process only), on the same matrices (written to temporary
- * files). Medians of 5 runs after one warm-up. Output: a table, or with --json the JSON lines of
+ * files). Medians of 5 runs after a warm-up (≥ 1 run, up to 20 runs or 300 ms, so the JIT has settled). Output: a table, or with --json the JSON lines of
  * DESIGN.md §9. Always exits 0.
  *
  * Flop counts (LAPACK Working Note 41, operation counts; complex = 4× real):
@@ -53,7 +53,11 @@ function median(xs: number[]): number {
 }
 
 function time(fn: () => void, repeats = REPEATS): number {
-  fn(); // warm-up
+  // Warm-up until the JIT has settled: at least one run, up to 20 runs or 300 ms.
+  const w0 = performance.now();
+  for (let w = 0; w < 20 && (w === 0 || performance.now() - w0 < 300); w++) {
+    fn();
+  }
   const ts: number[] = [];
   for (let r = 0; r < repeats; r++) {
     if (typeof global.gc === 'function') {
