@@ -5,7 +5,7 @@
  */
 import { Dense } from '../../../src/core/dense';
 import { pivotedQR } from '../../../src/core/linalg';
-import { FAMILIES, Rng, makeMatrix, matmul, ratioFactor, ratioOrth } from './helpers';
+import { FAMILIES, Rng, makeMatrix, matmul, randn, ratioFactor, ratioOrth } from './helpers';
 
 const THRESHOLD = 30;
 const PER_FAMILY = 40;
@@ -102,5 +102,21 @@ describe('rank decision', () => {
     expect(() => pivotedQR([[1]], { tol: -1 })).toThrow(/tol must be ≥ 0, got -1/);
     expect(() => pivotedQR([[1]], { rtol: 1 })).toThrow(/rtol must be in \[0, 1\), got 1/);
     expect(() => pivotedQR([[1]], { tol: NaN })).toThrow(/tol must be a finite number, got NaN/);
+  });
+});
+
+describe('pivoted QR on larger matrices', () => {
+  test.each([
+    [300, 200, false],
+    [120, 250, false],
+    [160, 120, true]
+  ])('%ix%i complex=%s', (m, n, complex) => {
+    const rng = new Rng(m + n);
+    const a = randn(rng, m, n, complex);
+    const f = pivotedQR(a);
+    const q = f.Q();
+    expect(ratioFactor(permuteColumns(a, f.perm), matmul(q, f.R()))).toBeLessThan(THRESHOLD);
+    expect(ratioOrth(q)).toBeLessThan(THRESHOLD);
+    expect(f.rank).toBe(Math.min(m, n));
   });
 });
