@@ -7,11 +7,20 @@ import { spawnSync } from 'node:child_process';
 import path from 'node:path';
 import { LoadedArraysModel } from '../../src/model/loaded';
 
+// The model reports background failures with console.error; keep the test output readable.
+beforeEach(() => {
+  jest.spyOn(console, 'error').mockImplementation(() => undefined);
+});
+afterEach(() => {
+  jest.restoreAllMocks();
+});
+
 const PY = path.resolve(__dirname, '../..', '.venv', 'bin', 'python');
 
 function numpyDehum(): { x: number[]; y: number[]; suppressionDb: number } {
   const code = `
 import json, numpy as np
+
 rng = np.random.default_rng(3)
 fs, f0, K, N = 1000.0, 50.0, 3, 2000
 t = np.arange(N) / fs

@@ -9,6 +9,14 @@ import type { Kernel } from '@jupyterlab/services';
 import type { ArrayInfo } from '../../src/bridge';
 import { SourcesModel, type INotebookTarget } from '../../src/model/sources';
 
+// The model reports background failures with console.error; keep the test output readable.
+beforeEach(() => {
+  jest.spyOn(console, 'error').mockImplementation(() => undefined);
+});
+afterEach(() => {
+  jest.restoreAllMocks();
+});
+
 class FakeKernel {
   status: Kernel.Status = 'idle';
   isDisposed = false;
