@@ -359,9 +359,11 @@ function project(
   const residual = mode === 'off' ? outputEnergy : Math.max(inputEnergy - outputEnergy, 0);
   const share = new Float64Array(rank);
   const supp = new Float64Array(rank);
+  // A zero input has nothing to suppress: 0 dB in total and per direction, share −Infinity.
+  const silent = inputEnergy === 0;
   for (let k = 0; k < rank; k++) {
-    share[k] = 10 * Math.log10(energy[k] / inputEnergy);
-    supp[k] = 10 * Math.log10(inputEnergy / Math.max(inputEnergy - energy[k], 0));
+    share[k] = silent ? -Infinity : 10 * Math.log10(energy[k] / inputEnergy);
+    supp[k] = silent ? 0 : 10 * Math.log10(inputEnergy / Math.max(inputEnergy - energy[k], 0));
   }
   return {
     output: outFull,
@@ -372,7 +374,7 @@ function project(
       outputEnergy,
       projectedEnergy: projected,
       residualEnergy: residual,
-      suppressionDb: 10 * Math.log10(inputEnergy / residual),
+      suppressionDb: silent ? 0 : 10 * Math.log10(inputEnergy / residual),
       directionEnergy: energy,
       directionShareDb: share,
       directionSuppressionDb: supp

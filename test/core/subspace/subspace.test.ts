@@ -160,6 +160,12 @@ describe('projection layouts', () => {
     expect(s.db).toBeCloseTo(res.energy.suppressionDb, 6);
     expect(s.perRowDb.length).toBe(1);
   });
+  test('a zero input reports 0 dB (nothing to suppress), not NaN', () => {
+    const res = projectOff([[1], [0]], [[0], [0]]);
+    expect(res.energy.suppressionDb).toBe(0);
+    expect(res.energy.directionSuppressionDb[0]).toBe(0);
+    expect(res.energy.directionShareDb[0]).toBe(-Infinity);
+  });
   test('errors name the argument', () => {
     expect(() => projectOff([[1], [2]], [[1, 2, 3]])).toThrow(/x is 1x3 but the basis has 2 rows/);
     expect(() => projectOff([[1]], [[1]], { vectors: 'diag' as never })).toThrow(
@@ -206,6 +212,21 @@ describe('least squares', () => {
       const x = ls.x.toMatrix();
       const err = Matrix.sub(x, ref).norm() / ref.norm();
       expect(err).toBeLessThan(1e-8);
+    }
+  });
+  test('underdetermined full row rank (m < n): minimum-norm solution = pinv(A)·b', () => {
+    const rng = new Rng(715);
+    for (let t = 0; t < 20; t++) {
+      const m = rng.int(1, 20);
+      const n = rng.int(m + 1, 40);
+      const a = randn(rng, m, n);
+      const b = randn(rng, m, 2);
+      const ls = lstsq(a, b);
+      expect(ls.rank).toBe(m);
+      const ref = pseudoInverse(a.toMatrix()).mmul(b.toMatrix());
+      expect(Matrix.sub(ls.x.toMatrix(), ref).norm() / ref.norm()).toBeLessThan(1e-10);
+      // consistent system: zero residual up to rounding
+      expect(ls.residualNorm[0]).toBeLessThan(1e-12 * norm1(a) * norm1(ls.x) + 1e-13);
     }
   });
   test('rank-deficient complex: x ⟂ null(A) and Aᴴ(b − Ax) = 0', () => {
