@@ -17,7 +17,16 @@ export class HouseholderQR {
   /** τ of each reflector (min(m, n) entries; complex: interleaved pairs). */
   readonly tau: Float64Array;
 
+  /** Leading dimension of `factors` (column-major: strides [1, ld]). */
+  readonly ld: number;
+
   constructor(factors: Dense, tau: Float64Array) {
+    if (factors.strides[0] !== 1 && factors.rows > 1) {
+      throw new RangeError(
+        `factors must be column-major (row stride 1), got strides [${factors.strides.join(', ')}]`
+      );
+    }
+    this.ld = Math.max(1, factors.rows, factors.cols > 1 ? factors.strides[1] : 1);
     this.factors = factors;
     this.tau = tau;
     this.m = factors.rows;
@@ -59,8 +68,8 @@ export class HouseholderQR {
       cols,
       this.k,
       this.factors.data,
-      0,
-      lda,
+      this.factors.offset,
+      this.ld,
       this.tau,
       0,
       out.data,
@@ -92,8 +101,8 @@ export class HouseholderQR {
         c.cols,
         this.k,
         this.factors.data,
-        0,
-        lda,
+        this.factors.offset,
+        this.ld,
         this.tau,
         0,
         c.data,
@@ -107,8 +116,8 @@ export class HouseholderQR {
         c.cols,
         this.k,
         this.factors.data,
-        0,
-        lda,
+        this.factors.offset,
+        this.ld,
         this.tau,
         0,
         c.data,
@@ -129,19 +138,39 @@ function complexify(f: HouseholderQR): HouseholderQR {
 }
 
 /**
- * Householder QR of A (real or complex). The input is copied; A is not modified.
+ * Householder QR of A (real or complex). The input is copied and A left unmodified, unless
+ * `inPlace` is set: then A (a column-major Dense) is overwritten by R and the reflectors, LAPACK
+ * style, and the result refers to it.
  *
  * Backward stable: the computed Q̂R̂ = A + ΔA with ‖ΔA‖ ≤ c·m·n·u·‖A‖ (Higham, Accuracy and
  * Stability of Numerical Algorithms 2e, Theorem 19.4).
  */
-export function householderQR(a: MatrixLike): HouseholderQR {
+export function householderQR(a: MatrixLike, options: { inPlace?: boolean } = {}): HouseholderQR {
   const d = toDense('a', a);
   if (d.rows === 0 || d.cols === 0) {
     throw new RangeError(`a is empty (${d.rows}x${d.cols}); give at least one row and column`);
   }
-  const f = d.copy('F');
+  let f: Dense;
+  if (options.inPlace) {
+    // In place: a must be a column-major Dense view (row stride 1), e.g. a numpy Fortran array.
+    if (
+      !(a instanceof Dense) ||
+      a.ndim !== 2 ||
+      (a.strides[0] !== 1 && a.rows > 1) ||
+      (a.cols > 1 && a.strides[1] < a.rows)
+    ) {
+      throw new TypeError(
+        'a must be a 2-D column-major Dense (row stride 1) to be factored in place; ' +
+          'omit inPlace to factor a copy'
+      );
+    }
+    f = a;
+  } else {
+    f = d.copy('F');
+  }
   const k = Math.min(f.rows, f.cols);
   const tau = new Float64Array(f.complex ? 2 * k : k);
-  (f.complex ? zgeqrfCM : dgeqrfCM)(f.rows, f.cols, f.data, 0, Math.max(1, f.rows), tau, 0);
+  const ld = Math.max(1, f.rows, f.cols > 1 ? f.strides[1] : 1);
+  (f.complex ? zgeqrfCM : dgeqrfCM)(f.rows, f.cols, f.data, f.offset, ld, tau, 0);
   return new HouseholderQR(f, tau);
 }

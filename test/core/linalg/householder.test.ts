@@ -193,3 +193,34 @@ describe('argument errors name the argument and the value', () => {
     expect(() => f.applyQ([[1], [2]])).toThrow(/x has 2 rows but Q is 3x3/);
   });
 });
+
+describe('in place with tau', () => {
+  test('a column-major sub-block is overwritten by R and the reflectors (LAPACK layout)', () => {
+    const rng = new Rng(31);
+    const big = randn(rng, 12, 9, false, 'F');
+    const view = big.slice(2, 10, 1, 7); // 8×6 view, leading dimension 12
+    const copy = view.copy('F');
+    const before = big.copy('F');
+    const f = householderQR(view, { inPlace: true });
+    const ref = householderQR(copy);
+    expect(f.factors).toBe(view);
+    expect(norm1(sub(f.R(), ref.R()))).toBe(0);
+    expect(ratioFactor(copy, matmul(f.Q(), f.R()))).toBeLessThan(THRESHOLD);
+    expect(norm1(sub(f.applyQ(copy, { adjoint: true }).slice(0, 6), ref.R()))).toBeLessThan(1e-13);
+    // entries outside the view are untouched
+    for (let i = 0; i < 12; i++) {
+      for (let j = 0; j < 9; j++) {
+        if (i < 2 || i >= 10 || j < 1 || j >= 7) {
+          expect(big.get(i, j)).toBe(before.get(i, j));
+        }
+      }
+    }
+  });
+  test('a row-major array cannot be factored in place', () => {
+    const c = Dense.fromNested([
+      [1, 2],
+      [3, 4]
+    ]);
+    expect(() => householderQR(c, { inPlace: true })).toThrow(/column-major Dense/);
+  });
+});
