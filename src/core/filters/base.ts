@@ -206,9 +206,21 @@ export abstract class AdaptiveFilter {
     this.hPd = 0;
     this.hMask = 0;
     this.events = [];
-    const L = (this.complex ? 4 : 2) * this.M;
-    this.ub = this.f32 ? new Float32Array(L) : new Float64Array(L);
+    this.ub = this.zeroed(this.ub, (this.complex ? 4 : 2) * this.M);
     this.init();
+  }
+
+  /**
+   * A zeroed state array of length `len`: the old one refilled when it fits, so that reset()
+   * keeps the objects the optimised kernels were compiled against (replacing them invalidates
+   * that code: V8 tracks such fields as constant).
+   */
+  protected zeroed<T extends Real>(old: T | undefined, len: number): T {
+    if (old !== undefined && old.length === len) {
+      old.fill(0);
+      return old;
+    }
+    return (this.f32 ? new Float32Array(len) : new Float64Array(len)) as T;
   }
 
   /** Current weights w(n) (interleaved when complex), a new Float64Array. */

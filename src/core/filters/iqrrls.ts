@@ -17,9 +17,6 @@
 import { AdaptiveFilter, HEALTH_ALPHA } from './base';
 import type { FilterOptions, Real } from './types';
 
-// Module-level alias: a global lookup per call is slow in some hosts (e.g. vm contexts).
-const sqrt = Math.sqrt;
-
 export class InverseQrRlsFilter extends AdaptiveFilter {
   /** Sᵀ, lower triangle, row-major (interleaved complex, or always interleaved in float32). */
   protected T!: Real;
@@ -39,13 +36,12 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
   protected init(): void {
     const M = this.M;
     const w = this.il ? 2 : 1;
-    const mk = (l: number) => (this.f32 ? new Float32Array(l) : new Float64Array(l));
-    this.T = mk(w * M * M);
-    this.w = mk(w * M);
-    this.v = mk(w * M);
+    this.T = this.zeroed(this.T, w * M * M);
+    this.w = this.zeroed(this.w, w * M);
+    this.v = this.zeroed(this.v, w * M);
     const s = this.f32
-      ? Math.fround(1 / Math.fround(sqrt(Math.fround(this.options.delta))))
-      : 1 / sqrt(this.options.delta);
+      ? Math.fround(1 / Math.fround(Math.sqrt(Math.fround(this.options.delta))))
+      : 1 / Math.sqrt(this.options.delta);
     for (let j = 0; j < M; j++) {
       this.T[w * (j * M + j)] = s;
     }
@@ -161,7 +157,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     const w = this.w as Float64Array;
     const v = this.v as Float64Array;
     const ub = this.ub as Float64Array;
-    const isl = 1 / sqrt(this.options.lambda);
+    const isl = 1 / Math.sqrt(this.options.lambda);
     const tv = this.transversal;
     const dec = this.options.decimation;
     const thr = this.options.divergenceThreshold;
@@ -200,7 +196,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
           a += T[b0 + k] * ub[uo + k];
         }
         a *= isl;
-        const etaN = sqrt(eta * eta + a * a);
+        const etaN = Math.sqrt(eta * eta + a * a);
         const inv = 1 / etaN;
         const c = eta * inv;
         const s = a * inv;
@@ -260,7 +256,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     const w = this.w as Float64Array;
     const v = this.v as Float64Array;
     const ub = this.ub as Float64Array;
-    const isl = 1 / sqrt(this.options.lambda);
+    const isl = 1 / Math.sqrt(this.options.lambda);
     const tv = this.transversal;
     const dec = this.options.decimation;
     const thr = this.options.divergenceThreshold;
@@ -320,7 +316,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
         }
         ar *= isl;
         ai *= isl;
-        const etaN = sqrt(eta * eta + ar * ar + ai * ai);
+        const etaN = Math.sqrt(eta * eta + ar * ar + ai * ai);
         const inv = 1 / etaN;
         const c = eta * inv;
         const sr = ar * inv;
@@ -390,7 +386,6 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     traj: Float64Array,
     tIdx: Float64Array
   ): void {
-    const f = Math.fround;
     const M = this.M;
     const M2 = 2 * M;
     const cx = this.complex;
@@ -399,7 +394,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     const w = this.w as Float32Array;
     const v = this.v as Float32Array;
     const ub = this.ub as Float32Array;
-    const isl = f(1 / f(sqrt(f(this.options.lambda))));
+    const isl = Math.fround(1 / Math.fround(Math.sqrt(Math.fround(this.options.lambda))));
     const tv = this.transversal;
     const dec = this.options.decimation;
     const thr = this.options.divergenceThreshold;
@@ -433,15 +428,15 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
         const wi = w[2 * k + 1];
         const ur = ub[uo + W * k];
         const ui = cx ? ub[uo + 2 * k + 1] : 0;
-        yr = f(yr + f(f(wr * ur) + f(wi * ui)));
-        yi = f(yi + f(f(wr * ui) - f(wi * ur)));
+        yr = Math.fround(yr + Math.fround(Math.fround(wr * ur) + Math.fround(wi * ui)));
+        yi = Math.fround(yi + Math.fround(Math.fround(wr * ui) - Math.fround(wi * ur)));
         v[2 * k] = 0;
         v[2 * k + 1] = 0;
       }
       const dvr = d[W * i];
       const dvi = cx ? d[2 * i + 1] : 0;
-      const er = f(dvr - yr);
-      const ei = f(dvi - yi);
+      const er = Math.fround(dvr - yr);
+      const ei = Math.fround(dvi - yi);
       let eta = 1;
       for (let j = 0; j < M; j++) {
         const b0 = 2 * j * M;
@@ -452,47 +447,61 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
           const ti = T[b0 + 2 * k + 1];
           const ur = ub[uo + W * k];
           const ui = cx ? ub[uo + 2 * k + 1] : 0;
-          ar = f(ar + f(f(ur * tr) + f(ui * ti)));
-          ai = f(ai + f(f(ur * ti) - f(ui * tr)));
+          ar = Math.fround(ar + Math.fround(Math.fround(ur * tr) + Math.fround(ui * ti)));
+          ai = Math.fround(ai + Math.fround(Math.fround(ur * ti) - Math.fround(ui * tr)));
         }
-        ar = f(ar * isl);
-        ai = f(ai * isl);
-        const etaN = f(sqrt(f(f(eta * eta) + f(f(ar * ar) + f(ai * ai)))));
-        const inv = f(1 / etaN);
-        const c = f(eta * inv);
-        const sr = f(ar * inv);
-        const si = f(ai * inv);
-        const cs = f(c * isl);
-        const ssr = f(sr * isl);
-        const ssi = f(si * isl);
+        ar = Math.fround(ar * isl);
+        ai = Math.fround(ai * isl);
+        const etaN = Math.fround(
+          Math.sqrt(
+            Math.fround(
+              Math.fround(eta * eta) + Math.fround(Math.fround(ar * ar) + Math.fround(ai * ai))
+            )
+          )
+        );
+        const inv = Math.fround(1 / etaN);
+        const c = Math.fround(eta * inv);
+        const sr = Math.fround(ar * inv);
+        const si = Math.fround(ai * inv);
+        const cs = Math.fround(c * isl);
+        const ssr = Math.fround(sr * isl);
+        const ssi = Math.fround(si * isl);
         for (let k = 0; k <= 2 * j; k += 2) {
           const vr = v[k];
           const vi = v[k + 1];
           const tr = T[b0 + k];
           const ti = T[b0 + k + 1];
-          v[k] = f(f(c * vr) + f(f(ssr * tr) + f(ssi * ti)));
-          v[k + 1] = f(f(c * vi) + f(f(ssr * ti) - f(ssi * tr)));
-          T[b0 + k] = f(f(cs * tr) - f(f(sr * vr) - f(si * vi)));
-          T[b0 + k + 1] = f(f(cs * ti) - f(f(sr * vi) + f(si * vr)));
+          v[k] = Math.fround(
+            Math.fround(c * vr) + Math.fround(Math.fround(ssr * tr) + Math.fround(ssi * ti))
+          );
+          v[k + 1] = Math.fround(
+            Math.fround(c * vi) + Math.fround(Math.fround(ssr * ti) - Math.fround(ssi * tr))
+          );
+          T[b0 + k] = Math.fround(
+            Math.fround(cs * tr) - Math.fround(Math.fround(sr * vr) - Math.fround(si * vi))
+          );
+          T[b0 + k + 1] = Math.fround(
+            Math.fround(cs * ti) - Math.fround(Math.fround(sr * vi) + Math.fround(si * vr))
+          );
         }
         eta = etaN;
       }
-      const qr = f(er / eta);
-      const qi = f(-ei / eta);
+      const qr = Math.fround(er / eta);
+      const qi = Math.fround(-ei / eta);
       for (let k = 0; k < M2; k += 2) {
         const vr = v[k];
         const vi = v[k + 1];
-        w[k] = f(w[k] + f(f(vr * qr) - f(vi * qi)));
-        w[k + 1] = f(w[k + 1] + f(f(vr * qi) + f(vi * qr)));
+        w[k] = Math.fround(w[k] + Math.fround(Math.fround(vr * qr) - Math.fround(vi * qi)));
+        w[k + 1] = Math.fround(w[k + 1] + Math.fround(Math.fround(vr * qi) + Math.fround(vi * qr)));
       }
-      const gam = f(1 / f(eta * eta));
+      const gam = Math.fround(1 / Math.fround(eta * eta));
       y[W * i] = yr;
       e[W * i] = er;
-      ep[W * i] = f(gam * er);
+      ep[W * i] = Math.fround(gam * er);
       if (cx) {
         y[2 * i + 1] = yi;
         e[2 * i + 1] = ei;
-        ep[2 * i + 1] = f(gam * ei);
+        ep[2 * i + 1] = Math.fround(gam * ei);
       }
       g[i] = gam;
       const ee = er * er + ei * ei;

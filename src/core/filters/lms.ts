@@ -32,9 +32,7 @@ export class LmsFilter extends AdaptiveFilter {
   }
 
   protected init(): void {
-    this.w = this.f32
-      ? new Float32Array(2 * this.M)
-      : new Float64Array((this.complex ? 2 : 1) * this.M);
+    this.w = this.zeroed(this.w, (this.f32 ? 2 : this.complex ? 2 : 1) * this.M);
     this.powSum = 0;
     this.powCount = 0;
   }
@@ -328,15 +326,14 @@ export class LmsFilter extends AdaptiveFilter {
     traj: Float64Array,
     tIdx: Float64Array
   ): void {
-    const f = Math.fround;
     const M = this.M;
     const M2 = 2 * M;
     const cx = this.complex;
     const W = cx ? 2 : 1;
     const w = this.w as Float32Array;
     const ub = this.ub as Float32Array;
-    const mu = f(this.options.mu);
-    const eps = f(this.options.epsilon);
+    const mu = Math.fround(this.options.mu);
+    const eps = Math.fround(this.options.epsilon);
     const nrm = this.normalised;
     const tv = this.transversal;
     const dec = this.options.decimation;
@@ -372,31 +369,33 @@ export class LmsFilter extends AdaptiveFilter {
         const wi = w[2 * k + 1];
         const ur = ub[uo + W * k];
         const ui = cx ? ub[uo + 2 * k + 1] : 0;
-        yr = f(yr + f(f(wr * ur) + f(wi * ui)));
-        yi = f(yi + f(f(wr * ui) - f(wi * ur)));
-        uu = f(uu + f(f(ur * ur) + f(ui * ui)));
+        yr = Math.fround(yr + Math.fround(Math.fround(wr * ur) + Math.fround(wi * ui)));
+        yi = Math.fround(yi + Math.fround(Math.fround(wr * ui) - Math.fround(wi * ur)));
+        uu = Math.fround(uu + Math.fround(Math.fround(ur * ur) + Math.fround(ui * ui)));
       }
       const dvr = d[W * i];
       const dvi = cx ? d[2 * i + 1] : 0;
-      const er = f(dvr - yr);
-      const ei = f(dvi - yi);
-      const step = nrm ? f(mu / f(eps + uu)) : mu;
-      const qr = f(step * er);
-      const qi = f(-step * ei);
+      const er = Math.fround(dvr - yr);
+      const ei = Math.fround(dvi - yi);
+      const step = nrm ? Math.fround(mu / Math.fround(eps + uu)) : mu;
+      const qr = Math.fround(step * er);
+      const qi = Math.fround(-step * ei);
       for (let k = 0; k < M; k++) {
         const ur = ub[uo + W * k];
         const ui = cx ? ub[uo + 2 * k + 1] : 0;
-        w[2 * k] = f(w[2 * k] + f(f(ur * qr) - f(ui * qi)));
-        w[2 * k + 1] = f(w[2 * k + 1] + f(f(ur * qi) + f(ui * qr)));
+        w[2 * k] = Math.fround(w[2 * k] + Math.fround(Math.fround(ur * qr) - Math.fround(ui * qi)));
+        w[2 * k + 1] = Math.fround(
+          w[2 * k + 1] + Math.fround(Math.fround(ur * qi) + Math.fround(ui * qr))
+        );
       }
-      const gam = f(1 - f(step * uu));
+      const gam = Math.fround(1 - Math.fround(step * uu));
       y[W * i] = yr;
       e[W * i] = er;
-      ep[W * i] = f(gam * er);
+      ep[W * i] = Math.fround(gam * er);
       if (cx) {
         y[2 * i + 1] = yi;
         e[2 * i + 1] = ei;
-        ep[2 * i + 1] = f(gam * ei);
+        ep[2 * i + 1] = Math.fround(gam * ei);
       }
       g[i] = gam;
       const ee = er * er + ei * ei;

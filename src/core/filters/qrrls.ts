@@ -20,9 +20,6 @@ import { AdaptiveFilter } from './base';
 import { HEALTH_ALPHA } from './base';
 import type { FilterOptions, Real } from './types';
 
-// Module-level alias: a global lookup per call is slow in some hosts (e.g. vm contexts).
-const sqrt = Math.sqrt;
-
 export class QrRlsFilter extends AdaptiveFilter {
   /** R, upper triangle, row-major M×M (interleaved complex, or always interleaved in float32). */
   protected R!: Real;
@@ -44,13 +41,12 @@ export class QrRlsFilter extends AdaptiveFilter {
   protected init(): void {
     const M = this.M;
     const w = this.il ? 2 : 1;
-    const mk = (l: number) => (this.f32 ? new Float32Array(l) : new Float64Array(l));
-    this.R = mk(w * M * M);
-    this.p = mk(w * M);
-    this.r = mk(w * M);
+    this.R = this.zeroed(this.R, w * M * M);
+    this.p = this.zeroed(this.p, w * M);
+    this.r = this.zeroed(this.r, w * M);
     const sd = this.f32
-      ? Math.fround(sqrt(Math.fround(this.options.delta)))
-      : sqrt(this.options.delta);
+      ? Math.fround(Math.sqrt(Math.fround(this.options.delta)))
+      : Math.sqrt(this.options.delta);
     for (let j = 0; j < M; j++) {
       this.R[w * (j * M + j)] = sd;
     }
@@ -178,7 +174,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     const p = this.p as Float64Array;
     const r = this.r as Float64Array;
     const ub = this.ub as Float64Array;
-    const sl = sqrt(this.options.lambda);
+    const sl = Math.sqrt(this.options.lambda);
     const tv = this.transversal;
     const dec = this.options.decimation;
     const L = M;
@@ -213,7 +209,7 @@ export class QrRlsFilter extends AdaptiveFilter {
         const jj = j * M + j;
         const a = sl * R[jj];
         const b = r[j];
-        const rho = sqrt(a * a + b * b);
+        const rho = Math.sqrt(a * a + b * b);
         const inv = 1 / rho;
         const c = a * inv;
         const s = b * inv;
@@ -274,7 +270,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     const p = this.p as Float64Array;
     const r = this.r as Float64Array;
     const ub = this.ub as Float64Array;
-    const sl = sqrt(this.options.lambda);
+    const sl = Math.sqrt(this.options.lambda);
     const tv = this.transversal;
     const dec = this.options.decimation;
     const L = M2;
@@ -317,7 +313,7 @@ export class QrRlsFilter extends AdaptiveFilter {
         const a = sl * R[jj];
         const br = r[2 * j];
         const bi = r[2 * j + 1];
-        const rho = sqrt(a * a + br * br + bi * bi);
+        const rho = Math.sqrt(a * a + br * br + bi * bi);
         const inv = 1 / rho;
         const c = a * inv;
         const sr = br * inv;
@@ -379,7 +375,11 @@ export class QrRlsFilter extends AdaptiveFilter {
   /**
    * Float32 emulation, real and complex in one loop (state interleaved; for real data every
    * imaginary part is an exact zero, so each complex operation rounds exactly like its real
-   * counterpart). Math.fround after every +, −, ×, ÷ and √; no fused multiply-add.
+   * counterpart). Math.fround after every +, −, ×, ÷ and √; no fused multiply-add; subnormals
+   * are kept (many single-precision targets flush them to zero). Math.fround and Math.sqrt are
+   * written out in full in every kernel: V8's optimising compiler inlines them in that form only
+   * (through a local alias they were called as functions, boxing each argument — seen as
+   * scavenges under --trace-gc).
    */
   private kernel32(
     x: Float32Array,
@@ -392,7 +392,6 @@ export class QrRlsFilter extends AdaptiveFilter {
     traj: Float64Array,
     tIdx: Float64Array
   ): void {
-    const f = Math.fround;
     const M = this.M;
     const M2 = 2 * M;
     const cx = this.complex;
@@ -400,7 +399,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     const p = this.p as Float32Array;
     const r = this.r as Float32Array;
     const ub = this.ub as Float32Array;
-    const sl = f(sqrt(f(this.options.lambda)));
+    const sl = Math.fround(Math.sqrt(Math.fround(this.options.lambda)));
     const tv = this.transversal;
     const dec = this.options.decimation;
     const L = cx ? M2 : M;
@@ -439,47 +438,69 @@ export class QrRlsFilter extends AdaptiveFilter {
       let gs = 1;
       for (let j = 0; j < M; j++) {
         const jj = 2 * (j * M + j);
-        const a = f(sl * R[jj]);
+        const a = Math.fround(sl * R[jj]);
         const br = r[2 * j];
         const bi = r[2 * j + 1];
-        const rho = f(sqrt(f(f(a * a) + f(f(br * br) + f(bi * bi)))));
-        const inv = f(1 / rho);
-        const c = f(a * inv);
-        const sr = f(br * inv);
-        const si = f(bi * inv);
+        const rho = Math.fround(
+          Math.sqrt(
+            Math.fround(
+              Math.fround(a * a) + Math.fround(Math.fround(br * br) + Math.fround(bi * bi))
+            )
+          )
+        );
+        const inv = Math.fround(1 / rho);
+        const c = Math.fround(a * inv);
+        const sr = Math.fround(br * inv);
+        const si = Math.fround(bi * inv);
         R[jj] = rho;
-        const cs = f(c * sl);
-        const ssr = f(sr * sl);
-        const ssi = f(si * sl);
+        const cs = Math.fround(c * sl);
+        const ssr = Math.fround(sr * sl);
+        const ssi = Math.fround(si * sl);
         for (let k = 2 * (j + 1), q = jj + 2; k < M2; k += 2, q += 2) {
           const tr = R[q];
           const ti = R[q + 1];
           const rr = r[k];
           const ri = r[k + 1];
-          R[q] = f(f(f(cs * tr) + f(sr * rr)) + f(si * ri));
-          R[q + 1] = f(f(f(cs * ti) + f(sr * ri)) - f(si * rr));
-          r[k] = f(f(c * rr) - f(f(ssr * tr) - f(ssi * ti)));
-          r[k + 1] = f(f(c * ri) - f(f(ssr * ti) + f(ssi * tr)));
+          R[q] = Math.fround(
+            Math.fround(Math.fround(cs * tr) + Math.fround(sr * rr)) + Math.fround(si * ri)
+          );
+          R[q + 1] = Math.fround(
+            Math.fround(Math.fround(cs * ti) + Math.fround(sr * ri)) - Math.fround(si * rr)
+          );
+          r[k] = Math.fround(
+            Math.fround(c * rr) - Math.fround(Math.fround(ssr * tr) - Math.fround(ssi * ti))
+          );
+          r[k + 1] = Math.fround(
+            Math.fround(c * ri) - Math.fround(Math.fround(ssr * ti) + Math.fround(ssi * tr))
+          );
         }
         const pr = p[2 * j];
         const pi = p[2 * j + 1];
-        p[2 * j] = f(f(f(cs * pr) + f(sr * dr)) + f(si * di));
-        p[2 * j + 1] = f(f(f(cs * pi) + f(sr * di)) - f(si * dr));
-        const ndr = f(f(c * dr) - f(f(ssr * pr) - f(ssi * pi)));
-        di = f(f(c * di) - f(f(ssr * pi) + f(ssi * pr)));
+        p[2 * j] = Math.fround(
+          Math.fround(Math.fround(cs * pr) + Math.fround(sr * dr)) + Math.fround(si * di)
+        );
+        p[2 * j + 1] = Math.fround(
+          Math.fround(Math.fround(cs * pi) + Math.fround(sr * di)) - Math.fround(si * dr)
+        );
+        const ndr = Math.fround(
+          Math.fround(c * dr) - Math.fround(Math.fround(ssr * pr) - Math.fround(ssi * pi))
+        );
+        di = Math.fround(
+          Math.fround(c * di) - Math.fround(Math.fround(ssr * pi) + Math.fround(ssi * pr))
+        );
         dr = ndr;
-        gs = f(gs * c);
+        gs = Math.fround(gs * c);
       }
-      const er = f(dr / gs);
-      const ei = f(-di / gs);
-      const gam = f(gs * gs);
+      const er = Math.fround(dr / gs);
+      const ei = Math.fround(-di / gs);
+      const gam = Math.fround(gs * gs);
       e[W * i] = er;
-      y[W * i] = f(dvr - er);
-      ep[W * i] = f(gam * er);
+      y[W * i] = Math.fround(dvr - er);
+      ep[W * i] = Math.fround(gam * er);
       if (cx) {
         e[2 * i + 1] = ei;
-        y[2 * i + 1] = f(dvi - ei);
-        ep[2 * i + 1] = f(gam * ei);
+        y[2 * i + 1] = Math.fround(dvi - ei);
+        ep[2 * i + 1] = Math.fround(gam * ei);
       }
       g[i] = gam;
       // The health monitor runs in double: it is not part of the emulated arithmetic.

@@ -25,9 +25,6 @@
 import { AdaptiveFilter, HEALTH_ALPHA } from './base';
 import type { FilterOptions, Real } from './types';
 
-// Module-level alias: a global lookup per call is slow in some hosts (e.g. vm contexts).
-const sqrt = Math.sqrt;
-
 export class RlsFilter extends AdaptiveFilter {
   /** P, row-major M×M (interleaved complex, or always interleaved in float32). */
   protected P!: Real;
@@ -52,11 +49,10 @@ export class RlsFilter extends AdaptiveFilter {
   protected init(): void {
     const M = this.M;
     const w = this.il ? 2 : 1;
-    const mk = (l: number) => (this.f32 ? new Float32Array(l) : new Float64Array(l));
-    this.P = mk(w * M * M);
-    this.w = mk(w * M);
-    this.pi = mk(w * M);
-    this.psi = mk(w * M);
+    this.P = this.zeroed(this.P, w * M * M);
+    this.w = this.zeroed(this.w, w * M);
+    this.pi = this.zeroed(this.pi, w * M);
+    this.psi = this.zeroed(this.psi, w * M);
     const s = this.f32 ? Math.fround(1 / Math.fround(this.options.delta)) : 1 / this.options.delta;
     for (let j = 0; j < M; j++) {
       this.P[w * (j * M + j)] = s;
@@ -254,7 +250,7 @@ export class RlsFilter extends AdaptiveFilter {
           dn += t * t;
           nn += pi[k] * pi[k];
         }
-        asym = sqrt(dn / nn);
+        asym = Math.sqrt(dn / nn);
       }
       let q = 0;
       for (let k = 0; k < M; k++) {
@@ -436,7 +432,7 @@ export class RlsFilter extends AdaptiveFilter {
           dn += tr * tr + ti * ti;
           nn += pi[k] * pi[k] + pi[k + 1] * pi[k + 1];
         }
-        asym = sqrt(dn / nn);
+        asym = Math.sqrt(dn / nn);
       }
       let q = 0;
       for (let k = 0; k < M2; k += 2) {
@@ -536,7 +532,6 @@ export class RlsFilter extends AdaptiveFilter {
     traj: Float64Array,
     tIdx: Float64Array
   ): void {
-    const f = Math.fround;
     const M = this.M;
     const M2 = 2 * M;
     const cx = this.complex;
@@ -546,8 +541,8 @@ export class RlsFilter extends AdaptiveFilter {
     const pi = this.pi as Float32Array;
     const psi = this.psi as Float32Array;
     const ub = this.ub as Float32Array;
-    const lam = f(this.options.lambda);
-    const il = f(1 / lam);
+    const lam = Math.fround(this.options.lambda);
+    const il = Math.fround(1 / lam);
     const legacy = this.legacy;
     const tol = this.options.asymmetryTolerance;
     const tv = this.transversal;
@@ -583,8 +578,8 @@ export class RlsFilter extends AdaptiveFilter {
         const wi = w[2 * k + 1];
         const ur = ub[uo + W * k];
         const ui = cx ? ub[uo + 2 * k + 1] : 0;
-        yr = f(yr + f(f(wr * ur) + f(wi * ui)));
-        yi = f(yi + f(f(wr * ui) - f(wi * ur)));
+        yr = Math.fround(yr + Math.fround(Math.fround(wr * ur) + Math.fround(wi * ui)));
+        yi = Math.fround(yi + Math.fround(Math.fround(wr * ui) - Math.fround(wi * ur)));
         pi[2 * k] = 0;
         pi[2 * k + 1] = 0;
         psi[2 * k] = 0;
@@ -597,17 +592,21 @@ export class RlsFilter extends AdaptiveFilter {
           const ur = ub[uo + W * r];
           const ui = cx ? ub[uo + 2 * r + 1] : 0;
           const prr = P[b + 2 * r];
-          let ar = f(pi[2 * r] + f(prr * ur));
-          let ai = f(pi[2 * r + 1] + f(prr * ui));
+          let ar = Math.fround(pi[2 * r] + Math.fround(prr * ur));
+          let ai = Math.fround(pi[2 * r + 1] + Math.fround(prr * ui));
           for (let j = r + 1; j < M; j++) {
             const pr = P[b + 2 * j];
             const pim = P[b + 2 * j + 1];
             const vr = ub[uo + W * j];
             const vi = cx ? ub[uo + 2 * j + 1] : 0;
-            ar = f(ar + f(f(pr * vr) - f(pim * vi)));
-            ai = f(ai + f(f(pr * vi) + f(pim * vr)));
-            pi[2 * j] = f(pi[2 * j] + f(f(pr * ur) + f(pim * ui)));
-            pi[2 * j + 1] = f(pi[2 * j + 1] + f(f(pr * ui) - f(pim * ur)));
+            ar = Math.fround(ar + Math.fround(Math.fround(pr * vr) - Math.fround(pim * vi)));
+            ai = Math.fround(ai + Math.fround(Math.fround(pr * vi) + Math.fround(pim * vr)));
+            pi[2 * j] = Math.fround(
+              pi[2 * j] + Math.fround(Math.fround(pr * ur) + Math.fround(pim * ui))
+            );
+            pi[2 * j + 1] = Math.fround(
+              pi[2 * j + 1] + Math.fround(Math.fround(pr * ui) - Math.fround(pim * ur))
+            );
           }
           pi[2 * r] = ar;
           pi[2 * r + 1] = ai;
@@ -624,10 +623,14 @@ export class RlsFilter extends AdaptiveFilter {
             const pim = P[b + 2 * j + 1];
             const vr = ub[uo + W * j];
             const vi = cx ? ub[uo + 2 * j + 1] : 0;
-            ar = f(ar + f(f(pr * vr) - f(pim * vi)));
-            ai = f(ai + f(f(pr * vi) + f(pim * vr)));
-            psi[2 * j] = f(psi[2 * j] + f(f(ur * pr) + f(ui * pim)));
-            psi[2 * j + 1] = f(psi[2 * j + 1] + f(f(ur * pim) - f(ui * pr)));
+            ar = Math.fround(ar + Math.fround(Math.fround(pr * vr) - Math.fround(pim * vi)));
+            ai = Math.fround(ai + Math.fround(Math.fround(pr * vi) + Math.fround(pim * vr)));
+            psi[2 * j] = Math.fround(
+              psi[2 * j] + Math.fround(Math.fround(ur * pr) + Math.fround(ui * pim))
+            );
+            psi[2 * j + 1] = Math.fround(
+              psi[2 * j + 1] + Math.fround(Math.fround(ur * pim) - Math.fround(ui * pr))
+            );
           }
           pi[2 * r] = ar;
           pi[2 * r + 1] = ai;
@@ -641,55 +644,80 @@ export class RlsFilter extends AdaptiveFilter {
           dn += tr * tr + ti * ti;
           nn += pi[k] * pi[k] + pi[k + 1] * pi[k + 1];
         }
-        asym = sqrt(dn / nn);
+        asym = Math.sqrt(dn / nn);
       }
       let q = 0;
       for (let k = 0; k < M; k++) {
         const ur = ub[uo + W * k];
         const ui = cx ? ub[uo + 2 * k + 1] : 0;
-        q = f(q + f(f(ur * pi[2 * k]) + f(ui * pi[2 * k + 1])));
+        q = Math.fround(
+          q + Math.fround(Math.fround(ur * pi[2 * k]) + Math.fround(ui * pi[2 * k + 1]))
+        );
       }
-      const alpha = f(lam + q);
-      const ia = f(1 / alpha);
+      const alpha = Math.fround(lam + q);
+      const ia = Math.fround(1 / alpha);
       const dvr = d[W * i];
       const dvi = cx ? d[2 * i + 1] : 0;
-      const er = f(dvr - yr);
-      const ei = f(dvi - yi);
-      const qr = f(er * ia);
-      const qi = f(-ei * ia);
+      const er = Math.fround(dvr - yr);
+      const ei = Math.fround(dvi - yi);
+      const qr = Math.fround(er * ia);
+      const qi = Math.fround(-ei * ia);
       for (let k = 0; k < M2; k += 2) {
         const pr = pi[k];
         const pim = pi[k + 1];
-        w[k] = f(w[k] + f(f(pr * qr) - f(pim * qi)));
-        w[k + 1] = f(w[k + 1] + f(f(pr * qi) + f(pim * qr)));
+        w[k] = Math.fround(w[k] + Math.fround(Math.fround(pr * qr) - Math.fround(pim * qi)));
+        w[k + 1] = Math.fround(
+          w[k + 1] + Math.fround(Math.fround(pr * qi) + Math.fround(pim * qr))
+        );
       }
       let diagBad = false;
       if (!legacy) {
         for (let r = 0; r < M; r++) {
           const b = 2 * r * M;
-          const kr = f(pi[2 * r] * ia);
-          const ki = f(pi[2 * r + 1] * ia);
-          P[b + 2 * r] = f(f(P[b + 2 * r] - f(f(kr * pi[2 * r]) + f(ki * pi[2 * r + 1]))) * il);
+          const kr = Math.fround(pi[2 * r] * ia);
+          const ki = Math.fround(pi[2 * r + 1] * ia);
+          P[b + 2 * r] = Math.fround(
+            Math.fround(
+              P[b + 2 * r] -
+                Math.fround(Math.fround(kr * pi[2 * r]) + Math.fround(ki * pi[2 * r + 1]))
+            ) * il
+          );
           if (!(P[b + 2 * r] > 0)) {
             diagBad = true;
           }
           for (let j = r + 1; j < M; j++) {
             const pr = pi[2 * j];
             const pim = pi[2 * j + 1];
-            P[b + 2 * j] = f(f(P[b + 2 * j] - f(f(kr * pr) + f(ki * pim))) * il);
-            P[b + 2 * j + 1] = f(f(P[b + 2 * j + 1] - f(f(ki * pr) - f(kr * pim))) * il);
+            P[b + 2 * j] = Math.fround(
+              Math.fround(
+                P[b + 2 * j] - Math.fround(Math.fround(kr * pr) + Math.fround(ki * pim))
+              ) * il
+            );
+            P[b + 2 * j + 1] = Math.fround(
+              Math.fround(
+                P[b + 2 * j + 1] - Math.fround(Math.fround(ki * pr) - Math.fround(kr * pim))
+              ) * il
+            );
           }
         }
       } else {
         for (let r = 0; r < M; r++) {
           const b = 2 * r * M;
-          const kr = f(pi[2 * r] * ia);
-          const ki = f(pi[2 * r + 1] * ia);
+          const kr = Math.fround(pi[2 * r] * ia);
+          const ki = Math.fround(pi[2 * r + 1] * ia);
           for (let j = 0; j < M; j++) {
             const pr = pi[2 * j];
             const pim = pi[2 * j + 1];
-            P[b + 2 * j] = f(f(P[b + 2 * j] - f(f(kr * pr) + f(ki * pim))) * il);
-            P[b + 2 * j + 1] = f(f(P[b + 2 * j + 1] - f(f(ki * pr) - f(kr * pim))) * il);
+            P[b + 2 * j] = Math.fround(
+              Math.fround(
+                P[b + 2 * j] - Math.fround(Math.fround(kr * pr) + Math.fround(ki * pim))
+              ) * il
+            );
+            P[b + 2 * j + 1] = Math.fround(
+              Math.fround(
+                P[b + 2 * j + 1] - Math.fround(Math.fround(ki * pr) - Math.fround(kr * pim))
+              ) * il
+            );
           }
           if (!(P[b + 2 * r] > 0)) {
             diagBad = true;
@@ -699,14 +727,14 @@ export class RlsFilter extends AdaptiveFilter {
       if (!(q >= 0) || diagBad || asym > tol) {
         this.report(q, diagBad, asym, t0 + i);
       }
-      const gam = f(lam * ia);
+      const gam = Math.fround(lam * ia);
       y[W * i] = yr;
       e[W * i] = er;
-      ep[W * i] = f(gam * er);
+      ep[W * i] = Math.fround(gam * er);
       if (cx) {
         y[2 * i + 1] = yi;
         e[2 * i + 1] = ei;
-        ep[2 * i + 1] = f(gam * ei);
+        ep[2 * i + 1] = Math.fround(gam * ei);
       }
       g[i] = gam;
       const ee = er * er + ei * ei;

@@ -7,6 +7,7 @@ import { spawnSync } from 'child_process';
 import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
+import * as ts from 'typescript';
 
 // Module-level aliases: a global lookup (Math.*) per call is ~20× slower inside jest's vm context.
 const { imul, sqrt, log, sin, cos, abs, PI } = Math;
@@ -184,4 +185,46 @@ export function readF64(dir: string, name: string): Float64Array {
 export function readF32(dir: string, name: string): Float32Array {
   const b = fs.readFileSync(path.join(dir, name));
   return new Float32Array(b.buffer.slice(b.byteOffset, b.byteOffset + b.byteLength));
+}
+
+/**
+ * Runs `body` (plain JavaScript) in a child Node process, outside jest's vm context (where every
+ * global lookup such as Math.fround is ~20× slower). The core (src/core) and these helpers are
+ * transpiled with TypeScript's transpileModule into a temporary directory: the body can
+ * `require('./core/filters')`, `require('./core/metrics')` and `require('./helpers')`.
+ */
+export function runInChild(body: string, args: string[] = [], nodeFlags: string[] = []) {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'perpend-child-'));
+  const emit = (file: string, dest: string) => {
+    const out = ts.transpileModule(fs.readFileSync(file, 'utf8'), {
+      compilerOptions: { module: ts.ModuleKind.CommonJS, target: ts.ScriptTarget.ES2020 }
+    }).outputText;
+    fs.mkdirSync(path.dirname(dest), { recursive: true });
+    fs.writeFileSync(dest, out);
+  };
+  const src = path.join(ROOT, 'src', 'core');
+  const walk = (d: string) => {
+    for (const ent of fs.readdirSync(d, { withFileTypes: true })) {
+      const p = path.join(d, ent.name);
+      if (ent.isDirectory()) {
+        walk(p);
+      } else if (ent.name.endsWith('.ts') && !ent.name.endsWith('.d.ts')) {
+        emit(p, path.join(dir, 'core', path.relative(src, p).replace(/\.ts$/, '.js')));
+      }
+    }
+  };
+  walk(src);
+  emit(path.join(__dirname, 'helpers.ts'), path.join(dir, 'helpers.js'));
+  fs.writeFileSync(path.join(dir, 'child.js'), body);
+  const r = spawnSync(process.execPath, [...nodeFlags, 'child.js', ...args], {
+    cwd: dir,
+    encoding: 'utf8',
+    maxBuffer: 64 * 1024 * 1024,
+    env: { ...process.env, NODE_PATH: path.join(ROOT, 'node_modules') }
+  });
+  fs.rmSync(dir, { recursive: true, force: true });
+  if (r.status !== 0) {
+    throw new Error(`child failed (${r.status}): ${r.stderr}`);
+  }
+  return r.stdout;
 }

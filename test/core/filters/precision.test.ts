@@ -7,102 +7,103 @@
  * update loses symmetry, the error growing like λ⁻ⁿ)): the QR forms stay within 1 dB of float64;
  * whatever the conventional forms do, each loss of definiteness or divergence is flagged at a
  * sample index no later than the first sample where the error visibly blows up.
+ * The runs happen in a child Node process (runInChild): jest's vm context makes every
+ * Math.fround lookup ~20× slower.
  */
-import { runFilter, type Algorithm, type FilterRun } from '../../../src/core/filters';
-import { Rng, ar1, desired } from './helpers';
+import { runInChild } from './helpers';
 
-const N = 1_000_000;
-const M = 8;
+const CHILD = `
+const { runFilter } = require('./core/filters');
+const { Rng, ar1, desired } = require('./helpers');
+const [N, M, lambda, seed] = JSON.parse(process.argv[2]);
+const algs = JSON.parse(process.argv[3]);
 const WARM = 1000;
-
-function rmsFrom(e: ArrayLike<number>, a: number): number {
-  let s = 0;
-  for (let i = a; i < e.length; i++) {
-    s += e[i] * e[i];
+const rng = new Rng(seed);
+const x = ar1(rng, N, 0.9);
+const d = desired(x, rng.gaussArray(M), M, false, true, rng.gaussArray(N, false, 1e-3));
+const rmsFrom = (e, a) => { let s = 0; for (let i = a; i < e.length; i++) s += e[i] * e[i]; return Math.sqrt(s / (e.length - a)); };
+const out = {};
+let dRms = rmsFrom(d, 0);
+for (const algorithm of algs) {
+  for (const precision of ['float64', 'float32']) {
+    const r = runFilter(x, d, { algorithm, order: M, lambda, delta: 0.01, precision });
+    // first sample where |e| is non-finite or above 1e3 × RMS(d)
+    let blow = -1;
+    for (let i = 0; i < r.e.length; i++) { if (!(Math.abs(r.e[i]) <= 1e3 * dRms)) { blow = i; break; } }
+    out[algorithm + '/' + precision] = { rms: rmsFrom(r.e, WARM), blow, health: r.health };
   }
-  return Math.sqrt(s / (e.length - a));
+}
+console.log(JSON.stringify(out));
+`;
+
+interface Res {
+  rms: number;
+  blow: number;
+  health: { status: string; events: { kind: string; index: number }[] };
 }
 
-/** First index where |e| is non-finite or above `limit`; −1 if none. */
-function firstBlowUp(e: ArrayLike<number>, limit: number): number {
-  for (let i = 0; i < e.length; i++) {
-    if (!(Math.abs(e[i]) <= limit)) {
-      return i;
-    }
-  }
-  return -1;
-}
-
-function checkFlagged(r: FilterRun, limit: number): string {
-  const blow = firstBlowUp(r.e, limit);
+function describeRun(r: Res): string {
   const ev = r.health.events.map(e => `${e.kind}@${e.index}`).join(', ') || 'none';
-  if (blow >= 0) {
-    // flagged as failed, at or before the blow-up
+  return `blow-up at ${r.blow < 0 ? 'none' : r.blow}; health ${r.health.status} [${ev}]`;
+}
+
+/** Any visible blow-up is flagged as failed at or before its index. */
+function expectFlagged(r: Res): void {
+  if (r.blow >= 0) {
     expect(r.health.status).toBe('failed');
-    const first = Math.min(
-      ...r.health.events.filter(e => e.kind !== 'step-size').map(e => e.index)
-    );
-    expect(first).toBeLessThanOrEqual(blow);
+    expect(Math.min(...r.health.events.map(e => e.index))).toBeLessThanOrEqual(r.blow);
   }
-  return `blow-up at ${blow < 0 ? 'none' : blow}; health ${r.health.status} [${ev}]`;
 }
 
 test('float32 emulation over 1e6 samples at λ = 0.99 (coloured input): QR forms within 1 dB of float64; RLS variants measured and flagged', () => {
-  const rng = new Rng(7000);
-  const x = ar1(rng, N, 0.9);
-  const d = desired(x, rng.gaussArray(M), M, false, true, rng.gaussArray(N, false, 1e-3));
+  const algs = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-legacy'];
+  const res = JSON.parse(
+    runInChild(CHILD, [JSON.stringify([1_000_000, 8, 0.99, 7000]), JSON.stringify(algs)])
+  ) as Record<string, Res>;
   const lines: string[] = [];
-  let limit = 0;
-  const algs: Algorithm[] = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-legacy'];
-  for (const algorithm of algs) {
-    const r64 = runFilter(x, d, { algorithm, order: M, lambda: 0.99, delta: 0.01 });
-    const r32 = runFilter(x, d, {
-      algorithm,
-      order: M,
-      lambda: 0.99,
-      delta: 0.01,
-      precision: 'float32'
-    });
-    const e64 = rmsFrom(r64.e, WARM);
-    const e32 = rmsFrom(r32.e, WARM);
-    if (algorithm === 'qr-rls') {
-      limit = 1e3 * e64 + 1e3 * rmsFrom(d, 0);
-    }
-    const db = 20 * Math.log10(e32 / e64);
+  for (const a of algs) {
+    const r64 = res[`${a}/float64`];
+    const r32 = res[`${a}/float32`];
+    const db = 20 * Math.log10(r32.rms / r64.rms);
     lines.push(
-      `${algorithm}: RMS e float64 ${(20 * Math.log10(e64)).toFixed(2)} dB, float32 ${(20 * Math.log10(e32)).toFixed(2)} dB ` +
-        `(Δ ${Number.isFinite(db) ? db.toFixed(3) : db} dB); float64 ${checkFlagged(r64, limit)}; float32 ${checkFlagged(r32, limit)}`
+      `${a}: RMS e float64 ${(20 * Math.log10(r64.rms)).toFixed(2)} dB, float32 ${(20 * Math.log10(r32.rms)).toFixed(2)} dB ` +
+        `(Δ ${Number.isFinite(db) ? db.toFixed(4) : db} dB); float64 ${describeRun(r64)}; float32 ${describeRun(r32)}`
     );
-    if (algorithm === 'qr-rls' || algorithm === 'inverse-qr-rls') {
+    expectFlagged(r64);
+    expectFlagged(r32);
+    if (a === 'qr-rls' || a === 'inverse-qr-rls') {
       expect(Math.abs(db)).toBeLessThanOrEqual(1);
       expect(r32.health.status).toBe('ok');
     }
-    if (algorithm === 'rls') {
-      // the symmetrised form keeps P Hermitian by construction: no asymmetry can be reported
+    if (a === 'rls') {
+      // symmetric by construction: no asymmetry can be reported
       expect(r32.health.events.some(e => e.kind === 'asymmetry')).toBe(false);
     }
-    if (algorithm === 'rls-legacy') {
-      // λ⁻ⁿ growth of the asymmetry: caught in both precisions
+    if (a === 'rls-legacy') {
+      // λ⁻ⁿ growth of the asymmetry: caught first, in both precisions
       expect(r64.health.events[0].kind).toBe('asymmetry');
       expect(r32.health.events[0].kind).toBe('asymmetry');
     }
   }
-  console.log(`finite precision, M=${M}, λ=0.99, AR(1) a=0.9, N=${N}:\n${lines.join('\n')}`);
+  console.log(`finite precision, M=8, λ=0.99, AR(1) a=0.9, N=1e6:\n${lines.join('\n')}`);
 });
 
 test('legacy RLS in float64 at λ = 0.999 loses symmetry and then definiteness within 1e5 samples, flagged with the indices; the symmetrised form does not', () => {
-  const rng = new Rng(7001);
-  const n = 100_000;
-  const x = ar1(rng, n, 0.9);
-  const d = desired(x, rng.gaussArray(M), M, false, true, rng.gaussArray(n, false, 1e-3));
-  const legacy = runFilter(x, d, { algorithm: 'rls-legacy', order: M, lambda: 0.999, delta: 0.01 });
-  const sym = runFilter(x, d, { algorithm: 'rls', order: M, lambda: 0.999, delta: 0.01 });
-  const limit = 1e3 * rmsFrom(sym.e, WARM) + 1e3 * rmsFrom(d, 0);
-  const msg = checkFlagged(legacy, limit);
-  console.log(`legacy RLS λ=0.999 float64: ${msg}; symmetrised: ${checkFlagged(sym, limit)}`);
+  const res = JSON.parse(
+    runInChild(CHILD, [
+      JSON.stringify([100_000, 8, 0.999, 7001]),
+      JSON.stringify(['rls', 'rls-legacy'])
+    ])
+  ) as Record<string, Res>;
+  const legacy = res['rls-legacy/float64'];
+  const sym = res['rls/float64'];
+  console.log(
+    `λ=0.999 float64, 1e5 samples: legacy ${describeRun(legacy)}; symmetrised ${describeRun(sym)}`
+  );
+  expectFlagged(legacy);
   expect(legacy.health.status).toBe('failed');
   expect(legacy.health.events[0].kind).toBe('asymmetry');
   const indef = legacy.health.events.find(e => e.kind === 'indefinite');
-  expect(indef && indef.index < n).toBe(true);
+  expect(indef !== undefined && indef.index < 100_000).toBe(true);
   expect(sym.health.status).toBe('ok');
 });
