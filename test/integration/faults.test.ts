@@ -10,6 +10,7 @@ import {
   BridgeError,
   KernelBridge,
   HELPER_MODULE,
+  COMM_TARGET,
   SessionLedger,
   watchKernelExecutions,
   type ArrayData
@@ -148,6 +149,40 @@ describe.each(['comm', 'base64'] as const)('over %s', transport => {
       (e: BridgeError) => e.code
     );
     expect(['read 1000', 'aborted']).toContain(outcome);
+    bridge.dispose();
+  });
+});
+
+describe('comm unavailable', () => {
+  it("falls back to base64 when the kernel has no comm target ('auto' transport)", async () => {
+    await runCell(kernel, restoreHelper);
+    await runCell(kernel, `__import__('sys').modules.pop('${HELPER_MODULE}', None)`);
+    const bridge = new KernelBridge({ kernel, timeoutMs: 20000 });
+    await bridge.listVariables(); // installs the helper (and its comm target)
+    await runCell(
+      kernel,
+      `get_ipython().kernel.comm_manager.unregister_target('${COMM_TARGET}', None)`
+    );
+    const types: string[] = [];
+    const watch = (_: unknown, a: Kernel.IAnyMessageArgs): void => {
+      if (a.direction === 'send') {
+        const ue = (a.msg.content as { user_expressions?: Record<string, string> })
+          .user_expressions;
+        types.push(
+          a.msg.header.msg_type +
+            (ue && Object.values(ue).some(v => v.includes('b64_open')) ? ':b64' : '')
+        );
+      }
+    };
+    kernel.anyMessage.connect(watch);
+    const a = await bridge.readArray({ kind: 'variable', name: 'y' });
+    kernel.anyMessage.disconnect(watch);
+    expect(a.shape).toEqual([300, 300]);
+    // It tried the comm (refused: no such target), then read over base64.
+    expect(types).toContain('comm_open');
+    expect(types).toContain('execute_request:b64');
+    // Put the target back for the tests that follow: a fresh helper registers it again.
+    await runCell(kernel, `__import__('sys').modules.pop('${HELPER_MODULE}', None)`);
     bridge.dispose();
   });
 });
