@@ -7,7 +7,7 @@
  *  - r = n: x = P·R⁻¹·(Qᴴb)(0:n) (Golub & Van Loan 4e §5.3.3, Algorithm 5.3.2);
  *  - r < n: the complete orthogonal decomposition [R₁₁ R₁₂] = [L 0]·Zᴴ (from a QR of
  *    [R₁₁ R₁₂]ᴴ) gives the minimum-norm solution x = P·Z·[L⁻¹c₁; 0] (Golub & Van Loan 4e
- *    §5.5.2; Hanson & Lawson, Solving Least Squares Problems, ch. 14; LAPACK xGELSY).
+ *    §5.5.2; Lawson & Hanson, Solving Least Squares Problems, SIAM 1995; LAPACK xGELSY).
  * Rank deficiency is reported in the result, never thrown.
  */
 import { Dense, toDense, type MatrixLike } from '../dense';

@@ -175,8 +175,9 @@ export function orthLoss1(q: Dense): number {
 }
 
 /**
- * LAPACK Working Note 41 (Anderson, Bai, Dongarra, "LAPACK Working Note 41: Installation guide",
- * 1992, the xQRT01 test): factorisation ratio ‖A − QR‖₁ / (m·‖A‖₁·u).
+ * LAPACK Working Note 41 (Anderson, Dongarra, Ostrouchov, "Installation guide for LAPACK", 1992;
+ * authors from memory), the test of LAPACK's xQRT01 as defined in DESIGN.md §7: factorisation
+ * ratio ‖A − QR‖₁ / (m·‖A‖₁·u).
  */
 export function ratioFactor(a: Dense, qr: Dense): number {
   const m = a.rows;
@@ -277,7 +278,7 @@ export interface TestMatrix {
 
 /**
  * One seeded test matrix of a family, no larger than maxDim in either dimension. The families
- * are those of LAPACK's QR test matrices (LAWN 41, §7: xLATMS types) in spirit: random, tall,
+ * follow the kinds LAPACK's test-matrix generator xLATMS produces, in spirit: random, tall,
  * wide, graded (columns scaled over 12 decades), rank-deficient plus noise at 1e-13, and
  * ill-conditioned with κ up to 1e12 (singular values log-spaced).
  */
