@@ -9,7 +9,7 @@
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
-import { mkdirSync, existsSync, createWriteStream } from 'node:fs';
+import { mkdirSync, existsSync, createWriteStream, readdirSync, rmSync, statSync } from 'node:fs';
 import { createServer } from 'node:net';
 import path from 'node:path';
 import { KernelManager, ServerConnection, type Kernel } from '@jupyterlab/services';
@@ -76,6 +76,19 @@ function killGroup(child: ChildProcess, signal: NodeJS.Signals): void {
   }
 }
 
+/** Keeps the newest `keep` run folders (their server.log helps after a failure). */
+function pruneOldRuns(parent: string, keep: number): void {
+  if (!existsSync(parent)) {
+    return;
+  }
+  const runs = readdirSync(parent)
+    .map(name => ({ name, t: statSync(path.join(parent, name)).mtimeMs }))
+    .sort((a, b) => b.t - a.t);
+  for (const r of runs.slice(keep)) {
+    rmSync(path.join(parent, r.name), { recursive: true, force: true });
+  }
+}
+
 /** Starts a server and waits until its REST API answers. */
 export async function startServer(
   label = 'it',
@@ -87,7 +100,9 @@ export async function startServer(
     );
   }
   const id = `${label}-${Date.now()}-${randomBytes(3).toString('hex')}`;
-  const dir = path.join(REPO_ROOT, 'test-artifacts', 'integration', id);
+  const parent = path.join(REPO_ROOT, 'test-artifacts', 'integration');
+  pruneOldRuns(parent, 30);
+  const dir = path.join(parent, id);
   const sub = (name: string): string => {
     const d = path.join(dir, name);
     mkdirSync(d, { recursive: true });
