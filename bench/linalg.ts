@@ -2,9 +2,9 @@
  * npm run bench:linalg [-- --json] [-- --quick]
  *
  * Perpend's QR family and subspace tools against ml-matrix (same process) and LAPACK through
- * numpy/scipy (a child process of the same run, single-threaded OpenBLAS, with OPENBLAS_CORETYPE
- * and OPENBLAS_L2_SIZE unset for that process only), on the same matrices (written to temporary
- * files). Medians of 5 runs after a warm-up (≥ 1 run, up to 20 runs or 300 ms, so the JIT has settled). Output: a table, or with --json the JSON lines of
+ * numpy/scipy (child processes of the same run, one per case right after the Perpend timing of
+ * that case, single-threaded OpenBLAS, with OPENBLAS_CORETYPE and OPENBLAS_L2_SIZE unset for
+ * those processes only), on the same matrices (written to temporary files). Medians of 5 runs after a warm-up (≥ 1 run, up to 20 runs or 300 ms, so the JIT has settled). Output: a table, or with --json the JSON lines of
  * DESIGN.md §9. Always exits 0.
  *
  * Flop counts (LAPACK Working Note 41, operation counts; complex = 4× real):
@@ -169,8 +169,12 @@ interface Row {
 
 function main() {
   const rows: Row[] = [];
-  const pyCases: PyCase[] = [];
   const order: Record<string, 'C' | 'F'> = {};
+  // Each LAPACK case runs right after the Perpend and ml-matrix timings of the same matrix (one
+  // short Python process per case), so that load from other jobs on this shared machine falls
+  // on both sides of a ratio alike.
+  const py: Record<string, unknown> = {};
+  const pyCases = { push: (c: PyCase) => Object.assign(py, runPython([c], order)) };
   const perpend: Record<string, number> = {};
   const mlm: Record<string, number> = {};
   const qrSizes: [number, number, boolean][] = [
@@ -306,7 +310,6 @@ function main() {
     });
   }
 
-  const py = runPython(pyCases, order);
   fs.rmSync(tmp, { recursive: true, force: true });
   const lap = (id: string) => (typeof py[id] === 'number' ? (py[id] as number) : undefined);
   const pyEnv = (py.env ?? {}) as Record<string, string>;
