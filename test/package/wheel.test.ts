@@ -66,6 +66,11 @@ test('installed into a fresh venv with JupyterLab, it is listed as enabled and O
     JUPYTER_CONFIG_DIR: path.join(OUT, 'config'),
     JUPYTER_DATA_DIR: path.join(OUT, 'data')
   };
-  const listing = run(path.join(VENV, 'bin', 'jupyter'), ['labextension', 'list'], env);
-  expect(listing).toMatch(/perpend v0\.1\.0 enabled\s+.*OK/);
+  // jupyter colours "enabled" and "OK" with ANSI escapes even when not on a terminal.
+  const ansi = new RegExp(String.fromCharCode(27) + '\\[[0-9;]*m', 'g');
+  const listing = run(path.join(VENV, 'bin', 'jupyter'), ['labextension', 'list'], env).replace(
+    ansi,
+    ''
+  );
+  expect(listing).toMatch(/perpend v0\.1\.0 enabled OK \(python, perpend\)/);
 });
