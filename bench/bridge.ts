@@ -13,6 +13,8 @@
  */
 import { execSync } from 'node:child_process';
 import { cpus } from 'node:os';
+import { KernelManager, ServerConnection } from '@jupyterlab/services';
+import WebSocket from 'ws';
 import { KernelBridge, type ArrayData } from '../src/bridge';
 import { evalText, runCell, startServer, type JupyterServer } from '../test/integration/harness';
 
@@ -212,6 +214,75 @@ async function main(): Promise<void> {
     }
     bridges.comm.dispose();
     bridges.base64.dispose();
+
+    // Node's ws masks every client frame in JavaScript (bufferutil is not installed); a
+    // browser masks natively. An all-zero mask makes ws skip that loop (RFC 6455 §5.3 masking
+    // is XOR with the key), which shows the write cost without it. Informational: the target
+    // above is judged on the ordinary client.
+    class ZeroMaskWebSocket extends WebSocket {
+      constructor(url: string, protocols?: string | string[]) {
+        super(url, protocols, { generateMask: (mask: Buffer) => mask.fill(0) });
+      }
+    }
+    const settings = ServerConnection.makeSettings({
+      baseUrl: server.settings.baseUrl,
+      wsUrl: server.settings.wsUrl,
+      token: server.token,
+      appendToken: true,
+      WebSocket: ZeroMaskWebSocket as unknown as typeof globalThis.WebSocket
+    });
+    const km = new KernelManager({ serverSettings: settings });
+    await km.ready;
+    const k2 = km.connectTo({ model: { id: kernel.id, name: kernel.name } });
+    await k2.info;
+    const zm = new KernelBridge({ kernel: k2, transport: 'comm', maxBytes: 2 ** 31 });
+    {
+      const n = 1e7;
+      const data = new Float64Array(n);
+      for (let i = 0; i < n; i++) {
+        data[i] = Math.sin(i) * 1e3;
+      }
+      const arr: ArrayData = { data, shape: [n], complex: false, dtype: 'float64' };
+      const times: number[] = [];
+      for (let r = 0; r <= REPEATS; r++) {
+        (globalThis as { gc?: () => void }).gc?.();
+        const t0 = performance.now();
+        await zm.writeArray('bench_dst', arr, { overwrite: true });
+        const t1 = performance.now();
+        if (r > 0) {
+          times.push(t1 - t0);
+        }
+      }
+      const ms = median(times);
+      const bytes = n * 8;
+      const mbps = bytes / 1e6 / (ms / 1000);
+      const out = {
+        name: 'write binary float64 (zero-mask ws client)',
+        elements: n,
+        bytes,
+        dtype: 'float64',
+        complex: false,
+        ms: Number(ms.toFixed(2)),
+        mb_per_s: Number(mbps.toFixed(1)),
+        repeats: REPEATS
+      };
+      if (json) {
+        console.log(JSON.stringify(out));
+      } else {
+        console.log(
+          [
+            out.name.padEnd(28),
+            String(n).padStart(10),
+            String(bytes).padStart(11),
+            ms.toFixed(1).padStart(9),
+            mbps.toFixed(1).padStart(8)
+          ].join(' ')
+        );
+      }
+    }
+    zm.dispose();
+    k2.dispose();
+    km.dispose();
   } catch (e) {
     console.error('bench:bridge failed:', e instanceof Error ? e.message : e);
   } finally {
