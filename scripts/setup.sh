@@ -49,13 +49,16 @@ target=.venv/share/jupyter/labextensions/perpend
 if [ -f "$stamp_file" ] && [ "$(cat "$stamp_file")" = "$stamp-$mode" ] && [ -d "$target" ]; then
   say "build: up to date"
 else
-  say "building Perpend ($mode)"
-  npx tsc -b tsconfig.json
-  npx tsc -p src/core/tsconfig.json
-  if [ "$mode" = production ]; then
-    node scripts/build-labextension.mjs
-  else
-    node scripts/build-labextension.mjs --development
+  say "building Perpend ($mode); log in lib/build.log"
+  mkdir -p lib
+  flag=--development
+  [ "$mode" = production ] && flag=
+  if ! { npx tsc -b tsconfig.json && npx tsc -p src/core/tsconfig.json &&
+         node scripts/build-labextension.mjs $flag; } > lib/build.log 2>&1; then
+    tail -n 60 lib/build.log
+    say "the build failed (full log: lib/build.log)"
+    exit 1
   fi
+  tail -n 1 lib/build.log
   echo "$stamp-$mode" > "$stamp_file"
 fi
