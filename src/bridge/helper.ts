@@ -488,15 +488,20 @@ export function helperSource(): string {
  * `sys.modules`. One expression statement: it binds no name in the user's namespace.
  */
 export function installCode(): string {
+  if (cachedInstall !== null) {
+    return cachedInstall;
+  }
   const src = JSON.stringify(helperSource());
   // JSON string syntax is a subset of Python's double-quoted literal syntax for these
   // characters (the source is ASCII), so the literal is exact.
-  return (
+  cachedInstall =
     `(lambda s, t: None if ${JSON.stringify(HELPER_MODULE)} in s.modules else ` +
     `(lambda m: (exec(${src}, m.__dict__), s.modules.__setitem__(${JSON.stringify(HELPER_MODULE)}, m)))` +
-    `(t.ModuleType(${JSON.stringify(HELPER_MODULE)})))(__import__("sys"), __import__("types"))`
-  );
+    `(t.ModuleType(${JSON.stringify(HELPER_MODULE)})))(__import__("sys"), __import__("types"))`;
+  return cachedInstall;
 }
+
+let cachedInstall: string | null = null;
 
 /** The expression that reaches the helper module from a user expression. */
 export const HELPER_REF = `__import__("sys").modules[${JSON.stringify(HELPER_MODULE)}]`;
