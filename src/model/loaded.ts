@@ -70,9 +70,10 @@ export class LoadedArraysModel {
       this._fail('There is no kernel to read from.');
       return null;
     }
-    this._setBusy(`Reading ${info.label}…`);
     try {
-      const array = await bridge.readArray(info.source);
+      const array = await this._track(bridge, `reading ${info.label}`, () =>
+        bridge.readArray(info.source)
+      );
       const name =
         info.source.kind === 'variable' ? info.source.name : `out${info.source.executionCount}`;
       return this._add({
@@ -193,9 +194,10 @@ export class LoadedArraysModel {
       );
       return null;
     }
-    this._setBusy(`Writing ${name}…`);
     try {
-      const result = await bridge.writeArray(name, item.array, { overwrite });
+      const result = await this._track(bridge, `writing ${name}`, () =>
+        bridge.writeArray(name, item.array, { overwrite })
+      );
       this._setStatus(
         'idle',
         result.status === 'written' ? `Saved ${item.label} to the kernel as ${result.name}.` : ''
@@ -226,8 +228,31 @@ export class LoadedArraysModel {
     return item;
   }
 
-  private _setBusy(message: string): void {
-    this._setStatus('busy', message);
+  /**
+   * Runs one bridge request and keeps the status line true to it: waiting behind a running
+   * cell, or being worked on by the kernel.
+   */
+  private async _track<T>(
+    bridge: SourcesModel.IBridge,
+    what: string,
+    run: () => Promise<T>
+  ): Promise<T> {
+    const show = (): void => {
+      const waiting = bridge.activity.state === 'waiting';
+      this._setStatus(
+        'busy',
+        waiting
+          ? `Waiting for the kernel to finish the running cell before ${what}…`
+          : `${what[0].toUpperCase()}${what.slice(1)}…`
+      );
+    };
+    bridge.activityChanged.connect(show);
+    show();
+    try {
+      return await run();
+    } finally {
+      bridge.activityChanged.disconnect(show);
+    }
   }
 
   private _fail(message: string): void {

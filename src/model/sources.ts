@@ -215,7 +215,14 @@ export namespace SourcesModel {
   /** What the model uses of a bridge (KernelBridge; tests may pass a stand-in). */
   export type IBridge = Pick<
     KernelBridge,
-    'listCellResults' | 'listVariables' | 'readArray' | 'readScalar' | 'writeArray' | 'dispose'
+    | 'listCellResults'
+    | 'listVariables'
+    | 'readArray'
+    | 'readScalar'
+    | 'writeArray'
+    | 'dispose'
+    | 'activity'
+    | 'activityChanged'
   >;
   export interface IOptions {
     bridgeOptions?: Partial<KernelBridge.IOptions>;

@@ -94,3 +94,31 @@ test('send an output to Perpend, remove the hum, write the result back and read 
 
   expect(lab.unexpectedFaults(ALLOW)).toEqual([]);
 });
+
+test('a read asked for while a cell runs waits for it, and the panel says so', async () => {
+  const page = lab.page;
+  const sidebar = page.locator('#perpend-sidebar');
+  await page.locator('.jp-CodeCell').last().click();
+  await page.keyboard.press('Escape');
+  await page.keyboard.press('b');
+  await page.keyboard.press('Enter');
+  await page.keyboard.type("import time; time.sleep(6); print('slept')");
+  await page.keyboard.press('Shift+Enter');
+  await page
+    .locator('.jp-Notebook-ExecutionIndicator[data-status="busy"]')
+    .first()
+    .waitFor({ timeout: 10000 });
+  await sidebar
+    .locator('[data-kind="variables"] .pp-ArrayTable-row[data-label="reference"]')
+    .click();
+  const status = sidebar.locator('.pp-LoadedView-status');
+  await status
+    .filter({
+      hasText: 'Waiting for the kernel to finish the running cell before reading reference'
+    })
+    .waitFor({ timeout: 10000 });
+  await lab.screenshot('bridge-waiting');
+  await sidebar.locator('.pp-LoadedItem[data-label="reference"]').waitFor({ timeout: 60000 });
+  await page.locator('.jp-OutputArea-output', { hasText: 'slept' }).waitFor({ timeout: 30000 });
+  expect(lab.unexpectedFaults(ALLOW)).toEqual([]);
+});
