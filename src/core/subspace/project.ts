@@ -58,7 +58,11 @@ export function dproject(
   const off = mode === 'off';
   const sg = off ? -1 : 1;
   const xs = off ? 1 : 0;
-  for (let j = 0; j < n; j++) {
+  let j = 0;
+  if (r >= 4) {
+    j = dprojectPairs(m, n, r, qd, X, sx1, sx2, ox, Y, sy1, sy2, oy, energy, sg, xs);
+  }
+  for (; j < n; j++) {
     const xj = ox + j * sx2;
     const yj = oy + j * sy2;
     let k = 0;
@@ -163,6 +167,135 @@ export function dproject(
       }
     }
   }
+}
+
+/**
+ * Two vectors at a time (r ≥ 4): each loaded basis entry serves both, which the single-vector
+ * loop cannot do. Returns the number of vectors done (n rounded down to even).
+ */
+function dprojectPairs(
+  m: number,
+  n: number,
+  r: number,
+  qd: Float64Array,
+  X: Float64Array,
+  sx1: number,
+  sx2: number,
+  ox: number,
+  Y: Float64Array,
+  sy1: number,
+  sy2: number,
+  oy: number,
+  energy: Float64Array | null,
+  sg: number,
+  xs: number
+): number {
+  const c = new Float64Array(2 * r);
+  const r4 = r - (r % 4);
+  let j = 0;
+  for (; j + 2 <= n; j += 2) {
+    const xa = ox + j * sx2;
+    const xb = xa + sx2;
+    const ya = oy + j * sy2;
+    const yb = ya + sy2;
+    for (let k = 0; k < r4; k += 4) {
+      const q0 = k * m;
+      const q1 = q0 + m;
+      const q2 = q1 + m;
+      const q3 = q2 + m;
+      let a0 = 0,
+        a1 = 0,
+        a2 = 0,
+        a3 = 0,
+        b0 = 0,
+        b1 = 0,
+        b2 = 0,
+        b3 = 0;
+      for (let i = 0, e = 0; i < m; i++, e += sx1) {
+        const u = X[xa + e];
+        const v = X[xb + e];
+        const p0 = qd[q0 + i],
+          p1 = qd[q1 + i],
+          p2 = qd[q2 + i],
+          p3 = qd[q3 + i];
+        a0 += p0 * u;
+        a1 += p1 * u;
+        a2 += p2 * u;
+        a3 += p3 * u;
+        b0 += p0 * v;
+        b1 += p1 * v;
+        b2 += p2 * v;
+        b3 += p3 * v;
+      }
+      c[k] = a0;
+      c[k + 1] = a1;
+      c[k + 2] = a2;
+      c[k + 3] = a3;
+      c[r + k] = b0;
+      c[r + k + 1] = b1;
+      c[r + k + 2] = b2;
+      c[r + k + 3] = b3;
+    }
+    for (let k = r4; k < r; k++) {
+      const q0 = k * m;
+      let a0 = 0,
+        b0 = 0;
+      for (let i = 0, e = 0; i < m; i++, e += sx1) {
+        a0 += qd[q0 + i] * X[xa + e];
+        b0 += qd[q0 + i] * X[xb + e];
+      }
+      c[k] = a0;
+      c[r + k] = b0;
+    }
+    if (energy) {
+      for (let p = 0; p < r; p++) {
+        energy[p] += c[p] * c[p] + c[r + p] * c[r + p];
+      }
+    }
+    for (let k = 0; k < r4; k += 4) {
+      const q0 = k * m;
+      const q1 = q0 + m;
+      const q2 = q1 + m;
+      const q3 = q2 + m;
+      const a0 = sg * c[k],
+        a1 = sg * c[k + 1],
+        a2 = sg * c[k + 2],
+        a3 = sg * c[k + 3];
+      const b0 = sg * c[r + k],
+        b1 = sg * c[r + k + 1],
+        b2 = sg * c[r + k + 2],
+        b3 = sg * c[r + k + 3];
+      if (k === 0) {
+        for (let i = 0, e = 0, o = 0; i < m; i++, e += sx1, o += sy1) {
+          const p0 = qd[q0 + i],
+            p1 = qd[q1 + i],
+            p2 = qd[q2 + i],
+            p3 = qd[q3 + i];
+          Y[ya + o] = xs * X[xa + e] + (p0 * a0 + p1 * a1 + p2 * a2 + p3 * a3);
+          Y[yb + o] = xs * X[xb + e] + (p0 * b0 + p1 * b1 + p2 * b2 + p3 * b3);
+        }
+      } else {
+        for (let i = 0, o = 0; i < m; i++, o += sy1) {
+          const p0 = qd[q0 + i],
+            p1 = qd[q1 + i],
+            p2 = qd[q2 + i],
+            p3 = qd[q3 + i];
+          Y[ya + o] += p0 * a0 + p1 * a1 + p2 * a2 + p3 * a3;
+          Y[yb + o] += p0 * b0 + p1 * b1 + p2 * b2 + p3 * b3;
+        }
+      }
+    }
+    for (let k = r4; k < r; k++) {
+      const q0 = k * m;
+      const a0 = sg * c[k];
+      const b0 = sg * c[r + k];
+      for (let i = 0, o = 0; i < m; i++, o += sy1) {
+        Y[ya + o] += qd[q0 + i] * a0;
+        Y[yb + o] += qd[q0 + i] * b0;
+      }
+    }
+  }
+  return j;
 }
 
 /** Complex kernel (interleaved; strides and offsets in complex elements): c = Qᴴx. */
