@@ -37,6 +37,12 @@ const PANEL_BASE = 4;
  */
 const UNBLOCKED_COLS = 4;
 
+/** Left part of a recursive split: about half, a multiple of 4 when possible (the kernels' block). */
+function splitPoint(k: number): number {
+  const h = k >> 1;
+  return h >= 4 ? h - (h % 4) : h;
+}
+
 /** Workspace of one factorisation (allocated once per call, reused in the loops). */
 interface Work {
   vp: Float64Array; // packed V of the current panel, ldv = rows of the panel
@@ -144,7 +150,7 @@ function dqrPanel(
     dlarft(m, k, vp, ov, ldv, tau, otau, t, ott, ldt);
     return;
   }
-  const n1 = k >> 1;
+  const n1 = splitPoint(k);
   const n2 = n - n1;
   dqrPanel(m, n1, a, oa, lda, tau, otau, vp, ov, ldv, t, ott, ldt, w);
   // A(:, n1:) ← H₁ᵀ A(:, n1:)
@@ -569,7 +575,7 @@ function zqrPanel(
     zlarft(m, k, vp, ov, ldv, tau, otau, t, ott, ldt);
     return;
   }
-  const n1 = k >> 1;
+  const n1 = splitPoint(k);
   const n2 = n - n1;
   zqrPanel(m, n1, a, oa, lda, tau, otau, vp, ov, ldv, t, ott, ldt, w);
   zlarfbLeft('C', m, n2, n1, vp, ov, ldv, t, ott, ldt, a, oa + n1 * lda, lda, w);

@@ -347,6 +347,10 @@ export function dlarfbLeft(
   for (; j + 4 <= n; j += 4) {
     larfbChunk4(trans, m, k, V, ov, ldv, T, ot, ldt, C, oc + j * ldc, ldc, work);
   }
+  if (j + 2 <= n) {
+    larfbChunk2(trans, m, k, V, ov, ldv, T, ot, ldt, C, oc + j * ldc, ldc, work);
+    j += 2;
+  }
   for (; j < n; j++) {
     larfbChunk1(trans, m, k, V, ov, ldv, T, ot, ldt, C, oc + j * ldc, work);
   }
@@ -505,6 +509,104 @@ function larfbChunk4(
       C[c1 + i] -= a * w1;
       C[c2 + i] -= a * w2;
       C[c3 + i] -= a * w3;
+    }
+  }
+}
+
+function larfbChunk2(
+  trans: 'N' | 'T',
+  m: number,
+  k: number,
+  V: Float64Array,
+  ov: number,
+  ldv: number,
+  T: Float64Array,
+  ot: number,
+  ldt: number,
+  C: Float64Array,
+  oc: number,
+  ldc: number,
+  W: Float64Array
+): void {
+  const c0 = oc;
+  const c1 = oc + ldc;
+  let p = 0;
+  for (; p + 4 <= k; p += 4) {
+    const v0 = ov + p * ldv;
+    const v1 = v0 + ldv;
+    const v2 = v1 + ldv;
+    const v3 = v2 + ldv;
+    let s00 = 0,
+      s01 = 0,
+      s10 = 0,
+      s11 = 0,
+      s20 = 0,
+      s21 = 0,
+      s30 = 0,
+      s31 = 0;
+    for (let i = 0; i < m; i++) {
+      const x = C[c0 + i];
+      const y = C[c1 + i];
+      const a0 = V[v0 + i],
+        a1 = V[v1 + i],
+        a2 = V[v2 + i],
+        a3 = V[v3 + i];
+      s00 += a0 * x;
+      s01 += a0 * y;
+      s10 += a1 * x;
+      s11 += a1 * y;
+      s20 += a2 * x;
+      s21 += a2 * y;
+      s30 += a3 * x;
+      s31 += a3 * y;
+    }
+    W[p] = s00;
+    W[p + 1] = s10;
+    W[p + 2] = s20;
+    W[p + 3] = s30;
+    W[k + p] = s01;
+    W[k + p + 1] = s11;
+    W[k + p + 2] = s21;
+    W[k + p + 3] = s31;
+  }
+  for (; p < k; p++) {
+    const v0 = ov + p * ldv;
+    W[p] = dot4(m, V, v0, C, c0);
+    W[k + p] = dot4(m, V, v0, C, c1);
+  }
+  triMulUpper(trans, k, T, ot, ldt, W, 0);
+  triMulUpper(trans, k, T, ot, ldt, W, k);
+  p = 0;
+  for (; p + 4 <= k; p += 4) {
+    const v0 = ov + p * ldv;
+    const v1 = v0 + ldv;
+    const v2 = v1 + ldv;
+    const v3 = v2 + ldv;
+    const x0 = W[p],
+      x1 = W[p + 1],
+      x2 = W[p + 2],
+      x3 = W[p + 3];
+    const y0 = W[k + p],
+      y1 = W[k + p + 1],
+      y2 = W[k + p + 2],
+      y3 = W[k + p + 3];
+    for (let i = 0; i < m; i++) {
+      const a0 = V[v0 + i],
+        a1 = V[v1 + i],
+        a2 = V[v2 + i],
+        a3 = V[v3 + i];
+      C[c0 + i] -= a0 * x0 + a1 * x1 + a2 * x2 + a3 * x3;
+      C[c1 + i] -= a0 * y0 + a1 * y1 + a2 * y2 + a3 * y3;
+    }
+  }
+  for (; p < k; p++) {
+    const v0 = ov + p * ldv;
+    const x = W[p];
+    const y = W[k + p];
+    for (let i = 0; i < m; i++) {
+      const a = V[v0 + i];
+      C[c0 + i] -= a * x;
+      C[c1 + i] -= a * y;
     }
   }
 }
