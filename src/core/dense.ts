@@ -549,6 +549,23 @@ function rename(e: unknown, name: string): unknown {
 
 /** Throws a RangeError naming the first (i, j) that is NaN or ±Inf. */
 export function checkFiniteDense(name: string, a: Dense): void {
+  if (a.isCContiguous() || a.isFContiguous()) {
+    // One linear sweep over the buffer; only on failure find the first bad (i, j) in row order.
+    const f = a.complex ? 2 : 1;
+    const d = a.data;
+    const end = f * (a.offset + a.size);
+    let bad = false;
+    for (let e = f * a.offset; e < end; e++) {
+      const v = d[e];
+      if (v - v !== 0) {
+        bad = true;
+        break;
+      }
+    }
+    if (!bad) {
+      return;
+    }
+  }
   const m = a.rows;
   const n = a.cols;
   const s0 = a.strides[0];
