@@ -2,6 +2,7 @@ import type { CommsOverSubshells, Kernel, KernelMessage } from '@jupyterlab/serv
 import type { IDisposable } from '@lumino/disposable';
 import { Signal, type ISignal } from '@lumino/signaling';
 import { decodeBase64Into, encodeBase64 } from './base64';
+import { DIGEST_PATTERN, isWellFormed, sourceDigest } from './digest';
 import { BridgeError, type BridgeErrorCode } from './errors';
 import { COMM_TARGET, HELPER_REF, installCode } from './helper';
 import type { SessionLedger } from './ledger';
@@ -75,6 +76,31 @@ export type WriteResult =
       /** Sentences for the user, e.g. that a module or builtin is now shadowed. */
       warnings: string[];
     };
+
+/** A code cell as the notebook shows it: its id, the count it shows, and (optionally) its text. */
+export interface CellRef {
+  cellId: string;
+  executionCount: number | null;
+  /**
+   * The cell's current source (`cell.model.sharedModel.getSource()`). When given, a pair the
+   * ledger has not recorded is checked against the kernel's input history first (see
+   * {@link KernelBridge.verifyCells}). It never leaves the page: only its SHA-256 digest does.
+   */
+  source?: string;
+}
+
+/**
+ * What {@link KernelBridge.verifyCells} concluded about one cell:
+ * - `trusted`: the ledger already had this (cell id, count) pair; nothing was asked.
+ * - `verified`: the kernel's input number `executionCount` is this cell's text; recorded.
+ * - `edited`: the kernel's input with that number is other text (the cell was edited since it
+ *   ran, or the count is from another kernel session).
+ * - `unknown`: the kernel has no input with that number (a restarted kernel), or its history
+ *   cannot be indexed by count (see the helper's `verify_cells`).
+ * - `conflict`: another cell holds that count (in the ledger, or in the same call).
+ * - `skipped`: no count, no source, or a source that is not well-formed text.
+ */
+export type CellVerdict = 'trusted' | 'verified' | 'edited' | 'unknown' | 'conflict' | 'skipped';
 
 /** Messages the panel can show next to cell results. */
 export const CACHE_NOTES = {
@@ -322,10 +348,32 @@ export class KernelBridge implements IDisposable {
    * Describes the results that `cells` returned, read from IPython's output cache (`Out`), for
    * the cells whose result is array-like. Cells with a null count, or (with a ledger) a count
    * this session did not produce, are skipped. One silent request; no data moved.
+   *
+   * With a ledger, cells given with their `source` whose pair the ledger has not recorded (the
+   * page was reloaded, or the cells ran before Perpend watched) are first checked with
+   * {@link verifyCells}, one more silent request, and listed when they pass.
    */
-  async listCellResults(
-    cells: ReadonlyArray<{ cellId: string; executionCount: number | null }>
-  ): Promise<ArrayInfo[]> {
+  async listCellResults(cells: ReadonlyArray<CellRef>): Promise<ArrayInfo[]> {
+    const ledger = this._ledger;
+    if (ledger) {
+      const unseen = cells.filter(
+        c =>
+          isRecord(c) &&
+          typeof c.source === 'string' &&
+          typeof c.executionCount === 'number' &&
+          !ledger.trusts(c.cellId, c.executionCount)
+      );
+      if (unseen.length > 0) {
+        try {
+          await this.verifyCells(unseen);
+        } catch (e) {
+          // A helper that answers oddly costs only the seeding; a lost kernel fails the listing.
+          if (!(e instanceof BridgeError) || !['malformed', 'kernel-error'].includes(e.code)) {
+            throw e;
+          }
+        }
+      }
+    }
     const wanted = new Map<number, string>();
     for (const c of cells) {
       const n = c.executionCount;
@@ -373,6 +421,143 @@ export class KernelBridge implements IDisposable {
       out.push(info);
     }
     return out;
+  }
+
+  /**
+   * Checks cells that show an execution count the ledger has not recorded against IPython's
+   * input history (`history_manager.input_hist_raw[n]`, the text exactly as the cell sent it),
+   * and records into the ledger the pairs whose text matches: after a page reload the kernel
+   * keeps running but the ledger starts empty. In ONE silent request (no history, no count)
+   * that carries only integers and SHA-256 hex digests, never the source itself.
+   *
+   * The rule: cell (id, n, source) is verified when the kernel's history is indexable by count
+   * (its length is the next execution count) and SHA-256(UTF-8(input n without trailing "\n"))
+   * equals SHA-256(UTF-8(source without trailing "\n")) (see `digest.ts`), no other cell holds
+   * n (in the ledger or in this call), and the cell was not recorded meanwhile. A cell edited
+   * since it ran fails; after a restart the history restarts, so old counts fail too. It
+   * proves that execution n ran this text in this kernel, not that this very cell sent it (an
+   * identical copy of the cell would pass as well).
+   *
+   * A digest found different is remembered for this kernel session (the history does not
+   * change), so later calls do not ask again for it.
+   */
+  async verifyCells(
+    cells: ReadonlyArray<CellRef>
+  ): Promise<Array<{ cellId: string; executionCount: number | null; verdict: CellVerdict }>> {
+    if (!Array.isArray(cells)) {
+      throw new TypeError(`cells must be an array, got ${typeof cells}`);
+    }
+    const ledger = this._ledger;
+    const generation = ledger?.generation ?? 0;
+    if (this._editedGeneration !== generation) {
+      this._edited.clear();
+      this._editedGeneration = generation;
+    }
+    const results: Array<{ cellId: string; executionCount: number | null; verdict: CellVerdict }> =
+      [];
+    const candidates: Array<{ index: number; cellId: string; n: number; source: string }> = [];
+    for (const c of cells) {
+      const cellId = isRecord(c) && typeof c.cellId === 'string' ? c.cellId : '';
+      const n = isRecord(c) ? c.executionCount : null;
+      const count = typeof n === 'number' ? n : null;
+      const index = results.push({ cellId, executionCount: count, verdict: 'skipped' }) - 1;
+      if (cellId.length === 0 || cellId.length > 256) {
+        continue;
+      }
+      if (count === null || !Number.isSafeInteger(count) || count < 1) {
+        continue;
+      }
+      if (ledger && ledger.trusts(cellId, count)) {
+        results[index].verdict = 'trusted';
+        continue;
+      }
+      const source = (c as CellRef).source;
+      if (typeof source !== 'string' || !isWellFormed(source)) {
+        continue;
+      }
+      if (
+        ledger &&
+        (ledger.cellFor(count) !== undefined || ledger.countFor(cellId) !== undefined)
+      ) {
+        // Another cell was seen to run as this count, or this cell was seen to run again.
+        results[index].verdict = 'conflict';
+        continue;
+      }
+      candidates.push({ index, cellId, n: count, source });
+    }
+    const claimants = new Map<number, number>();
+    for (const c of candidates) {
+      claimants.set(c.n, (claimants.get(c.n) ?? 0) + 1);
+    }
+    const digests = await Promise.all(candidates.map(c => sourceDigest(c.source)));
+    const ask: Array<{ index: number; cellId: string; n: number; digest: string }> = [];
+    candidates.forEach((c, i) => {
+      const digest = digests[i];
+      if (claimants.get(c.n)! > 1) {
+        results[c.index].verdict = 'conflict';
+      } else if (!DIGEST_PATTERN.test(digest)) {
+        results[c.index].verdict = 'skipped';
+      } else if (this._edited.has(editedKey(c.cellId, c.n, digest))) {
+        results[c.index].verdict = 'edited';
+      } else {
+        ask.push({ index: c.index, cellId: c.cellId, n: c.n, digest });
+      }
+    });
+    if (ask.length === 0) {
+      return results;
+    }
+    ask.sort((a, b) => a.n - b.n);
+    const claims = ask.map(
+      a => `[${pyIntLiteral('executionCount', a.n)}, ${pyStringLiteral(a.digest)}]`
+    );
+    const label = 'checking cells against the kernel history';
+    const reply = await this._listing(
+      'verify:' + ask.map(a => `${a.n}:${a.digest}`).join(','),
+      label,
+      `${HELPER_REF}.verify_cells([${claims.join(', ')}])`
+    );
+    const aligned = (reply as { aligned?: unknown }).aligned;
+    const entries = (reply as { cells?: unknown }).cells;
+    if (typeof aligned !== 'boolean' || !Array.isArray(entries)) {
+      throw malformed(label);
+    }
+    const answers = new Map<string, boolean | null>();
+    for (const e of entries) {
+      if (
+        !isRecord(e) ||
+        typeof e.n !== 'number' ||
+        typeof e.d !== 'string' ||
+        !(e.match === true || e.match === false || e.match === null)
+      ) {
+        throw malformed(label);
+      }
+      answers.set(`${e.n}:${e.d}`, e.match);
+    }
+    const stale = ledger !== null && ledger.generation !== generation;
+    for (const a of ask) {
+      const match = stale ? null : answers.get(`${a.n}:${a.digest}`);
+      const r = results[a.index];
+      if (match === false) {
+        r.verdict = 'edited';
+        if (this._edited.size >= 10000) {
+          this._edited.clear();
+        }
+        this._edited.add(editedKey(a.cellId, a.n, a.digest));
+      } else if (match !== true) {
+        r.verdict = 'unknown';
+      } else if (!ledger) {
+        r.verdict = 'verified';
+      } else if (ledger.trusts(a.cellId, a.n)) {
+        r.verdict = 'trusted';
+      } else if (ledger.countFor(a.cellId) !== undefined || ledger.cellFor(a.n) !== undefined) {
+        // The cell ran again, or another cell was seen to run as n, while the kernel answered.
+        r.verdict = 'conflict';
+      } else {
+        ledger.record(a.cellId, a.n);
+        r.verdict = 'verified';
+      }
+    }
+    return results;
   }
 
   /**
@@ -702,6 +887,10 @@ export class KernelBridge implements IDisposable {
   }
 
   private _onStatus(_: Kernel.IKernelConnection, status: Kernel.Status): void {
+    if (status === 'restarting' || status === 'autorestarting') {
+      // A new kernel process has a new history.
+      this._edited.clear();
+    }
     if (status === 'restarting') {
       // A restart the user asked for, or (when 'autorestarting' follows at once, as
       // @jupyterlab/services reports a server-side restart after a kernel died) a death.
@@ -1436,6 +1625,12 @@ export class KernelBridge implements IDisposable {
   private _shellIdle = new Signal<this, void>(this);
   private _shellBusy = false;
   private _autoRestart = false;
+  private _edited = new Set<string>();
+  private _editedGeneration = 0;
+}
+
+function editedKey(cellId: string, n: number, digest: string): string {
+  return `${n}\u0000${digest}\u0000${cellId}`;
 }
 
 // ------------------------------------------------------------------- helpers (module)

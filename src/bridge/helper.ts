@@ -9,7 +9,7 @@
  */
 
 /** Bumped when the helper changes, so an old copy left in a kernel is replaced. */
-export const HELPER_VERSION = 1;
+export const HELPER_VERSION = 2;
 /** Key of the helper module in `sys.modules`. */
 export const HELPER_MODULE = `_perpend_bridge_${HELPER_VERSION}`;
 /** Comm target the helper registers. */
@@ -185,6 +185,40 @@ def list_cells(counts):
         d["array"] = True
         out.append(d)
     return reply({"cells": out})
+
+HEX = "0123456789abcdef"
+
+def verify_cells(claims):
+    # claims: [[n, sha256 hex of a cell's source], ...]. For each, whether the raw input that
+    # IPython stored as execution n has that digest (after rstrip("\n"), UTF-8). The history
+    # is a list indexed by execution count; IPython skips storing a few inputs (exit, quit,
+    # paste magics) while still counting them, so when its length is not the next count the
+    # indexes cannot be trusted and nothing is verified.
+    import hashlib
+    sh = shell()
+    hm = getattr(sh, "history_manager", None)
+    hist = getattr(hm, "input_hist_raw", None)
+    count = getattr(sh, "execution_count", None)
+    if (hist is None or not isinstance(count, int) or isinstance(count, bool)
+            or len(hist) != count):
+        return reply({"aligned": False, "cells": []})
+    out = []
+    for c in claims:
+        if not isinstance(c, list) or len(c) != 2:
+            continue
+        n, d = c
+        if (not isinstance(n, int) or isinstance(n, bool) or not isinstance(d, str)
+                or len(d) != 64 or any(ch not in HEX for ch in d)):
+            continue
+        if not 1 <= n < len(hist) or not isinstance(hist[n], str):
+            out.append({"n": n, "d": d, "match": None})
+            continue
+        try:
+            h = hashlib.sha256(hist[n].rstrip("\n").encode("utf-8")).hexdigest()
+        except UnicodeError:
+            h = None
+        out.append({"n": n, "d": d, "match": h == d})
+    return reply({"aligned": True, "cells": out})
 
 def resolve(src):
     kind = src.get("kind") if isinstance(src, dict) else None

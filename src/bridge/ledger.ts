@@ -7,8 +7,9 @@ import type { IDisposable } from '@lumino/disposable';
  * IPython's output cache is keyed by execution count, and after a restart the counts saved in
  * a notebook point at nothing or at other objects. The ledger remembers only counts that this
  * session produced, and {@link KernelBridge.listCellResults} asks the kernel only about those.
- * Pure: it is fed by {@link SessionLedger.record} and {@link SessionLedger.reset}, or by
- * {@link watchKernelExecutions}.
+ * Pure: it is fed by {@link SessionLedger.record} and {@link SessionLedger.reset}, by
+ * {@link watchKernelExecutions}, and by {@link KernelBridge.verifyCells} for cells that ran
+ * before this page watched the kernel (a reload), checked against the kernel's input history.
  */
 export class SessionLedger {
   private _byCell = new Map<string, number>();
@@ -59,6 +60,16 @@ export class SessionLedger {
   /** The execution count recorded for `cellId`, if any. */
   countFor(cellId: string): number | undefined {
     return this._byCell.get(cellId);
+  }
+
+  /** The cell recorded as having run as `executionCount`, if any. */
+  cellFor(executionCount: number): string | undefined {
+    for (const [cellId, n] of this._byCell) {
+      if (n === executionCount) {
+        return cellId;
+      }
+    }
+    return undefined;
   }
 
   /** A snapshot of the recorded pairs. */

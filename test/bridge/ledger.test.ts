@@ -15,6 +15,18 @@ describe('SessionLedger', () => {
     expect(l.entries()).toEqual([{ cellId: 'c1', executionCount: 7 }]);
   });
 
+  it('tells which cell holds a count', () => {
+    const l = new SessionLedger();
+    l.record('c1', 3);
+    l.record('c2', 5);
+    expect(l.cellFor(3)).toBe('c1');
+    expect(l.cellFor(5)).toBe('c2');
+    expect(l.cellFor(4)).toBeUndefined();
+    l.record('c1', 6);
+    expect(l.cellFor(3)).toBeUndefined();
+    expect(l.cellFor(6)).toBe('c1');
+  });
+
   it('forgets everything on reset and counts generations', () => {
     const l = new SessionLedger();
     l.record('c1', 1);
