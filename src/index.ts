@@ -207,7 +207,11 @@ namespace Private {
           if (cell.model.type === 'code') {
             const count = (cell.model as unknown as { executionCount: number | null })
               .executionCount;
-            refs.push({ cellId: cell.model.id, executionCount: count ?? null });
+            refs.push({
+              cellId: cell.model.id,
+              executionCount: count ?? null,
+              source: cell.model.sharedModel.getSource()
+            });
           }
         }
         return refs;

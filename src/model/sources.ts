@@ -160,7 +160,11 @@ export class SourcesModel implements IDisposable {
       const cells = target
         .cells()
         .filter(c => c.executionCount !== null)
-        .map(c => ({ cellId: c.cellId, executionCount: c.executionCount }));
+        .map(c =>
+          c.source === undefined
+            ? { cellId: c.cellId, executionCount: c.executionCount }
+            : { cellId: c.cellId, executionCount: c.executionCount, source: c.source }
+        );
       const cellResults = await bridge.listCellResults(cells);
       const variables = await bridge.listVariables();
       if (this._target !== target || this._isDisposed) {
@@ -211,6 +215,11 @@ export namespace SourcesModel {
   export interface ICellRef {
     cellId: string;
     executionCount: number | null;
+    /**
+     * The cell's current text: lets the bridge check a count its ledger did not record (after
+     * a page reload) against the kernel's input history. Only its digest leaves the page.
+     */
+    source?: string;
   }
   /** What the model uses of a bridge (KernelBridge; tests may pass a stand-in). */
   export type IBridge = Pick<

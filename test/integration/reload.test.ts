@@ -5,7 +5,8 @@
  */
 import type { Kernel, KernelMessage } from '@jupyterlab/services';
 import { KernelBridge, SessionLedger, watchKernelExecutions } from '../../src/bridge';
-import { runCell, startServer, type JupyterServer } from './harness';
+import { HELPER_REF } from '../../src/bridge/helper';
+import { evalText, runCell, startServer, type JupyterServer } from './harness';
 
 let server: JupyterServer;
 let kernel: Kernel.IKernelConnection;
@@ -137,6 +138,19 @@ describe('verified seeding after a reload', () => {
     expect(again[0].shape).toEqual([2, 4]);
     watch.dispose();
     bridge.dispose();
+  });
+
+  it('the kernel side ignores claims that are not [count, lowercase sha256 hex]', async () => {
+    const bridge = new KernelBridge({ kernel });
+    await bridge.listVariables(); // installs the helper
+    bridge.dispose();
+    const good = 'a'.repeat(64);
+    const text = await evalText(
+      kernel,
+      `${HELPER_REF}.verify_cells([[True, "${good}"], [1, "${'A'.repeat(64)}"], [1, "${'g'.repeat(64)}"], [1, "${good}0"], "junk", [1], [1.0, "${good}"], [2, "${good}"]])`
+    );
+    // Only the last claim is well formed; its digest is not that of input 2.
+    expect(JSON.parse(text)).toEqual({ aligned: true, cells: [{ n: 2, d: good, match: false }] });
   });
 
   it('trusts no count that two cells claim or that the ledger gives to another cell', async () => {
