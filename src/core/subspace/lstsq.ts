@@ -65,9 +65,16 @@ export function lstsq(
     }
   }
   const complex = a0.complex || b0.complex;
-  const a = complex && !a0.complex ? a0.toComplex().copy('F') : a0.copy('F');
-  const c = complex && !b0.complex ? b0.toComplex().copy('F') : b0.copy('F');
-  const p = c.cols;
+  const p = b0.cols;
+  const tall = m >= 2 * n;
+  // Tall: factor [A b] (m×(n+p)) in one blocked QR, so Q₀ᴴb comes out of the trailing updates
+  // (its top n rows are Q₀ᴴb's, whatever the extra reflectors do below them).
+  const a = tall
+    ? augmented(a0, b0, complex)
+    : complex && !a0.complex
+      ? a0.toComplex().copy('F')
+      : a0.copy('F');
+  const c = tall ? a : complex && !b0.complex ? b0.toComplex().copy('F') : b0.copy('F');
   const f = complex ? 2 : 1;
   const geqrf = complex ? zgeqrfCM : dgeqrfCM;
   const geqp3 = complex ? zgeqp3CM : dgeqp3CM;
@@ -78,11 +85,9 @@ export function lstsq(
   let ldr: number;
   let rows: number; // rows of R (min(m, n))
   let cTop: Float64Array; // rows×p right-hand side Qᴴb (top part), column-major
-  if (m >= 2 * n) {
-    const k = n;
-    const tau0 = new Float64Array(f * k);
-    geqrf(m, n, a.data, 0, lda, tau0, 0);
-    applyQh(complex, m, p, k, a.data, lda, tau0, c.data);
+  if (tall) {
+    const tau0 = new Float64Array(f * Math.min(m, n + p));
+    geqrf(m, n + p, a.data, 0, lda, tau0, 0);
     // R₀ (n×n) → pivoted QR
     rdata = new Float64Array(f * n * n);
     for (let j = 0; j < n; j++) {
@@ -97,7 +102,7 @@ export function lstsq(
     cTop = new Float64Array(f * n * p);
     for (let j = 0; j < p; j++) {
       for (let i = 0; i < n; i++) {
-        copyEl(complex, c.data, i + j * m, cTop, i + j * n);
+        copyEl(complex, c.data, i + (n + j) * m, cTop, i + j * n);
       }
     }
     applyQh(complex, n, p, n, rdata, ldr, tau1, cTop);
@@ -180,6 +185,37 @@ export function lstsq(
   }
   const residualNorm = residuals(a0, b0, x, complex);
   return { x, rank, tol, residualNorm, diagonal: diag };
+}
+
+/** [A b] as one column-major m×(n+p) array (complex when either is). */
+function augmented(a: Dense, b: Dense, complex: boolean): Dense {
+  const m = a.rows;
+  const n = a.cols;
+  const p = b.cols;
+  const out = Dense.zeros([m, n + p], { complex, order: 'F' });
+  const d = out.data;
+  const put = (src: Dense, col0: number) => {
+    if (!complex && src.isFContiguous()) {
+      d.set(src.data.subarray(src.offset, src.offset + src.size), col0 * m);
+      return;
+    }
+    const [s1, s2] = src.strides;
+    for (let j = 0; j < src.cols; j++) {
+      for (let i = 0; i < m; i++) {
+        const e = src.offset + i * s1 + j * s2;
+        const t = i + (col0 + j) * m;
+        if (complex) {
+          d[2 * t] = src.complex ? src.data[2 * e] : src.data[e];
+          d[2 * t + 1] = src.complex ? src.data[2 * e + 1] : 0;
+        } else {
+          d[t] = src.data[e];
+        }
+      }
+    }
+  };
+  put(a, 0);
+  put(b, n);
+  return out;
 }
 
 function applyQh(
