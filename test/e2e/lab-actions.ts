@@ -3,6 +3,11 @@ import type { Page } from 'playwright-core';
 
 export async function openNotebook(page: Page, url: string): Promise<void> {
   await page.goto(url);
+  await waitNotebookReady(page);
+}
+
+/** Waits, after a page load or reload, until a notebook is shown and its kernel is idle. */
+export async function waitNotebookReady(page: Page): Promise<void> {
   await page.locator('.jp-NotebookPanel').first().waitFor({ state: 'visible', timeout: 60000 });
   // JupyterLab may ask which kernel to start; a user accepts the preferred one.
   const deadline = Date.now() + 60000;

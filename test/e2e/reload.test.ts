@@ -1,0 +1,138 @@
+/**
+ * The page is reloaded while the kernel keeps running: the cells still show their counts and
+ * Perpend lists their results again, after checking each cell's text against the kernel's input
+ * history. A cell edited after it ran is not listed until it runs again.
+ */
+import fs from 'node:fs';
+import path from 'node:path';
+import type { Page } from 'playwright-core';
+import { LabBrowser } from './browser';
+import { REPO } from './lab-server';
+import { openNotebook, palette, runAllCells, waitNotebookReady } from './lab-actions';
+
+const ALLOW: RegExp[] = [];
+// A notebook of its own, so that this file's kernel session and saves touch no other test's.
+const NOTEBOOK = 'perpend-reload.ipynb';
+const CELL_ROWS = '#perpend-sidebar [data-kind="cells"] .pp-ArrayTable-row';
+
+let lab: LabBrowser;
+
+beforeAll(async () => {
+  lab = await LabBrowser.open();
+  fs.copyFileSync(
+    path.join(REPO, 'demo', 'perpend-demo.ipynb'),
+    path.join(lab.state.rootDir, NOTEBOOK)
+  );
+});
+
+afterAll(async () => {
+  await lab?.close();
+});
+
+async function save(page: Page): Promise<void> {
+  // Command mode keeps the focus in the notebook, where JupyterLab's Ctrl+S saves it. (The
+  // tab's dirty mark, not the cells': an edited cell stays marked until it runs again.)
+  await page.keyboard.press('Escape');
+  await page.keyboard.press('Control+s');
+  try {
+    await page.waitForFunction(
+      () => document.querySelector('.lm-TabBar-tab.jp-mod-dirty') === null,
+      undefined,
+      {
+        timeout: 30000
+      }
+    );
+  } catch (e) {
+    await lab.screenshot('reload-save-failed');
+    throw e;
+  }
+}
+
+/** Waits until the panel lists `n` cell results and returns their labels. */
+async function cellLabels(page: Page, n: number): Promise<string[]> {
+  await page.waitForFunction(
+    ([sel, k]) => document.querySelectorAll(sel as string).length === k,
+    [CELL_ROWS, n] as const,
+    { timeout: 60000 }
+  );
+  return page
+    .locator(CELL_ROWS)
+    .evaluateAll(trs => trs.map(tr => tr.getAttribute('data-label') ?? ''));
+}
+
+/** The execution count the cell containing `text` shows in its prompt. */
+async function promptOf(page: Page, text: string): Promise<number> {
+  const prompt = await page
+    .locator('.jp-CodeCell', { hasText: text })
+    .locator('.jp-InputPrompt')
+    .first()
+    .textContent();
+  const m = /\[(\d+)\]/.exec(prompt ?? '');
+  if (!m) {
+    throw new Error(`no execution count on the cell with ${text}: ${prompt}`);
+  }
+  return Number(m[1]);
+}
+
+async function reload(page: Page): Promise<void> {
+  await page.reload();
+  await waitNotebookReady(page);
+  await palette(page, 'Open Perpend Panel');
+  await page.locator('#perpend-sidebar').waitFor({ state: 'visible' });
+}
+
+test('after a reload the cell results are listed again, checked against the kernel', async () => {
+  const page = lab.page;
+  await openNotebook(page, lab.url(`/lab/tree/${NOTEBOOK}`));
+  await runAllCells(page);
+  await palette(page, 'Open Perpend Panel');
+  const before = await cellLabels(page, 4);
+  await save(page);
+
+  await reload(page);
+  // The same four results, under the counts the cells show.
+  expect(await cellLabels(page, 4)).toEqual(before);
+  const rail = await promptOf(page, 'Four sensors along');
+  expect(before).toContain(`Out[${rail}]`);
+  await lab.screenshot('reload-listed-again');
+  expect(lab.unexpectedFaults(ALLOW)).toEqual([]);
+});
+
+test('a cell edited after it ran is not listed until it runs again', async () => {
+  const page = lab.page;
+  const cell = page.locator('.jp-CodeCell', { hasText: 'Four sensors along' });
+  const rail = await promptOf(page, 'Four sensors along');
+  await cell.locator('.cm-content').click();
+  await page.keyboard.press('Control+End');
+  await page.keyboard.type('\n# gains from the 2026 calibration');
+  await save(page);
+
+  await reload(page);
+  // Its text is no longer what the kernel ran as its count: the other three only.
+  const three = await cellLabels(page, 3);
+  expect(three).not.toContain(`Out[${rail}]`);
+  expect(await promptOf(page, 'Four sensors along')).toBe(rail);
+  await lab.screenshot('reload-edited-not-listed');
+
+  // Run it again: the panel lists its new result.
+  await page
+    .locator('.jp-CodeCell', { hasText: 'Four sensors along' })
+    .locator('.cm-content')
+    .click();
+  await page.keyboard.press('Control+Enter');
+  await page.waitForFunction(
+    r => {
+      const cells = Array.from(document.querySelectorAll('.jp-CodeCell'));
+      const c = cells.find(x => (x.textContent ?? '').includes('Four sensors along'));
+      const m = /\[(\d+)\]/.exec(c?.querySelector('.jp-InputPrompt')?.textContent ?? '');
+      return m !== null && Number(m[1]) > r;
+    },
+    rail,
+    { timeout: 60000 }
+  );
+  const rerun = await promptOf(page, 'Four sensors along');
+  const four = await cellLabels(page, 4);
+  expect(four).toContain(`Out[${rerun}]`);
+  expect(four.filter(l => three.includes(l))).toHaveLength(3);
+  expect(lab.unexpectedFaults(ALLOW)).toEqual([]);
+});
