@@ -208,6 +208,21 @@ export abstract class AdaptiveFilter {
     this.events = [];
     this.ub = this.zeroed(this.ub, (this.complex ? 4 : 2) * this.M);
     this.init();
+    this.prime();
+  }
+
+  /**
+   * Runs the kernel on empty chunks. That changes nothing, but lets V8 collect type feedback
+   * for the code around the sample loop before the loop gets hot; otherwise the loop is
+   * compiled on the fly without feedback for the stores after it, and that code is thrown away
+   * at the end of early chunks (seen with --trace-deopt).
+   */
+  private prime(): void {
+    const z = this.f32 ? new Float32Array(0) : new Float64Array(0);
+    const t = new Float64Array(0);
+    for (let k = 0; k < 32; k++) {
+      this.kernel(z, z, 0, z, z, z, z, t, t);
+    }
   }
 
   /**
