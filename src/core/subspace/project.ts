@@ -8,7 +8,7 @@
  * (projected) energy because the q_k are orthonormal (Pythagoras).
  */
 import { Dense, toDense, type MatrixLike } from '../dense';
-import { checkInteger, describe } from '../errors';
+import { describe } from '../errors';
 import { orth } from './basis';
 import type { PivotedQROptions } from '../linalg/pivoted';
 
@@ -462,7 +462,6 @@ function project(
   });
   const out = vectors === 'rows' ? outFull.transpose() : outFull;
   const n = xx.cols;
-  checkInteger('rank', rank);
   const energy = new Float64Array(rank);
   (complex ? zproject : dproject)(
     mode,
