@@ -8,6 +8,7 @@ import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
 import * as ts from 'typescript';
+import type { FilterOptions } from '../../../src/core/filters';
 
 // Module-level aliases: a global lookup (Math.*) per call is ~20× slower inside jest's vm context.
 const { imul, sqrt, log, sin, cos, abs, PI } = Math;
@@ -193,7 +194,13 @@ export function readF32(dir: string, name: string): Float32Array {
  * transpiled with TypeScript's transpileModule into a temporary directory: the body can
  * `require('./core/filters')`, `require('./core/metrics')` and `require('./helpers')`.
  */
-export function runInChild(body: string, args: string[] = [], nodeFlags: string[] = []) {
+let childDir: string | null = null;
+let childCount = 0;
+
+function prepareChildDir(): string {
+  if (childDir !== null) {
+    return childDir;
+  }
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'perpend-child-'));
   const emit = (file: string, dest: string) => {
     const out = ts.transpileModule(fs.readFileSync(file, 'utf8'), {
@@ -215,16 +222,141 @@ export function runInChild(body: string, args: string[] = [], nodeFlags: string[
   };
   walk(src);
   emit(path.join(__dirname, 'helpers.ts'), path.join(dir, 'helpers.js'));
-  fs.writeFileSync(path.join(dir, 'child.js'), body);
-  const r = spawnSync(process.execPath, [...nodeFlags, 'child.js', ...args], {
+  process.on('exit', () => fs.rmSync(dir, { recursive: true, force: true }));
+  childDir = dir;
+  return dir;
+}
+
+export function runInChild(body: string, args: string[] = [], nodeFlags: string[] = []): string {
+  const dir = prepareChildDir();
+  const name = `child${childCount++}.js`;
+  fs.writeFileSync(path.join(dir, name), body);
+  const r = spawnSync(process.execPath, [...nodeFlags, name, ...args], {
     cwd: dir,
     encoding: 'utf8',
-    maxBuffer: 64 * 1024 * 1024,
+    maxBuffer: 256 * 1024 * 1024,
     env: { ...process.env, NODE_PATH: path.join(ROOT, 'node_modules') }
   });
-  fs.rmSync(dir, { recursive: true, force: true });
   if (r.status !== 0) {
     throw new Error(`child failed (${r.status}): ${r.stderr}`);
   }
   return r.stdout;
+}
+
+/**
+ * Ensemble runner of the statistical checks (see statistics.test.ts); `createFilter` is passed in
+ * so that the same code runs in jest and in a child process (runInChild).
+ */
+export interface Ens {
+  /** Mean over runs of |e_a(n)|² / σᵥ², per sample. */
+  excess: Float64Array;
+  failed: number;
+  firstFailure: number[];
+}
+
+/**
+ * K runs of N samples with independent regressors u(n) = diag(√eig)·g(n) (g standard Gaussian,
+ * real or circular complex), so R = diag(eig) (the eigen-coordinates of any R).
+ */
+export function ensemble(
+  createFilter: (o: FilterOptions) => {
+    process: (x: Float64Array, d: Float64Array) => { e: ArrayLike<number> };
+    health: () => { status: string; firstIndex: number };
+  },
+  seed: number,
+  K: number,
+  N: number,
+  eig: number[],
+  sigmaV: number,
+  options: Omit<FilterOptions, 'order'>,
+  transversal = false,
+  stopOnFailure = false
+): Ens {
+  const M = eig.length;
+  const cx = options.complex ?? false;
+  const W = cx ? 2 : 1;
+  const rng = new Rng(seed);
+  const excess = new Float64Array(N);
+  const firstFailure: number[] = [];
+  let failed = 0;
+  const sq = eig.map(Math.sqrt);
+  // Regressor input is generated and filtered in chunks (so a diverged run can stop early);
+  // tapped-delay input in one piece.
+  const C = transversal ? N : Math.min(N, 2000);
+  const X = new Float64Array(transversal ? N * W : C * M * W);
+  const D = new Float64Array(C * W);
+  const V = new Float64Array(C * W);
+  const sc = cx ? Math.SQRT1_2 : 1;
+  for (let k = 0; k < K; k++) {
+    const wo = rng.gaussArray(M, cx);
+    const f = createFilter({
+      ...options,
+      order: M,
+      input: transversal ? 'transversal' : 'regressor'
+    });
+    for (let s0 = 0; s0 < N; s0 += C) {
+      const n = Math.min(C, N - s0);
+      if (transversal) {
+        // white input of power eig[0] through the delay line
+        for (let i = 0; i < N * W; i++) {
+          X[i] = sq[0] * sc * rng.gauss();
+        }
+      } else {
+        for (let i = 0; i < n; i++) {
+          for (let m = 0; m < M; m++) {
+            for (let q = 0; q < W; q++) {
+              X[W * (i * M + m) + q] = sq[m] * sc * rng.gauss();
+            }
+          }
+        }
+      }
+      for (let i = 0; i < n; i++) {
+        let sr = 0;
+        let si = 0;
+        for (let m = 0; m < M; m++) {
+          let ur: number;
+          let ui: number;
+          if (transversal) {
+            if (i - m < 0) {
+              continue;
+            }
+            ur = X[W * (i - m)];
+            ui = cx ? X[W * (i - m) + 1] : 0;
+          } else {
+            ur = X[W * (i * M + m)];
+            ui = cx ? X[W * (i * M + m) + 1] : 0;
+          }
+          const wr = wo[W * m];
+          const wi = cx ? wo[W * m + 1] : 0;
+          sr += wr * ur + wi * ui;
+          si += wr * ui - wi * ur;
+        }
+        for (let q = 0; q < W; q++) {
+          V[W * i + q] = sigmaV * sc * rng.gauss();
+        }
+        D[W * i] = sr + V[W * i];
+        if (cx) {
+          D[W * i + 1] = si + V[W * i + 1];
+        }
+      }
+      const r = f.process(X.subarray(0, n * W * (transversal ? 1 : M)), D.subarray(0, n * W));
+      for (let i = 0; i < n; i++) {
+        const ar = r.e[W * i] - V[W * i];
+        const ai = cx ? r.e[W * i + 1] - V[W * i + 1] : 0;
+        excess[s0 + i] += (ar * ar + ai * ai) / (sigmaV * sigmaV);
+      }
+      if (stopOnFailure && f.health().status === 'failed') {
+        break;
+      }
+    }
+    const h = f.health();
+    if (h.status === 'failed') {
+      failed++;
+      firstFailure.push(h.firstIndex);
+    }
+  }
+  for (let i = 0; i < N; i++) {
+    excess[i] /= K;
+  }
+  return { excess, failed, firstFailure };
 }

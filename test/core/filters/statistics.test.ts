@@ -4,19 +4,25 @@
  * averaged over windows and runs, never as mean(e²) − σᵥ². n is 1-based (w from n−1 samples).
  * Independent regressors are fed through the general-regressor input (row n = u(n)ᵀ).
  */
-import { createFilter, type Algorithm, type FilterOptions } from '../../../src/core/filters';
-import { Rng } from './helpers';
+import { type Algorithm, type FilterOptions } from '../../../src/core/filters';
+import { runInChild } from './helpers';
 
 interface Ens {
-  /** Mean over runs of |e_a(n)|² / σᵥ², per sample. */
   excess: Float64Array;
   failed: number;
   firstFailure: number[];
 }
 
+const CHILD = `
+const { createFilter } = require('./core/filters');
+const { ensemble } = require('./helpers');
+const r = ensemble(createFilter, ...JSON.parse(process.argv[2]));
+console.log(JSON.stringify({ excess: Array.from(r.excess), failed: r.failed, firstFailure: r.firstFailure }));
+`;
+
 /**
- * K runs of N samples with independent regressors u(n) = diag(√eig)·g(n) (g standard Gaussian,
- * real or circular complex), so R = diag(eig) (the eigen-coordinates of any R).
+ * K runs of N samples with independent regressors u(n) = diag(√eig)·g(n) (helpers.ensemble), run
+ * in a child Node process (jest's vm context makes the Math.* lookups in the kernels slow).
  */
 function ensemble(
   seed: number,
@@ -28,93 +34,16 @@ function ensemble(
   transversal = false,
   stopOnFailure = false
 ): Ens {
-  const M = eig.length;
-  const cx = options.complex ?? false;
-  const W = cx ? 2 : 1;
-  const rng = new Rng(seed);
-  const excess = new Float64Array(N);
-  const firstFailure: number[] = [];
-  let failed = 0;
-  const sq = eig.map(Math.sqrt);
-  // Regressor input is generated and filtered in chunks (so a diverged run can stop early);
-  // tapped-delay input in one piece.
-  const C = transversal ? N : Math.min(N, 2000);
-  const X = new Float64Array(transversal ? N * W : C * M * W);
-  const D = new Float64Array(C * W);
-  const V = new Float64Array(C * W);
-  const sc = cx ? Math.SQRT1_2 : 1;
-  for (let k = 0; k < K; k++) {
-    const wo = rng.gaussArray(M, cx);
-    const f = createFilter({
-      ...options,
-      order: M,
-      input: transversal ? 'transversal' : 'regressor'
-    });
-    for (let s0 = 0; s0 < N; s0 += C) {
-      const n = Math.min(C, N - s0);
-      if (transversal) {
-        // white input of power eig[0] through the delay line
-        for (let i = 0; i < N * W; i++) {
-          X[i] = sq[0] * sc * rng.gauss();
-        }
-      } else {
-        for (let i = 0; i < n; i++) {
-          for (let m = 0; m < M; m++) {
-            for (let q = 0; q < W; q++) {
-              X[W * (i * M + m) + q] = sq[m] * sc * rng.gauss();
-            }
-          }
-        }
-      }
-      for (let i = 0; i < n; i++) {
-        let sr = 0;
-        let si = 0;
-        for (let m = 0; m < M; m++) {
-          let ur: number;
-          let ui: number;
-          if (transversal) {
-            if (i - m < 0) {
-              continue;
-            }
-            ur = X[W * (i - m)];
-            ui = cx ? X[W * (i - m) + 1] : 0;
-          } else {
-            ur = X[W * (i * M + m)];
-            ui = cx ? X[W * (i * M + m) + 1] : 0;
-          }
-          const wr = wo[W * m];
-          const wi = cx ? wo[W * m + 1] : 0;
-          sr += wr * ur + wi * ui;
-          si += wr * ui - wi * ur;
-        }
-        for (let q = 0; q < W; q++) {
-          V[W * i + q] = sigmaV * sc * rng.gauss();
-        }
-        D[W * i] = sr + V[W * i];
-        if (cx) {
-          D[W * i + 1] = si + V[W * i + 1];
-        }
-      }
-      const r = f.process(X.subarray(0, n * W * (transversal ? 1 : M)), D.subarray(0, n * W));
-      for (let i = 0; i < n; i++) {
-        const ar = r.e[W * i] - V[W * i];
-        const ai = cx ? r.e[W * i + 1] - V[W * i + 1] : 0;
-        excess[s0 + i] += (ar * ar + ai * ai) / (sigmaV * sigmaV);
-      }
-      if (stopOnFailure && f.health().status === 'failed') {
-        break;
-      }
-    }
-    const h = f.health();
-    if (h.status === 'failed') {
-      failed++;
-      firstFailure.push(h.firstIndex);
-    }
-  }
-  for (let i = 0; i < N; i++) {
-    excess[i] /= K;
-  }
-  return { excess, failed, firstFailure };
+  const out = JSON.parse(
+    runInChild(CHILD, [
+      JSON.stringify([seed, K, N, eig, sigmaV, options, transversal, stopOnFailure])
+    ])
+  );
+  return {
+    excess: Float64Array.from(out.excess),
+    failed: out.failed,
+    firstFailure: out.firstFailure
+  };
 }
 
 /** Mean of a over 0-based samples [a0, a1). */
