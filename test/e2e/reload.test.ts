@@ -13,7 +13,10 @@ import { openNotebook, palette, runAllCells, waitNotebookReady } from './lab-act
 const ALLOW: RegExp[] = [];
 // A notebook of its own, so that this file's kernel session and saves touch no other test's.
 const NOTEBOOK = 'perpend-reload.ipynb';
+// A workspace of its own too: the shared one may restore other tests' notebooks beside it.
+const WORKSPACE = 'perpend-reload';
 const CELL_ROWS = '#perpend-sidebar [data-kind="cells"] .pp-ArrayTable-row';
+const SHOWN = '.jp-NotebookPanel:not(.lm-mod-hidden)';
 
 let lab: LabBrowser;
 
@@ -63,7 +66,7 @@ async function cellLabels(page: Page, n: number): Promise<string[]> {
 /** The execution count the cell containing `text` shows in its prompt. */
 async function promptOf(page: Page, text: string): Promise<number> {
   const prompt = await page
-    .locator('.jp-CodeCell', { hasText: text })
+    .locator(`${SHOWN} .jp-CodeCell`, { hasText: text })
     .locator('.jp-InputPrompt')
     .first()
     .textContent();
@@ -83,7 +86,7 @@ async function reload(page: Page): Promise<void> {
 
 test('after a reload the cell results are listed again, checked against the kernel', async () => {
   const page = lab.page;
-  await openNotebook(page, lab.url(`/lab/tree/${NOTEBOOK}`));
+  await openNotebook(page, lab.url(`/lab/workspaces/${WORKSPACE}/tree/${NOTEBOOK}`));
   await runAllCells(page);
   await palette(page, 'Open Perpend Panel');
   const before = await cellLabels(page, 4);
@@ -100,7 +103,7 @@ test('after a reload the cell results are listed again, checked against the kern
 
 test('a cell edited after it ran is not listed until it runs again', async () => {
   const page = lab.page;
-  const cell = page.locator('.jp-CodeCell', { hasText: 'Four sensors along' });
+  const cell = page.locator(`${SHOWN} .jp-CodeCell`, { hasText: 'Four sensors along' });
   const rail = await promptOf(page, 'Four sensors along');
   await cell.locator('.cm-content').click();
   await page.keyboard.press('Control+End');
@@ -116,13 +119,15 @@ test('a cell edited after it ran is not listed until it runs again', async () =>
 
   // Run it again: the panel lists its new result.
   await page
-    .locator('.jp-CodeCell', { hasText: 'Four sensors along' })
+    .locator(`${SHOWN} .jp-CodeCell`, { hasText: 'Four sensors along' })
     .locator('.cm-content')
     .click();
   await page.keyboard.press('Control+Enter');
   await page.waitForFunction(
     r => {
-      const cells = Array.from(document.querySelectorAll('.jp-CodeCell'));
+      const cells = Array.from(
+        document.querySelectorAll('.jp-NotebookPanel:not(.lm-mod-hidden) .jp-CodeCell')
+      );
       const c = cells.find(x => (x.textContent ?? '').includes('Four sensors along'));
       const m = /\[(\d+)\]/.exec(c?.querySelector('.jp-InputPrompt')?.textContent ?? '');
       return m !== null && Number(m[1]) > r;
