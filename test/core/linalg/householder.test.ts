@@ -224,3 +224,40 @@ describe('in place with tau', () => {
     expect(() => householderQR(c, { inPlace: true })).toThrow(/column-major Dense/);
   });
 });
+
+describe('exact zeros through the blocked path (τ = 0 reflectors)', () => {
+  test.each([false, true])('zero columns and an already triangular block (complex %s)', complex => {
+    const rng = new Rng(41 + (complex ? 1 : 0));
+    const m = 120;
+    const n = 70;
+    const a = randn(rng, m, n, complex);
+    for (const j of [0, 5, 33, 34, 69]) {
+      for (let i = 0; i < m; i++) {
+        a.set(i, j, 0, 0);
+      }
+    }
+    // columns 40..49: nonzero only on and above the diagonal (nothing to eliminate)
+    for (let j = 40; j < 50; j++) {
+      for (let i = j + 1; i < m; i++) {
+        a.set(i, j, 0, 0);
+      }
+    }
+    const f = householderQR(a);
+    const q = f.Q();
+    expect(ratioFactor(a, matmul(q, f.R()))).toBeLessThan(THRESHOLD);
+    expect(ratioOrth(q)).toBeLessThan(THRESHOLD);
+    expect(ratioOrth(f.Q('full'))).toBeLessThan(THRESHOLD);
+    // an upper triangular input gives τ = 0 throughout and R = A (real: no reflection needed)
+    if (!complex) {
+      const t = Dense.zeros([80, 40], { order: 'F' });
+      for (let j = 0; j < 40; j++) {
+        for (let i = 0; i <= j; i++) {
+          t.set(i, j, rng.normal());
+        }
+      }
+      const g = householderQR(t);
+      expect(Array.from(g.tau).every(v => v === 0)).toBe(true);
+      expect(norm1(sub(g.R(), t.slice(0, 40, 0, 40)))).toBe(0);
+    }
+  });
+});
