@@ -55,7 +55,9 @@ describe('Householder QR on large matrices (blocked path)', () => {
     [300, 200, false],
     [150, 300, false],
     [200, 150, true],
-    [2000, 40, false]
+    [100, 180, true],
+    [2000, 40, false],
+    [3000, 1, true]
   ])('%ix%i complex=%s', (m, n, complex) => {
     const rng = new Rng(m * 7 + n);
     const a = randn(rng, m, n, complex);
