@@ -80,8 +80,15 @@ async function promptOf(page: Page, text: string): Promise<number> {
 async function reload(page: Page): Promise<void> {
   await page.reload();
   await waitNotebookReady(page);
-  await palette(page, 'Open Perpend Panel');
-  await page.locator('#perpend-sidebar').waitFor({ state: 'visible' });
+  // The layout restorer usually reopens the panel; otherwise its sidebar tab does, as a user
+  // would (the palette can lose the focus to the notebook while the page is settling).
+  const sidebar = page.locator('#perpend-sidebar');
+  if (!(await sidebar.isVisible())) {
+    await page
+      .locator('.jp-SideBar.jp-mod-right .lm-TabBar-tab[data-id="perpend-sidebar"]')
+      .click();
+  }
+  await sidebar.waitFor({ state: 'visible' });
 }
 
 test('after a reload the cell results are listed again, checked against the kernel', async () => {
