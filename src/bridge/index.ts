@@ -25,8 +25,10 @@
  * - `watchKernelExecutions` feeds the ledger from the notebook's own `execute_request`s
  *   (JupyterLab puts `cellId` in their metadata) and resets it on restart; the panel may
  *   instead call `ledger.record(cellId, count)` from `NotebookActions.executed` and
- *   `ledger.reset()` on restart. With a ledger, cell counts saved in the notebook from an
- *   earlier session are never trusted (`readArray` fails with `stale-count`).
+ *   `ledger.reset()` on restart. With a ledger, a cell count the ledger did not record is
+ *   trusted only after `verifyCells` (or `listCellResults` given each cell's `source`) finds
+ *   that the kernel's raw input history for that count has the cell's SHA-256 (after a page
+ *   reload); counts from an earlier kernel session fail that check (`stale-count` on read).
  * - Refresh listings after each execution (`NotebookActions.executed`) and on kernel status
  *   `idle`; while the kernel is busy a listing waits for idle and concurrent calls share one
  *   request, so calling on every event is cheap.
@@ -65,6 +67,8 @@ export {
   type ArrayData,
   type ArrayInfo,
   type ArraySource,
+  type CellRef,
+  type CellVerdict,
   type WriteConflict,
   type WriteResult
 } from './bridge';
