@@ -149,6 +149,7 @@ export class LmsFilter extends AdaptiveFilter {
     tIdx: Float64Array
   ): void {
     const M = this.M;
+    const M4 = M & ~3;
     const w = this.w as Float64Array;
     const ub = this.ub as Float64Array;
     const mu = this.options.mu;
@@ -177,18 +178,51 @@ export class LmsFilter extends AdaptiveFilter {
           ub[k] = x[b + k];
         }
       }
-      let yv = 0;
-      let uu = 0;
-      for (let k = 0; k < M; k++) {
-        const u = ub[uo + k];
-        yv += w[k] * u;
-        uu += u * u;
+      // One pass for y and ‖u‖², four partial sums each (breaks the add latency chain).
+      let y0 = 0;
+      let y1 = 0;
+      let y2 = 0;
+      let y3 = 0;
+      let s0 = 0;
+      let s1 = 0;
+      let s2 = 0;
+      let s3 = 0;
+      let k = 0;
+      for (; k < M4; k += 4) {
+        const q = uo + k;
+        const u0 = ub[q];
+        const u1 = ub[q + 1];
+        const u2 = ub[q + 2];
+        const u3 = ub[q + 3];
+        y0 += w[k] * u0;
+        y1 += w[k + 1] * u1;
+        y2 += w[k + 2] * u2;
+        y3 += w[k + 3] * u3;
+        s0 += u0 * u0;
+        s1 += u1 * u1;
+        s2 += u2 * u2;
+        s3 += u3 * u3;
       }
+      for (; k < M; k++) {
+        const u = ub[uo + k];
+        y0 += w[k] * u;
+        s0 += u * u;
+      }
+      const yv = y0 + y1 + (y2 + y3);
+      const uu = s0 + s1 + (s2 + s3);
       const dv = d[i];
       const ev = dv - yv;
       const step = nrm ? mu / (eps + uu) : mu;
       const se = step * ev;
-      for (let k = 0; k < M; k++) {
+      k = 0;
+      for (; k < M4; k += 4) {
+        const q = uo + k;
+        w[k] += se * ub[q];
+        w[k + 1] += se * ub[q + 1];
+        w[k + 2] += se * ub[q + 2];
+        w[k + 3] += se * ub[q + 3];
+      }
+      for (; k < M; k++) {
         w[k] += se * ub[uo + k];
       }
       const gam = 1 - step * uu;
