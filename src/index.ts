@@ -9,7 +9,7 @@ import { ISettingRegistry } from '@jupyterlab/settingregistry';
 import { ITranslator, nullTranslator } from '@jupyterlab/translation';
 import { Signal } from '@lumino/signaling';
 import type { IDisposable } from '@lumino/disposable';
-import { SessionLedger, watchKernelExecutions } from './bridge';
+import { CACHE_NOTES, SessionLedger, watchKernelExecutions } from './bridge';
 import { LoadedArraysModel } from './model/loaded';
 import { SourcesModel, type INotebookTarget } from './model/sources';
 import { OUTPUT_SELECTOR, outputUnderContextMenu } from './panel/output-target';
@@ -95,11 +95,12 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
         }
         // Not in this kernel session's output cache (or no kernel): parse what the output shows.
         const label = count !== null ? `Out[${count}] (text)` : `cell ${output.cellIndex} output`;
+        const notes = output.type === 'execute_result' ? [] : [CACHE_NOTES.notCached];
         const json = output.data['application/json'];
         if (json !== undefined) {
-          loaded.loadFromText(label, json, 'application/json');
+          loaded.loadFromText(label, json, 'application/json', notes);
         } else {
-          loaded.loadFromText(label, output.data['text/plain'] ?? '');
+          loaded.loadFromText(label, output.data['text/plain'] ?? '', undefined, notes);
         }
       }
     });

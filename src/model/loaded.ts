@@ -96,11 +96,17 @@ export class LoadedArraysModel {
    * a non-Python kernel, a kernel that is gone, or an output not in IPython's cache. The values
    * are what the text shows; a truncated repr is marked as incomplete.
    */
-  loadFromText(label: string, text: unknown, mimeType?: string): ILoadedArray | null {
+  loadFromText(
+    label: string,
+    text: unknown,
+    mimeType?: string,
+    extraNotes: ReadonlyArray<string> = []
+  ): ILoadedArray | null {
     try {
       const parsed = parseArrayText(text, mimeType);
       const notes = [
-        `Parsed from the output's text (${parsed.format}): values have only the printed digits.`
+        `Parsed from the output's text (${parsed.format}): values have only the printed digits.`,
+        ...extraNotes
       ];
       if (parsed.truncated) {
         notes.push(
