@@ -80,3 +80,10 @@ test('failures keep what was loaded and say what went wrong', async () => {
   expect(model.message).toMatch(/no kernel/);
   expect(model.items.map(i => i.label)).toEqual(['v']);
 });
+
+test('notes given with parsed text are kept (e.g. that the output is not in the cache)', () => {
+  const model = new LoadedArraysModel({ bridge: () => null });
+  const item = model.loadFromText('cell 3 output', '[1.5, 2.5]', undefined, ['pick the variable']);
+  expect(item?.notes).toContain('pick the variable');
+  expect(Array.from(item!.array.data)).toEqual([1.5, 2.5]);
+});
