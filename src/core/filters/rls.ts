@@ -214,23 +214,47 @@ export class RlsFilter extends AdaptiveFilter {
       for (let k = 0; k < M; k++) {
         yv += w[k] * ub[uo + k];
         pi[k] = 0;
-        psi[k] = 0;
       }
       let asym = 0;
       if (!legacy) {
-        // π = P u from the upper triangle (symmetric matrix-vector product).
+        // π = P u from the upper triangle (symmetric matrix-vector product); row r's dot
+        // product in four partial sums (a single one made this pass add-latency bound).
         for (let r = 0; r < M; r++) {
           const b = r * M;
           const ur = ub[uo + r];
-          let acc = pi[r] + P[b + r] * ur;
-          for (let j = r + 1; j < M; j++) {
+          let a0 = pi[r] + P[b + r] * ur;
+          let a1 = 0;
+          let a2 = 0;
+          let a3 = 0;
+          let j = r + 1;
+          const j4 = j + ((M - j) & ~3);
+          for (; j < j4; j += 4) {
+            const q = b + j;
+            const v = uo + j;
+            const p0 = P[q];
+            const p1 = P[q + 1];
+            const p2 = P[q + 2];
+            const p3 = P[q + 3];
+            a0 += p0 * ub[v];
+            a1 += p1 * ub[v + 1];
+            a2 += p2 * ub[v + 2];
+            a3 += p3 * ub[v + 3];
+            pi[j] += p0 * ur;
+            pi[j + 1] += p1 * ur;
+            pi[j + 2] += p2 * ur;
+            pi[j + 3] += p3 * ur;
+          }
+          for (; j < M; j++) {
             const prj = P[b + j];
-            acc += prj * ub[uo + j];
+            a0 += prj * ub[uo + j];
             pi[j] += prj * ur;
           }
-          pi[r] = acc;
+          pi[r] = a0 + a1 + (a2 + a3);
         }
       } else {
+        for (let k = 0; k < M; k++) {
+          psi[k] = 0;
+        }
         // π = P u over the full matrix; ψ = uᵀP only for the asymmetry monitor.
         for (let r = 0; r < M; r++) {
           const b = r * M;
@@ -269,7 +293,16 @@ export class RlsFilter extends AdaptiveFilter {
         for (let r = 0; r < M; r++) {
           const b = r * M;
           const kr = pi[r] * ia;
-          for (let j = r; j < M; j++) {
+          let j = r;
+          const j4 = j + ((M - j) & ~3);
+          for (; j < j4; j += 4) {
+            const q4 = b + j;
+            P[q4] = (P[q4] - kr * pi[j]) * il;
+            P[q4 + 1] = (P[q4 + 1] - kr * pi[j + 1]) * il;
+            P[q4 + 2] = (P[q4 + 2] - kr * pi[j + 2]) * il;
+            P[q4 + 3] = (P[q4 + 3] - kr * pi[j + 3]) * il;
+          }
+          for (; j < M; j++) {
             P[b + j] = (P[b + j] - kr * pi[j]) * il;
           }
           if (!(P[b + r] > 0)) {
