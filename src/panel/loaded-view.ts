@@ -1,5 +1,4 @@
-import { Widget } from '@lumino/widgets';
-import type { Message } from '@lumino/messaging';
+import { RenderWidget } from './render-widget';
 import { closeIcon } from '@jupyterlab/ui-components';
 import type { TranslationBundle } from '@jupyterlab/translation';
 import type { ILoadedArray, LoadedArraysModel } from '../model/loaded';
@@ -9,7 +8,7 @@ import { formatShape, formatValue } from './format';
  * The arrays brought into Perpend, each with its summary, notes and actions. Renders the model;
  * actions are handed to the callbacks (the sidebar asks the user, the model does the work).
  */
-export class LoadedView extends Widget {
+export class LoadedView extends RenderWidget {
   constructor(options: LoadedView.IOptions) {
     super();
     this._trans = options.trans;
@@ -25,18 +24,7 @@ export class LoadedView extends Widget {
     super.dispose();
   }
 
-  protected onAfterShow(_msg: Message): void {
-    if (this._stale) {
-      this.update();
-    }
-  }
-
-  protected onUpdateRequest(_msg: Message): void {
-    if (!this.isVisible) {
-      this._stale = true;
-      return;
-    }
-    this._stale = false;
+  protected render(): void {
     const trans = this._trans;
     const model = this._model;
     const h = document.createElement('h3');
@@ -124,7 +112,6 @@ export class LoadedView extends Widget {
   private readonly _model: LoadedArraysModel;
   private readonly _trans: TranslationBundle;
   private readonly _actions: LoadedView.IActions;
-  private _stale = false;
 }
 
 export namespace LoadedView {

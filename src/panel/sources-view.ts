@@ -1,5 +1,4 @@
-import { Widget } from '@lumino/widgets';
-import type { Message } from '@lumino/messaging';
+import { RenderWidget } from './render-widget';
 import { refreshIcon } from '@jupyterlab/ui-components';
 import type { TranslationBundle } from '@jupyterlab/translation';
 import type { ArrayInfo } from '../bridge';
@@ -11,7 +10,7 @@ import { formatBytes, formatShape } from './format';
  * variables. Renders its model only; repaints in onUpdateRequest (bursts conflate) and does no
  * work while hidden.
  */
-export class SourcesView extends Widget {
+export class SourcesView extends RenderWidget {
   constructor(options: SourcesView.IOptions) {
     super();
     this._trans = options.trans;
@@ -52,18 +51,7 @@ export class SourcesView extends Widget {
     this.update();
   }
 
-  protected onAfterShow(_msg: Message): void {
-    if (this._stale) {
-      this.update();
-    }
-  }
-
-  protected onUpdateRequest(_msg: Message): void {
-    if (!this.isVisible) {
-      this._stale = true;
-      return;
-    }
-    this._stale = false;
+  protected render(): void {
     const model = this._model;
     const trans = this._trans;
     this._title.textContent = model?.target?.name ?? trans.__('No notebook');
@@ -105,7 +93,6 @@ export class SourcesView extends Widget {
 
   private _model: SourcesModel | null = null;
   private readonly _onActivate: ((info: ArrayInfo) => void) | null;
-  private _stale = false;
   private readonly _trans: TranslationBundle;
   private readonly _title: HTMLSpanElement;
   private readonly _status: HTMLDivElement;
