@@ -80,6 +80,44 @@ export function dnrm2(n: number, x: Float64Array, sx: number, ox: number): numbe
   return blueCombine(asml, amed, abig);
 }
 
+const TBIG2 = TBIG * TBIG; // 2^972
+const TSML2_EPS = (TSML * TSML) / Number.EPSILON; // 2^-970
+
+/**
+ * Euclidean norm of n contiguous entries x[ox..ox+n): the plain sum of squares s (four partial
+ * sums) when that is provably as good as dnrm2's, else dnrm2 (Blue's algorithm). Safe when
+ * s < TBIG² (then no |x_i| exceeds TBIG: nothing overflowed) and s ≥ n·TSML²/ε (entries below
+ * TSML, whose squares may lose digits to underflow, add up to less than ε·s). NaN or ±Inf make
+ * s fail both tests and take dnrm2's path. Used by the reflector generator, where the norm of
+ * each column below the diagonal is taken once per reflector.
+ */
+export function dnrm2Unit(n: number, x: Float64Array, ox: number): number {
+  let s0 = 0,
+    s1 = 0,
+    s2 = 0,
+    s3 = 0;
+  let i = 0;
+  for (; i + 4 <= n; i += 4) {
+    const a = x[ox + i];
+    const b = x[ox + i + 1];
+    const c = x[ox + i + 2];
+    const d = x[ox + i + 3];
+    s0 += a * a;
+    s1 += b * b;
+    s2 += c * c;
+    s3 += d * d;
+  }
+  for (; i < n; i++) {
+    const a = x[ox + i];
+    s0 += a * a;
+  }
+  const s = s0 + s1 + (s2 + s3);
+  if (s < TBIG2 && s >= n * TSML2_EPS) {
+    return Math.sqrt(s);
+  }
+  return dnrm2(n, x, 1, ox);
+}
+
 function blueCombine(asml: number, amed: number, abig: number): number {
   if (abig > 0) {
     // Beyond TBIG the medium and small parts cannot matter except through amed.

@@ -11,7 +11,7 @@
  * `offsetA + i + j*lda` (complex: element index, data index twice that). The strided public
  * kernels in householder.ts pack other layouts into this one once, at the entry.
  */
-import { dnrm2, dznrm2 } from './blas';
+import { dnrm2, dnrm2Unit, dznrm2 } from './blas';
 
 const SAFMIN = Math.pow(2, -1022) / Number.EPSILON; // dlamch('S')/dlamch('E') as in dlarfg
 const RSAFMN = 1 / SAFMIN;
@@ -32,7 +32,7 @@ export function dlarfg(
   if (n <= 1) {
     return 0;
   }
-  let xnorm = dnrm2(n - 1, x, sx, ox);
+  let xnorm = sx === 1 ? dnrm2Unit(n - 1, x, ox) : dnrm2(n - 1, x, sx, ox);
   // An exactly zero x needs no reflection; this is the algorithm's branch, not a rank test.
   if (xnorm === 0) {
     return 0;
@@ -625,11 +625,52 @@ function larfbChunk1(
   oc: number,
   W: Float64Array
 ): void {
-  for (let p = 0; p < k; p++) {
+  // W = Vᵀc four reflectors at a time (one load of c serves four of them), two rows per step so
+  // that eight independent sums hide the add latency.
+  let p = 0;
+  for (; p + 4 <= k; p += 4) {
+    const v0 = ov + p * ldv;
+    const v1 = v0 + ldv;
+    const v2 = v1 + ldv;
+    const v3 = v2 + ldv;
+    let s0 = 0,
+      s1 = 0,
+      s2 = 0,
+      s3 = 0,
+      t0 = 0,
+      t1 = 0,
+      t2 = 0,
+      t3 = 0;
+    let i = 0;
+    for (; i + 2 <= m; i += 2) {
+      const x = C[oc + i];
+      const y = C[oc + i + 1];
+      s0 += V[v0 + i] * x;
+      s1 += V[v1 + i] * x;
+      s2 += V[v2 + i] * x;
+      s3 += V[v3 + i] * x;
+      t0 += V[v0 + i + 1] * y;
+      t1 += V[v1 + i + 1] * y;
+      t2 += V[v2 + i + 1] * y;
+      t3 += V[v3 + i + 1] * y;
+    }
+    if (i < m) {
+      const x = C[oc + i];
+      s0 += V[v0 + i] * x;
+      s1 += V[v1 + i] * x;
+      s2 += V[v2 + i] * x;
+      s3 += V[v3 + i] * x;
+    }
+    W[p] = s0 + t0;
+    W[p + 1] = s1 + t1;
+    W[p + 2] = s2 + t2;
+    W[p + 3] = s3 + t3;
+  }
+  for (; p < k; p++) {
     W[p] = dot4(m, V, ov + p * ldv, C, oc);
   }
   triMulUpper(trans, k, T, ot, ldt, W, 0);
-  let p = 0;
+  p = 0;
   for (; p + 4 <= k; p += 4) {
     const v0 = ov + p * ldv;
     const v1 = v0 + ldv;

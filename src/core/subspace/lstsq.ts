@@ -283,6 +283,19 @@ function residuals(a: Dense, b: Dense, x: Dense, complex: boolean): Float64Array
           r[2 * i] -= ar * xr - ai * xi;
           r[2 * i + 1] -= ar * xi + ai * xr;
         }
+      } else if (sa1 === 1 && q + 4 <= n) {
+        // Contiguous columns: four at a time, one pass over r instead of four.
+        const b1 = base + sa2;
+        const b2 = b1 + sa2;
+        const b3 = b2 + sa2;
+        const x0 = X[q + j * n];
+        const x1 = X[q + 1 + j * n];
+        const x2 = X[q + 2 + j * n];
+        const x3 = X[q + 3 + j * n];
+        for (let i = 0; i < m; i++) {
+          r[i] -= A[base + i] * x0 + A[b1 + i] * x1 + A[b2 + i] * x2 + A[b3 + i] * x3;
+        }
+        q += 3;
       } else {
         const xv = X[q + j * n];
         for (let i = 0; i < m; i++) {
