@@ -191,18 +191,52 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
       let eta = 1;
       for (let j = 0; j < M; j++) {
         const b0 = j * M;
-        let a = 0;
-        for (let k = 0; k <= j; k++) {
-          a += T[b0 + k] * ub[uo + k];
+        // b_j = Σ_{k≤j} S_kj u_k in four partial sums (one made it add-latency bound).
+        let a0 = 0;
+        let a1 = 0;
+        let a2 = 0;
+        let a3 = 0;
+        let k = 0;
+        const k4 = (j + 1) & ~3;
+        for (; k < k4; k += 4) {
+          const q = b0 + k;
+          const v4 = uo + k;
+          a0 += T[q] * ub[v4];
+          a1 += T[q + 1] * ub[v4 + 1];
+          a2 += T[q + 2] * ub[v4 + 2];
+          a3 += T[q + 3] * ub[v4 + 3];
         }
-        a *= isl;
+        for (; k <= j; k++) {
+          a0 += T[b0 + k] * ub[uo + k];
+        }
+        const a = (a0 + a1 + (a2 + a3)) * isl;
         const etaN = Math.sqrt(eta * eta + a * a);
         const inv = 1 / etaN;
         const c = eta * inv;
         const s = a * inv;
         const cs = c * isl;
         const ss = s * isl;
-        for (let k = 0; k <= j; k++) {
+        k = 0;
+        for (; k < k4; k += 4) {
+          const q = b0 + k;
+          const v0 = v[k];
+          const v1 = v[k + 1];
+          const v2 = v[k + 2];
+          const v3 = v[k + 3];
+          const h0 = T[q];
+          const h1 = T[q + 1];
+          const h2 = T[q + 2];
+          const h3 = T[q + 3];
+          v[k] = c * v0 + ss * h0;
+          v[k + 1] = c * v1 + ss * h1;
+          v[k + 2] = c * v2 + ss * h2;
+          v[k + 3] = c * v3 + ss * h3;
+          T[q] = cs * h0 - s * v0;
+          T[q + 1] = cs * h1 - s * v1;
+          T[q + 2] = cs * h2 - s * v2;
+          T[q + 3] = cs * h3 - s * v3;
+        }
+        for (; k <= j; k++) {
           const vk = v[k];
           const tk = T[b0 + k];
           v[k] = c * vk + ss * tk;
