@@ -216,7 +216,29 @@ export class QrRlsFilter extends AdaptiveFilter {
         R[jj] = rho;
         const cs = c * sl;
         const ss = s * sl;
-        for (let k = j + 1, q = jj + 1; k < M; k++, q++) {
+        // Rotation of row j against the work row, unrolled by 4.
+        let k = j + 1;
+        let q = jj + 1;
+        const k4 = k + ((M - k) & ~3);
+        for (; k < k4; k += 4, q += 4) {
+          const h0 = R[q];
+          const h1 = R[q + 1];
+          const h2 = R[q + 2];
+          const h3 = R[q + 3];
+          const r0 = r[k];
+          const r1 = r[k + 1];
+          const r2 = r[k + 2];
+          const r3 = r[k + 3];
+          R[q] = cs * h0 + s * r0;
+          R[q + 1] = cs * h1 + s * r1;
+          R[q + 2] = cs * h2 + s * r2;
+          R[q + 3] = cs * h3 + s * r3;
+          r[k] = c * r0 - ss * h0;
+          r[k + 1] = c * r1 - ss * h1;
+          r[k + 2] = c * r2 - ss * h2;
+          r[k + 3] = c * r3 - ss * h3;
+        }
+        for (; k < M; k++, q++) {
           const tq = R[q];
           const rk = r[k];
           R[q] = cs * tq + s * rk;
