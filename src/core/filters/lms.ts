@@ -122,6 +122,18 @@ export class LmsFilter extends AdaptiveFilter {
         traj,
         tIdx
       );
+    } else if (this.transversal && n > 0) {
+      this.kernelRT(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
+        traj,
+        tIdx
+      );
     } else {
       this.kernelR(
         x as Float64Array,
@@ -135,6 +147,166 @@ export class LmsFilter extends AdaptiveFilter {
         tIdx
       );
     }
+  }
+
+  /**
+   * Real float64, tapped-delay input: the weight update of sample i and the output and ‖u‖² of
+   * sample i+1 share one pass over w (w is loaded once and stored once per sample), which gives
+   * the same w(i), y(i+1) and ‖u(i+1)‖² as two passes up to the order of the partial sums.
+   */
+  private kernelRT(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const M = this.M;
+    const w = this.w as Float64Array;
+    const ub = this.ub as Float64Array;
+    const mu = this.options.mu;
+    const eps = this.options.epsilon;
+    const nrm = this.normalised;
+    const dec = this.options.decimation;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    // Prologue: y(0) and ‖u(0)‖² of the chunk's first sample.
+    pos = pos === 0 ? M - 1 : pos - 1;
+    ub[pos] = x[0];
+    ub[pos + M] = x[0];
+    let y0 = 0;
+    let y1 = 0;
+    let y2 = 0;
+    let y3 = 0;
+    let s0 = 0;
+    let s1 = 0;
+    let s2 = 0;
+    let s3 = 0;
+    // Same partial-sum order as the fused pass below (bit-identical chunked and one-shot runs).
+    const M14 = (M - 1) & ~3;
+    let k = 0;
+    for (; k < M14; k += 4) {
+      const q = pos + k;
+      const u0 = ub[q];
+      const u1 = ub[q + 1];
+      const u2 = ub[q + 2];
+      const u3 = ub[q + 3];
+      y0 += w[k] * u0;
+      y1 += w[k + 1] * u1;
+      y2 += w[k + 2] * u2;
+      y3 += w[k + 3] * u3;
+      s0 += u0 * u0;
+      s1 += u1 * u1;
+      s2 += u2 * u2;
+      s3 += u3 * u3;
+    }
+    for (; k < M; k++) {
+      const u = ub[pos + k];
+      y0 += w[k] * u;
+      s0 += u * u;
+    }
+    let yv = y0 + y1 + (y2 + y3);
+    let uu = s0 + s1 + (s2 + s3);
+    for (let i = 0; i < n; i++) {
+      const dv = d[i];
+      const ev = dv - yv;
+      const step = nrm ? mu / (eps + uu) : mu;
+      const se = step * ev;
+      const gam = 1 - step * uu;
+      y[i] = yv;
+      e[i] = ev;
+      g[i] = gam;
+      ep[i] = gam * ev;
+      // u(i) sits at `pos`; u(i+1) at `nx` once x(i+1) is written (doubled buffer).
+      const last = i + 1 === n;
+      const nx = pos === 0 ? M - 1 : pos - 1;
+      y0 = 0;
+      y1 = 0;
+      y2 = 0;
+      y3 = 0;
+      s0 = 0;
+      s1 = 0;
+      s2 = 0;
+      s3 = 0;
+      k = 0;
+      if (last) {
+        for (; k < M; k++) {
+          w[k] += se * ub[pos + k];
+        }
+      } else {
+        const xn = x[i + 1];
+        // Before overwriting slot nx (and nx + M), the fused loop needs u(i) intact: u(i)
+        // occupies pos … pos+M−1, and nx + M = pos + M − 1 only when pos ≥ 1, i.e. the last
+        // entry of u(i), the oldest one, which drops out of u(i+1). So update that weight first.
+        w[M - 1] += se * ub[pos + M - 1];
+        ub[nx] = xn;
+        ub[nx + M] = xn;
+        const M1 = M - 1;
+        for (; k < M14; k += 4) {
+          const q = pos + k;
+          const r = nx + k;
+          const w0 = w[k] + se * ub[q];
+          const w1 = w[k + 1] + se * ub[q + 1];
+          const w2 = w[k + 2] + se * ub[q + 2];
+          const w3 = w[k + 3] + se * ub[q + 3];
+          w[k] = w0;
+          w[k + 1] = w1;
+          w[k + 2] = w2;
+          w[k + 3] = w3;
+          const v0 = ub[r];
+          const v1 = ub[r + 1];
+          const v2 = ub[r + 2];
+          const v3 = ub[r + 3];
+          y0 += w0 * v0;
+          y1 += w1 * v1;
+          y2 += w2 * v2;
+          y3 += w3 * v3;
+          s0 += v0 * v0;
+          s1 += v1 * v1;
+          s2 += v2 * v2;
+          s3 += v3 * v3;
+        }
+        for (; k < M1; k++) {
+          const wk = w[k] + se * ub[pos + k];
+          w[k] = wk;
+          const v = ub[nx + k];
+          y0 += wk * v;
+          s0 += v * v;
+        }
+        const vl = ub[nx + M1];
+        y0 += w[M1] * vl;
+        s0 += vl * vl;
+        pos = nx;
+      }
+      const ee = ev * ev;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dv * dv - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * M);
+        tIdx[row++] = t0 + i;
+      }
+      yv = y0 + y1 + (y2 + y3);
+      uu = s0 + s1 + (s2 + s3);
+    }
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
   }
 
   private kernelR(
