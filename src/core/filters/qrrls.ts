@@ -205,7 +205,10 @@ export class QrRlsFilter extends AdaptiveFilter {
       const dv = d[i];
       let dr = dv;
       let gs = 1;
-      for (let j = 0; j < M; j++) {
+      // Rows j and j+1 are rotated in one pass over the work row (it is loaded and stored once
+      // per pair); every element sees the same operations in the same order as one row at a time.
+      let j = 0;
+      for (; j + 1 < M; j += 2) {
         const jj = j * M + j;
         const a = sl * R[jj];
         const b = r[j];
@@ -216,37 +219,71 @@ export class QrRlsFilter extends AdaptiveFilter {
         R[jj] = rho;
         const cs = c * sl;
         const ss = s * sl;
-        // Rotation of row j against the work row, unrolled by 4.
-        let k = j + 1;
-        let q = jj + 1;
-        const k4 = k + ((M - k) & ~3);
-        for (; k < k4; k += 4, q += 4) {
-          const h0 = R[q];
-          const h1 = R[q + 1];
-          const h2 = R[q + 2];
-          const h3 = R[q + 3];
-          const r0 = r[k];
-          const r1 = r[k + 1];
-          const r2 = r[k + 2];
-          const r3 = r[k + 3];
-          R[q] = cs * h0 + s * r0;
-          R[q + 1] = cs * h1 + s * r1;
-          R[q + 2] = cs * h2 + s * r2;
-          R[q + 3] = cs * h3 + s * r3;
-          r[k] = c * r0 - ss * h0;
-          r[k + 1] = c * r1 - ss * h1;
-          r[k + 2] = c * r2 - ss * h2;
-          r[k + 3] = c * r3 - ss * h3;
-        }
-        for (; k < M; k++, q++) {
-          const tq = R[q];
-          const rk = r[k];
-          R[q] = cs * tq + s * rk;
-          r[k] = c * rk - ss * tq;
-        }
+        const th = R[jj + 1];
+        const rh = r[j + 1];
+        R[jj + 1] = cs * th + s * rh;
+        const b1 = c * rh - ss * th;
         const pj = p[j];
         p[j] = cs * pj + s * dr;
         dr = c * dr - ss * pj;
+        gs *= c;
+        const j1 = j + 1;
+        const jj1 = jj + M + 1;
+        const a1 = sl * R[jj1];
+        const rho1 = Math.sqrt(a1 * a1 + b1 * b1);
+        const inv1 = 1 / rho1;
+        const c1 = a1 * inv1;
+        const s1 = b1 * inv1;
+        R[jj1] = rho1;
+        const cs1 = c1 * sl;
+        const ss1 = s1 * sl;
+        let k = j + 2;
+        let q = jj + 2;
+        let q1 = jj1 + 1;
+        const k2 = k + ((M - k) & ~1);
+        for (; k < k2; k += 2, q += 2, q1 += 2) {
+          const tq = R[q];
+          const tu = R[q + 1];
+          const rk = r[k];
+          const ru = r[k + 1];
+          R[q] = cs * tq + s * rk;
+          R[q + 1] = cs * tu + s * ru;
+          const rk1 = c * rk - ss * tq;
+          const ru1 = c * ru - ss * tu;
+          const tq1 = R[q1];
+          const tu1 = R[q1 + 1];
+          R[q1] = cs1 * tq1 + s1 * rk1;
+          R[q1 + 1] = cs1 * tu1 + s1 * ru1;
+          r[k] = c1 * rk1 - ss1 * tq1;
+          r[k + 1] = c1 * ru1 - ss1 * tu1;
+        }
+        for (; k < M; k++, q++, q1++) {
+          const tq = R[q];
+          const rk = r[k];
+          R[q] = cs * tq + s * rk;
+          const rk1 = c * rk - ss * tq;
+          const tq1 = R[q1];
+          R[q1] = cs1 * tq1 + s1 * rk1;
+          r[k] = c1 * rk1 - ss1 * tq1;
+        }
+        const pj1 = p[j1];
+        p[j1] = cs1 * pj1 + s1 * dr;
+        dr = c1 * dr - ss1 * pj1;
+        gs *= c1;
+      }
+      if (j < M) {
+        // odd M: the last row (a single entry)
+        const jj = j * M + j;
+        const a = sl * R[jj];
+        const b = r[j];
+        const rho = Math.sqrt(a * a + b * b);
+        const inv = 1 / rho;
+        const c = a * inv;
+        const s = b * inv;
+        R[jj] = rho;
+        const pj = p[j];
+        p[j] = c * sl * pj + s * dr;
+        dr = c * dr - s * sl * pj;
         gs *= c;
       }
       const ev = dr / gs;
