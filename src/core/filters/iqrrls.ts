@@ -141,6 +141,28 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     }
   }
 
+  /** Σ_{k≤j} T[b+k]·u[o+k] in four partial sums, in a fixed order. */
+  private dotTri(T: Float64Array, b: number, u: Float64Array, o: number, j: number): number {
+    let a0 = 0;
+    let a1 = 0;
+    let a2 = 0;
+    let a3 = 0;
+    let k = 0;
+    const k4 = (j + 1) & ~3;
+    for (; k < k4; k += 4) {
+      const q = b + k;
+      const v4 = o + k;
+      a0 += T[q] * u[v4];
+      a1 += T[q + 1] * u[v4 + 1];
+      a2 += T[q + 2] * u[v4 + 2];
+      a3 += T[q + 3] * u[v4 + 3];
+    }
+    for (; k <= j; k++) {
+      a0 += T[b + k] * u[o + k];
+    }
+    return a0 + a1 + (a2 + a3);
+  }
+
   private kernelR(
     x: Float64Array,
     d: Float64Array,
@@ -189,60 +211,73 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
       const dv = d[i];
       const ev = dv - yv;
       let eta = 1;
-      for (let j = 0; j < M; j++) {
+      // Columns j and j+1 are rotated in one pass over v (loaded and stored once per pair);
+      // every element sees the same operations in the same order as one column at a time.
+      for (let j = 0; j < M; j += 2) {
+        const two = j + 1 < M;
         const b0 = j * M;
-        // b_j = Σ_{k≤j} S_kj u_k in four partial sums (one made it add-latency bound).
-        let a0 = 0;
-        let a1 = 0;
-        let a2 = 0;
-        let a3 = 0;
-        let k = 0;
-        const k4 = (j + 1) & ~3;
-        for (; k < k4; k += 4) {
-          const q = b0 + k;
-          const v4 = uo + k;
-          a0 += T[q] * ub[v4];
-          a1 += T[q + 1] * ub[v4 + 1];
-          a2 += T[q + 2] * ub[v4 + 2];
-          a3 += T[q + 3] * ub[v4 + 3];
-        }
-        for (; k <= j; k++) {
-          a0 += T[b0 + k] * ub[uo + k];
-        }
-        const a = (a0 + a1 + (a2 + a3)) * isl;
+        const b1 = b0 + M;
+        // b_j = Σ_{k≤j} S_kj u_k in four partial sums (one made it add-latency bound); b_{j+1}
+        // likewise: both use the columns before this sample's rotations.
+        const a = this.dotTri(T, b0, ub, uo, j) * isl;
+        const a1 = two ? this.dotTri(T, b1, ub, uo, j + 1) * isl : 0;
         const etaN = Math.sqrt(eta * eta + a * a);
         const inv = 1 / etaN;
         const c = eta * inv;
         const s = a * inv;
         const cs = c * isl;
         const ss = s * isl;
-        k = 0;
-        for (; k < k4; k += 4) {
+        if (!two) {
+          for (let k = 0; k <= j; k++) {
+            const vk = v[k];
+            const tk = T[b0 + k];
+            v[k] = c * vk + ss * tk;
+            T[b0 + k] = cs * tk - s * vk;
+          }
+          eta = etaN;
+          break;
+        }
+        const etaN1 = Math.sqrt(etaN * etaN + a1 * a1);
+        const inv1 = 1 / etaN1;
+        const c1 = etaN * inv1;
+        const s1 = a1 * inv1;
+        const cs1 = c1 * isl;
+        const ss1 = s1 * isl;
+        let k = 0;
+        const k2 = (j + 1) & ~1;
+        for (; k < k2; k += 2) {
           const q = b0 + k;
+          const q1 = b1 + k;
           const v0 = v[k];
           const v1 = v[k + 1];
-          const v2 = v[k + 2];
-          const v3 = v[k + 3];
           const h0 = T[q];
           const h1 = T[q + 1];
-          const h2 = T[q + 2];
-          const h3 = T[q + 3];
-          v[k] = c * v0 + ss * h0;
-          v[k + 1] = c * v1 + ss * h1;
-          v[k + 2] = c * v2 + ss * h2;
-          v[k + 3] = c * v3 + ss * h3;
           T[q] = cs * h0 - s * v0;
           T[q + 1] = cs * h1 - s * v1;
-          T[q + 2] = cs * h2 - s * v2;
-          T[q + 3] = cs * h3 - s * v3;
+          const w0 = c * v0 + ss * h0;
+          const w1 = c * v1 + ss * h1;
+          const g0 = T[q1];
+          const g1 = T[q1 + 1];
+          v[k] = c1 * w0 + ss1 * g0;
+          v[k + 1] = c1 * w1 + ss1 * g1;
+          T[q1] = cs1 * g0 - s1 * w0;
+          T[q1 + 1] = cs1 * g1 - s1 * w1;
         }
         for (; k <= j; k++) {
           const vk = v[k];
           const tk = T[b0 + k];
-          v[k] = c * vk + ss * tk;
           T[b0 + k] = cs * tk - s * vk;
+          const wk = c * vk + ss * tk;
+          const gk = T[b1 + k];
+          v[k] = c1 * wk + ss1 * gk;
+          T[b1 + k] = cs1 * gk - s1 * wk;
         }
-        eta = etaN;
+        // k = j+1: column j+1 only (column j has no entry there)
+        const vk = v[j + 1];
+        const gk = T[b1 + j + 1];
+        v[j + 1] = c1 * vk + ss1 * gk;
+        T[b1 + j + 1] = cs1 * gk - s1 * vk;
+        eta = etaN1;
       }
       const ginv = ev / eta;
       for (let k = 0; k < M; k++) {
