@@ -45,9 +45,9 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
     const sources = new SourcesModel();
     const loaded = new LoadedArraysModel({ bridge: () => sources.bridge });
     const sidebar = new PerpendSidebar({ sources, loaded, trans });
-    const settingsChanged = new Signal<IPerpend, IPerpendSettings>({} as IPerpend);
+
     let settings: IPerpendSettings = { ...DEFAULT_SETTINGS };
-    const perpend: IPerpend = { sources, loaded, settingsChanged };
+    const perpend = new Private.Perpend(sources, loaded);
 
     app.shell.add(sidebar, 'right', { rank: 650 });
     restorer?.add(sidebar, sidebar.id);
@@ -163,7 +163,7 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
           timeoutMs: settings.requestTimeoutSeconds * 1000,
           maxBytes: settings.maxArrayMiB * 1024 * 1024
         });
-        settingsChanged.emit(settings);
+        perpend.settingsChanged.emit(settings);
       };
       settingRegistry
         .load(PLUGIN_ID)
@@ -178,6 +178,15 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
 };
 
 namespace Private {
+  /** The IPerpend handle: its signal's sender is the handle itself, as listeners expect. */
+  export class Perpend implements IPerpend {
+    constructor(
+      readonly sources: SourcesModel,
+      readonly loaded: LoadedArraysModel
+    ) {}
+    readonly settingsChanged: Signal<IPerpend, IPerpendSettings> = new Signal(this);
+  }
+
   /**
    * Adapts a NotebookPanel to what the sources model needs, with a ledger of the executions its
    * current kernel session produced (reset when the kernel changes or restarts).
