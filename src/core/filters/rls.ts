@@ -31,6 +31,8 @@ export class RlsFilter extends AdaptiveFilter {
   protected w!: Real;
   /** Work: π = Pu. */
   protected pi!: Real;
+  /** Work: the next sample's π, formed while P is updated (real float64 default variant). */
+  protected piNext!: Float64Array;
   /** Work: ψ = uᴴP (legacy only). */
   protected psi!: Real;
   readonly legacy: boolean;
@@ -53,6 +55,11 @@ export class RlsFilter extends AdaptiveFilter {
     this.w = this.zeroed(this.w, w * M);
     this.pi = this.zeroed(this.pi, w * M);
     this.psi = this.zeroed(this.psi, w * M);
+    if (this.piNext === undefined || this.piNext.length !== M) {
+      this.piNext = new Float64Array(M);
+    } else {
+      this.piNext.fill(0);
+    }
     const s = this.f32 ? Math.fround(1 / Math.fround(this.options.delta)) : 1 / this.options.delta;
     for (let j = 0; j < M; j++) {
       this.P[w * (j * M + j)] = s;
@@ -151,6 +158,18 @@ export class RlsFilter extends AdaptiveFilter {
         traj,
         tIdx
       );
+    } else if (!this.legacy) {
+      this.kernelRSym(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
+        traj,
+        tIdx
+      );
     } else {
       this.kernelR(
         x as Float64Array,
@@ -164,6 +183,182 @@ export class RlsFilter extends AdaptiveFilter {
         tIdx
       );
     }
+  }
+
+  /**
+   * Real float64, default (upper-triangle) variant. Within a chunk the update of P(n) and the
+   * next sample's π = P(n)u(n+1) are one pass over the triangle: each updated entry is used for
+   * π while it is still in a register, so P is read once per sample instead of twice (the
+   * separate passes were L2-bandwidth bound at M = 128). The arithmetic and its order are those
+   * of the two-pass form, so the results are bit-identical to it; the last sample of a chunk,
+   * whose successor is not known yet, takes the two passes.
+   */
+  private kernelRSym(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const M = this.M;
+    const P = this.P as Float64Array;
+    const w = this.w as Float64Array;
+    const ub = this.ub as Float64Array;
+    const lam = this.options.lambda;
+    const il = 1 / lam;
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    let pa = this.pi as Float64Array;
+    let pb = this.piNext;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    // True when pa already holds P(n−1)u(n) and u(n) is in place (formed by the fused pass).
+    let ready = false;
+    for (let i = 0; i < n; i++) {
+      let ua = ub;
+      let uo = 0;
+      if (!tv) {
+        ua = x;
+        uo = i * M;
+      } else if (!ready) {
+        pos = pos === 0 ? M - 1 : pos - 1;
+        const xv = x[i];
+        ub[pos] = xv;
+        ub[pos + M] = xv;
+      }
+      if (tv) {
+        uo = pos;
+      }
+      if (!ready) {
+        symvUpper(M, P, ua, uo, pa);
+      }
+      let yv = 0;
+      let q = 0;
+      for (let k = 0; k < M; k++) {
+        const uk = ua[uo + k];
+        yv += w[k] * uk;
+        q += uk * pa[k];
+      }
+      const alpha = lam + q;
+      const ia = 1 / alpha;
+      const dv = d[i];
+      const ev = dv - yv;
+      const eka = ev * ia;
+      for (let k = 0; k < M; k++) {
+        w[k] += pa[k] * eka;
+        pb[k] = 0;
+      }
+      let diagBad = false;
+      ready = i + 1 < n;
+      if (ready) {
+        // u(n+1): the delay line moves on now (u(n) is not needed any more).
+        let va = ub;
+        let vo = 0;
+        if (tv) {
+          pos = pos === 0 ? M - 1 : pos - 1;
+          const xv = x[i + 1];
+          ub[pos] = xv;
+          ub[pos + M] = xv;
+          vo = pos;
+        } else {
+          va = x;
+          vo = (i + 1) * M;
+        }
+        for (let r = 0; r < M; r++) {
+          const b = r * M;
+          const kr = pa[r] * ia;
+          const vr = va[vo + r];
+          const prr = (P[b + r] - kr * pa[r]) * il;
+          P[b + r] = prr;
+          if (!(prr > 0)) {
+            diagBad = true;
+          }
+          let a0 = pb[r] + prr * vr;
+          let a1 = 0;
+          let a2 = 0;
+          let a3 = 0;
+          let j = r + 1;
+          const j4 = j + ((M - j) & ~3);
+          for (; j < j4; j += 4) {
+            const q4 = b + j;
+            const v = vo + j;
+            const p0 = (P[q4] - kr * pa[j]) * il;
+            const p1 = (P[q4 + 1] - kr * pa[j + 1]) * il;
+            const p2 = (P[q4 + 2] - kr * pa[j + 2]) * il;
+            const p3 = (P[q4 + 3] - kr * pa[j + 3]) * il;
+            P[q4] = p0;
+            P[q4 + 1] = p1;
+            P[q4 + 2] = p2;
+            P[q4 + 3] = p3;
+            a0 += p0 * va[v];
+            a1 += p1 * va[v + 1];
+            a2 += p2 * va[v + 2];
+            a3 += p3 * va[v + 3];
+            pb[j] += p0 * vr;
+            pb[j + 1] += p1 * vr;
+            pb[j + 2] += p2 * vr;
+            pb[j + 3] += p3 * vr;
+          }
+          for (; j < M; j++) {
+            const p0 = (P[b + j] - kr * pa[j]) * il;
+            P[b + j] = p0;
+            a0 += p0 * va[vo + j];
+            pb[j] += p0 * vr;
+          }
+          pb[r] = a0 + a1 + (a2 + a3);
+        }
+        const t = pa;
+        pa = pb;
+        pb = t;
+      } else {
+        for (let r = 0; r < M; r++) {
+          const b = r * M;
+          const kr = pa[r] * ia;
+          for (let j = r; j < M; j++) {
+            P[b + j] = (P[b + j] - kr * pa[j]) * il;
+          }
+          if (!(P[b + r] > 0)) {
+            diagBad = true;
+          }
+        }
+      }
+      if (!(q >= 0) || diagBad) {
+        this.report(q, diagBad, 0, t0 + i);
+      }
+      const gam = lam * ia;
+      y[i] = yv;
+      e[i] = ev;
+      g[i] = gam;
+      ep[i] = gam * ev;
+      const ee = ev * ev;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dv * dv - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * M);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.pi = pa;
+    this.piNext = pb;
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
   }
 
   private kernelR(
@@ -788,5 +983,47 @@ export class RlsFilter extends AdaptiveFilter {
     this.dcount = dc;
     this.hPe = pe;
     this.hPd = pd;
+  }
+}
+
+/**
+ * π = P·u for symmetric P held in its upper triangle (row-major M×M), u = ua[uo..uo+M): row r's
+ * dot product in four partial sums, the transposed contributions added into π as the row passes.
+ */
+function symvUpper(M: number, P: Float64Array, ua: Float64Array, uo: number, pi: Float64Array) {
+  for (let k = 0; k < M; k++) {
+    pi[k] = 0;
+  }
+  for (let r = 0; r < M; r++) {
+    const b = r * M;
+    const ur = ua[uo + r];
+    let a0 = pi[r] + P[b + r] * ur;
+    let a1 = 0;
+    let a2 = 0;
+    let a3 = 0;
+    let j = r + 1;
+    const j4 = j + ((M - j) & ~3);
+    for (; j < j4; j += 4) {
+      const q = b + j;
+      const v = uo + j;
+      const p0 = P[q];
+      const p1 = P[q + 1];
+      const p2 = P[q + 2];
+      const p3 = P[q + 3];
+      a0 += p0 * ua[v];
+      a1 += p1 * ua[v + 1];
+      a2 += p2 * ua[v + 2];
+      a3 += p3 * ua[v + 3];
+      pi[j] += p0 * ur;
+      pi[j + 1] += p1 * ur;
+      pi[j + 2] += p2 * ur;
+      pi[j + 3] += p3 * ur;
+    }
+    for (; j < M; j++) {
+      const prj = P[b + j];
+      a0 += prj * ua[uo + j];
+      pi[j] += prj * ur;
+    }
+    pi[r] = a0 + a1 + (a2 + a3);
   }
 }
