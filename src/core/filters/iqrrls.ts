@@ -23,6 +23,8 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
   protected w!: Real;
   /** Work column: g γ^−½ accumulates here. */
   protected v!: Real;
+  /** Work: the inner products b_j = Σ_{k≤j} S_kj u_k of the coming sample (real float64). */
+  protected bNext!: Float64Array;
 
   constructor(options: FilterOptions) {
     super({ ...options, algorithm: 'inverse-qr-rls' });
@@ -39,6 +41,9 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     this.T = this.zeroed(this.T, w * M * M);
     this.w = this.zeroed(this.w, w * M);
     this.v = this.zeroed(this.v, w * M);
+    if (this.bNext === undefined || this.bNext.length !== M) {
+      this.bNext = new Float64Array(M);
+    }
     const s = this.f32
       ? Math.fround(1 / Math.fround(Math.sqrt(Math.fround(this.options.delta))))
       : 1 / Math.sqrt(this.options.delta);
@@ -163,6 +168,14 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     return a0 + a1 + (a2 + a3);
   }
 
+  /**
+   * Real float64. The inner products b_j(n) = Σ_{k≤j} S_kj(n−1) u_k(n) use column j before this
+   * sample's rotation j, the only one that changes it; so within a chunk they are formed for the
+   * next sample while the rotation writes the new column (S is read once per sample instead of
+   * twice). The first sample of a chunk forms them in a pass of their own. Every value sees the
+   * same operations in the same order either way (four partial sums as in dotTri), so chunked and
+   * one-shot runs agree bit for bit.
+   */
   private kernelR(
     x: Float64Array,
     d: Float64Array,
@@ -178,6 +191,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     const T = this.T as Float64Array;
     const w = this.w as Float64Array;
     const v = this.v as Float64Array;
+    const bn = this.bNext;
     const ub = this.ub as Float64Array;
     const isl = 1 / Math.sqrt(this.options.lambda);
     const tv = this.transversal;
@@ -189,27 +203,51 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     let row = 0;
     let pe = this.hPe;
     let pd = this.hPd;
+    // True when bn holds b(n) for this sample and u(n) is in place (formed by the last pass).
+    let ready = false;
     for (let i = 0; i < n; i++) {
+      let ua = ub;
       let uo = 0;
-      if (tv) {
-        pos = pos === 0 ? M - 1 : pos - 1;
-        const xv = x[i];
-        ub[pos] = xv;
-        ub[pos + M] = xv;
-        uo = pos;
+      if (!tv) {
+        ua = x;
+        uo = i * M;
       } else {
-        const b = i * M;
-        for (let k = 0; k < M; k++) {
-          ub[k] = x[b + k];
+        if (!ready) {
+          pos = pos === 0 ? M - 1 : pos - 1;
+          const xv = x[i];
+          ub[pos] = xv;
+          ub[pos + M] = xv;
+        }
+        uo = pos;
+      }
+      if (!ready) {
+        for (let j = 0; j < M; j++) {
+          bn[j] = this.dotTri(T, j * M, ua, uo, j);
         }
       }
       let yv = 0;
       for (let k = 0; k < M; k++) {
-        yv += w[k] * ub[uo + k];
+        yv += w[k] * ua[uo + k];
         v[k] = 0;
       }
       const dv = d[i];
       const ev = dv - yv;
+      // u(n+1) for the next sample's inner products (u(n) is not needed any more); on the last
+      // sample of the chunk they are formed with u(n) and discarded.
+      ready = i + 1 < n;
+      const va = ua;
+      let vo = uo;
+      if (ready) {
+        if (tv) {
+          pos = pos === 0 ? M - 1 : pos - 1;
+          const xv = x[i + 1];
+          ub[pos] = xv;
+          ub[pos + M] = xv;
+          vo = pos;
+        } else {
+          vo = (i + 1) * M;
+        }
+      }
       let eta = 1;
       // Columns j and j+1 are rotated in one pass over v (loaded and stored once per pair);
       // every element sees the same operations in the same order as one column at a time.
@@ -217,66 +255,163 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
         const two = j + 1 < M;
         const b0 = j * M;
         const b1 = b0 + M;
-        // b_j = Σ_{k≤j} S_kj u_k in four partial sums (one made it add-latency bound); b_{j+1}
-        // likewise: both use the columns before this sample's rotations.
-        const a = this.dotTri(T, b0, ub, uo, j) * isl;
-        const a1 = two ? this.dotTri(T, b1, ub, uo, j + 1) * isl : 0;
+        const a = bn[j] * isl;
         const etaN = Math.sqrt(eta * eta + a * a);
         const inv = 1 / etaN;
         const c = eta * inv;
         const s = a * inv;
         const cs = c * isl;
         const ss = s * isl;
+        const k4 = (j + 1) & ~3;
+        let d0 = 0;
+        let d1 = 0;
+        let d2 = 0;
+        let d3 = 0;
         if (!two) {
-          for (let k = 0; k <= j; k++) {
+          let k = 0;
+          for (; k < k4; k += 4) {
+            const q = b0 + k;
+            const z = vo + k;
+            const v0 = v[k];
+            const v1 = v[k + 1];
+            const v2 = v[k + 2];
+            const v3 = v[k + 3];
+            const h0 = T[q];
+            const h1 = T[q + 1];
+            const h2 = T[q + 2];
+            const h3 = T[q + 3];
+            v[k] = c * v0 + ss * h0;
+            v[k + 1] = c * v1 + ss * h1;
+            v[k + 2] = c * v2 + ss * h2;
+            v[k + 3] = c * v3 + ss * h3;
+            const n0 = cs * h0 - s * v0;
+            const n1 = cs * h1 - s * v1;
+            const n2 = cs * h2 - s * v2;
+            const n3 = cs * h3 - s * v3;
+            T[q] = n0;
+            T[q + 1] = n1;
+            T[q + 2] = n2;
+            T[q + 3] = n3;
+            d0 += n0 * va[z];
+            d1 += n1 * va[z + 1];
+            d2 += n2 * va[z + 2];
+            d3 += n3 * va[z + 3];
+          }
+          for (; k <= j; k++) {
             const vk = v[k];
             const tk = T[b0 + k];
             v[k] = c * vk + ss * tk;
-            T[b0 + k] = cs * tk - s * vk;
+            const nk = cs * tk - s * vk;
+            T[b0 + k] = nk;
+            d0 += nk * va[vo + k];
           }
+          bn[j] = d0 + d1 + (d2 + d3);
           eta = etaN;
           break;
         }
+        const a1 = bn[j + 1] * isl;
         const etaN1 = Math.sqrt(etaN * etaN + a1 * a1);
         const inv1 = 1 / etaN1;
         const c1 = etaN * inv1;
         const s1 = a1 * inv1;
         const cs1 = c1 * isl;
         const ss1 = s1 * isl;
+        let e0 = 0;
+        let e1 = 0;
+        let e2 = 0;
+        let e3 = 0;
         let k = 0;
-        const k2 = (j + 1) & ~1;
-        for (; k < k2; k += 2) {
+        for (; k < k4; k += 4) {
           const q = b0 + k;
           const q1 = b1 + k;
+          const z = vo + k;
           const v0 = v[k];
           const v1 = v[k + 1];
           const h0 = T[q];
           const h1 = T[q + 1];
-          T[q] = cs * h0 - s * v0;
-          T[q + 1] = cs * h1 - s * v1;
+          const n0 = cs * h0 - s * v0;
+          const n1 = cs * h1 - s * v1;
+          T[q] = n0;
+          T[q + 1] = n1;
           const w0 = c * v0 + ss * h0;
           const w1 = c * v1 + ss * h1;
           const g0 = T[q1];
           const g1 = T[q1 + 1];
           v[k] = c1 * w0 + ss1 * g0;
           v[k + 1] = c1 * w1 + ss1 * g1;
-          T[q1] = cs1 * g0 - s1 * w0;
-          T[q1 + 1] = cs1 * g1 - s1 * w1;
+          const m0 = cs1 * g0 - s1 * w0;
+          const m1 = cs1 * g1 - s1 * w1;
+          T[q1] = m0;
+          T[q1 + 1] = m1;
+          const u0 = va[z];
+          const u1 = va[z + 1];
+          d0 += n0 * u0;
+          d1 += n1 * u1;
+          e0 += m0 * u0;
+          e1 += m1 * u1;
+          const v2 = v[k + 2];
+          const v3 = v[k + 3];
+          const h2 = T[q + 2];
+          const h3 = T[q + 3];
+          const n2 = cs * h2 - s * v2;
+          const n3 = cs * h3 - s * v3;
+          T[q + 2] = n2;
+          T[q + 3] = n3;
+          const w2 = c * v2 + ss * h2;
+          const w3 = c * v3 + ss * h3;
+          const g2 = T[q1 + 2];
+          const g3 = T[q1 + 3];
+          v[k + 2] = c1 * w2 + ss1 * g2;
+          v[k + 3] = c1 * w3 + ss1 * g3;
+          const m2 = cs1 * g2 - s1 * w2;
+          const m3 = cs1 * g3 - s1 * w3;
+          T[q1 + 2] = m2;
+          T[q1 + 3] = m3;
+          const u2 = va[z + 2];
+          const u3 = va[z + 3];
+          d2 += n2 * u2;
+          d3 += n3 * u3;
+          e2 += m2 * u2;
+          e3 += m3 * u3;
         }
+        // Tail k = k4…j: column j adds to its first partial sum (as dotTri does); column j+1
+        // keeps four partial sums up to its own k4, which is k4 + 4 when j ≡ 2 (mod 4).
+        const split = ((j + 2) & ~3) > k4;
         for (; k <= j; k++) {
           const vk = v[k];
           const tk = T[b0 + k];
-          T[b0 + k] = cs * tk - s * vk;
+          const nk = cs * tk - s * vk;
+          T[b0 + k] = nk;
           const wk = c * vk + ss * tk;
           const gk = T[b1 + k];
           v[k] = c1 * wk + ss1 * gk;
-          T[b1 + k] = cs1 * gk - s1 * wk;
+          const mk = cs1 * gk - s1 * wk;
+          T[b1 + k] = mk;
+          const uk = va[vo + k];
+          d0 += nk * uk;
+          const t = mk * uk;
+          if (!split || k === k4) {
+            e0 += t;
+          } else if (k === k4 + 1) {
+            e1 += t;
+          } else {
+            e2 += t;
+          }
         }
         // k = j+1: column j+1 only (column j has no entry there)
         const vk = v[j + 1];
         const gk = T[b1 + j + 1];
         v[j + 1] = c1 * vk + ss1 * gk;
-        T[b1 + j + 1] = cs1 * gk - s1 * vk;
+        const mk = cs1 * gk - s1 * vk;
+        T[b1 + j + 1] = mk;
+        const t = mk * va[vo + j + 1];
+        if (split) {
+          e3 += t;
+        } else {
+          e0 += t;
+        }
+        bn[j] = d0 + d1 + (d2 + d3);
+        bn[j + 1] = e0 + e1 + (e2 + e3);
         eta = etaN1;
       }
       const ginv = ev / eta;
