@@ -191,29 +191,35 @@ export class LmsFilter extends AdaptiveFilter {
     let s1 = 0;
     let s2 = 0;
     let s3 = 0;
-    // Same partial-sum order as the fused pass below (bit-identical chunked and one-shot runs).
+    // Same partial-sum order as the fused pass below (bit-identical chunked and one-shot runs):
+    // entry k goes to partial sum k mod 4, so that no sum is longer than ⌈M/4⌉ (the chain
+    // through y and e sets the rate at small M).
     const M14 = (M - 1) & ~3;
     let k = 0;
-    for (; k < M14; k += 4) {
+    for (; k < M; k += 4) {
       const q = pos + k;
       const u0 = ub[q];
-      const u1 = ub[q + 1];
-      const u2 = ub[q + 2];
-      const u3 = ub[q + 3];
       y0 += w[k] * u0;
-      y1 += w[k + 1] * u1;
-      y2 += w[k + 2] * u2;
-      y3 += w[k + 3] * u3;
       s0 += u0 * u0;
-      s1 += u1 * u1;
-      s2 += u2 * u2;
-      s3 += u3 * u3;
+      if (k + 1 < M) {
+        const u1 = ub[q + 1];
+        y1 += w[k + 1] * u1;
+        s1 += u1 * u1;
+      }
+      if (k + 2 < M) {
+        const u2 = ub[q + 2];
+        y2 += w[k + 2] * u2;
+        s2 += u2 * u2;
+      }
+      if (k + 3 < M) {
+        const u3 = ub[q + 3];
+        y3 += w[k + 3] * u3;
+        s3 += u3 * u3;
+      }
     }
-    for (; k < M; k++) {
-      const u = ub[pos + k];
-      y0 += w[k] * u;
-      s0 += u * u;
-    }
+    // Entries M14 … M−2 of the fused pass's tail, and the last one, M−1, in partial sum
+    // (M−1) mod 4.
+    const tail = M - 1 - M14;
     let yv = y0 + y1 + (y2 + y3);
     let uu = s0 + s1 + (s2 + s3);
     for (let i = 0; i < n; i++) {
@@ -275,16 +281,43 @@ export class LmsFilter extends AdaptiveFilter {
           s2 += v2 * v2;
           s3 += v3 * v3;
         }
-        for (; k < M1; k++) {
+        if (tail > 0) {
           const wk = w[k] + se * ub[pos + k];
           w[k] = wk;
           const v = ub[nx + k];
           y0 += wk * v;
           s0 += v * v;
+          if (tail > 1) {
+            const wk1 = w[k + 1] + se * ub[pos + k + 1];
+            w[k + 1] = wk1;
+            const v1 = ub[nx + k + 1];
+            y1 += wk1 * v1;
+            s1 += v1 * v1;
+            if (tail > 2) {
+              const wk2 = w[k + 2] + se * ub[pos + k + 2];
+              w[k + 2] = wk2;
+              const v2 = ub[nx + k + 2];
+              y2 += wk2 * v2;
+              s2 += v2 * v2;
+            }
+          }
         }
         const vl = ub[nx + M1];
-        y0 += w[M1] * vl;
-        s0 += vl * vl;
+        const tl = w[M1] * vl;
+        const sl = vl * vl;
+        if (tail === 0) {
+          y0 += tl;
+          s0 += sl;
+        } else if (tail === 1) {
+          y1 += tl;
+          s1 += sl;
+        } else if (tail === 2) {
+          y2 += tl;
+          s2 += sl;
+        } else {
+          y3 += tl;
+          s3 += sl;
+        }
         pos = nx;
       }
       const ee = ev * ev;
