@@ -208,6 +208,107 @@ export class QrRlsFilter extends AdaptiveFilter {
       // Rows j and j+1 are rotated in one pass over the work row (it is loaded and stored once
       // per pair); every element sees the same operations in the same order as one row at a time.
       let j = 0;
+      // Four rows per pass while they last (the work row is loaded and stored once per four).
+      for (; j + 3 < M; j += 4) {
+        const jj0 = j * M + j;
+        const jj1 = jj0 + M + 1;
+        const jj2 = jj1 + M + 1;
+        const jj3 = jj2 + M + 1;
+        // rotation j, and its action on columns j+1 … j+3
+        const a0 = sl * R[jj0];
+        const b0 = r[j];
+        const rho0 = Math.sqrt(a0 * a0 + b0 * b0);
+        const inv0 = 1 / rho0;
+        const c0 = a0 * inv0;
+        const s0 = b0 * inv0;
+        R[jj0] = rho0;
+        const cs0 = c0 * sl;
+        const ss0 = s0 * sl;
+        let t = R[jj0 + 1];
+        let u1 = r[j + 1];
+        R[jj0 + 1] = cs0 * t + s0 * u1;
+        u1 = c0 * u1 - ss0 * t;
+        t = R[jj0 + 2];
+        let u2 = r[j + 2];
+        R[jj0 + 2] = cs0 * t + s0 * u2;
+        u2 = c0 * u2 - ss0 * t;
+        t = R[jj0 + 3];
+        let u3 = r[j + 3];
+        R[jj0 + 3] = cs0 * t + s0 * u3;
+        u3 = c0 * u3 - ss0 * t;
+        let pj = p[j];
+        p[j] = cs0 * pj + s0 * dr;
+        dr = c0 * dr - ss0 * pj;
+        gs *= c0;
+        // rotation j+1 on columns j+2, j+3
+        const a1 = sl * R[jj1];
+        const rho1 = Math.sqrt(a1 * a1 + u1 * u1);
+        const inv1 = 1 / rho1;
+        const c1 = a1 * inv1;
+        const s1 = u1 * inv1;
+        R[jj1] = rho1;
+        const cs1 = c1 * sl;
+        const ss1 = s1 * sl;
+        t = R[jj1 + 1];
+        R[jj1 + 1] = cs1 * t + s1 * u2;
+        u2 = c1 * u2 - ss1 * t;
+        t = R[jj1 + 2];
+        R[jj1 + 2] = cs1 * t + s1 * u3;
+        u3 = c1 * u3 - ss1 * t;
+        pj = p[j + 1];
+        p[j + 1] = cs1 * pj + s1 * dr;
+        dr = c1 * dr - ss1 * pj;
+        gs *= c1;
+        // rotation j+2 on column j+3
+        const a2 = sl * R[jj2];
+        const rho2 = Math.sqrt(a2 * a2 + u2 * u2);
+        const inv2 = 1 / rho2;
+        const c2 = a2 * inv2;
+        const s2 = u2 * inv2;
+        R[jj2] = rho2;
+        const cs2 = c2 * sl;
+        const ss2 = s2 * sl;
+        t = R[jj2 + 1];
+        R[jj2 + 1] = cs2 * t + s2 * u3;
+        u3 = c2 * u3 - ss2 * t;
+        pj = p[j + 2];
+        p[j + 2] = cs2 * pj + s2 * dr;
+        dr = c2 * dr - ss2 * pj;
+        gs *= c2;
+        // rotation j+3
+        const a3 = sl * R[jj3];
+        const rho3 = Math.sqrt(a3 * a3 + u3 * u3);
+        const inv3 = 1 / rho3;
+        const c3 = a3 * inv3;
+        const s3 = u3 * inv3;
+        R[jj3] = rho3;
+        const cs3 = c3 * sl;
+        const ss3 = s3 * sl;
+        pj = p[j + 3];
+        p[j + 3] = cs3 * pj + s3 * dr;
+        dr = c3 * dr - ss3 * pj;
+        gs *= c3;
+        // columns j+4 … M−1: the four rotations in turn on each entry of the work row
+        let q0 = jj0 + 4;
+        let q1 = jj1 + 3;
+        let q2 = jj2 + 2;
+        let q3 = jj3 + 1;
+        for (let k = j + 4; k < M; k++, q0++, q1++, q2++, q3++) {
+          let rk = r[k];
+          const t0 = R[q0];
+          R[q0] = cs0 * t0 + s0 * rk;
+          rk = c0 * rk - ss0 * t0;
+          const t1 = R[q1];
+          R[q1] = cs1 * t1 + s1 * rk;
+          rk = c1 * rk - ss1 * t1;
+          const t2 = R[q2];
+          R[q2] = cs2 * t2 + s2 * rk;
+          rk = c2 * rk - ss2 * t2;
+          const t3 = R[q3];
+          R[q3] = cs3 * t3 + s3 * rk;
+          r[k] = c3 * rk - ss3 * t3;
+        }
+      }
       for (; j + 1 < M; j += 2) {
         const jj = j * M + j;
         const a = sl * R[jj];
