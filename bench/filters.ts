@@ -58,18 +58,28 @@ function median(v: number[]): number {
   return s[Math.floor(s.length / 2)];
 }
 
-function timePerpend(algorithm: Algorithm, M: number, complex: boolean, N: number): number {
+function timePerpend(
+  algorithm: Algorithm,
+  M: number,
+  complex: boolean,
+  N: number,
+  precision: 'float64' | 'float32' = 'float64'
+): number {
   const W = complex ? 2 : 1;
   const x = lcg(N * W, 12345);
   const d = new Float64Array(N * W);
   for (let i = 0; i < N * W; i++) {
     d[i] = 0.7 * x[i] + (i >= W ? 0.2 * x[i - W] : 0) + 1e-3 * x[(i * 7919) % (N * W)];
   }
+  const F = precision === 'float32' ? Float32Array : Float64Array;
+  // inputs already in the run's precision, so that the timing holds no conversion
+  const xs = precision === 'float32' ? Float32Array.from(x) : x;
+  const ds = precision === 'float32' ? Float32Array.from(d) : d;
   const out = {
-    y: new Float64Array(N * W),
-    e: new Float64Array(N * W),
-    ePost: new Float64Array(N * W),
-    gamma: new Float64Array(N),
+    y: new F(N * W),
+    e: new F(N * W),
+    ePost: new F(N * W),
+    gamma: new F(N),
     trajectory: new Float64Array(0),
     trajectoryIndex: new Float64Array(0)
   };
@@ -79,19 +89,20 @@ function timePerpend(algorithm: Algorithm, M: number, complex: boolean, N: numbe
     complex,
     lambda: 0.999,
     delta: 0.01,
-    mu: algorithm === 'lms' ? 0.1 / M : 0.5
+    mu: algorithm === 'lms' ? 0.1 / M : 0.5,
+    precision
   };
   const f = createFilter(opts);
   // warm-up: many chunks, so the kernel is optimised as a whole
   const wc = Math.min(N, 5000);
   for (let k = 0; k < 40; k++) {
-    f.process(x.subarray(0, wc * W), d.subarray(0, wc * W), out);
+    f.process(xs.subarray(0, wc * W), ds.subarray(0, wc * W), out);
   }
   const times: number[] = [];
   for (let r = 0; r < REPEATS; r++) {
     f.reset();
     const t0 = process.hrtime.bigint();
-    f.process(x, d, out);
+    f.process(xs, ds, out);
     times.push(Number(process.hrtime.bigint() - t0) / 1e6);
   }
   return median(times);
@@ -103,10 +114,16 @@ function timePerpend(algorithm: Algorithm, M: number, complex: boolean, N: numbe
  * made the first cases run partly unoptimised (measured: real QR-RLS at M = 8 at a quarter of
  * its rate).
  */
-function timeInChild(algorithm: Algorithm, M: number, complex: boolean, N: number): number {
+function timeInChild(
+  algorithm: Algorithm,
+  M: number,
+  complex: boolean,
+  N: number,
+  precision: 'float64' | 'float32' = 'float64'
+): number {
   const r = spawnSync(
     process.execPath,
-    [__filename, '--case', JSON.stringify({ algorithm, M, complex, N })],
+    [__filename, '--case', JSON.stringify({ algorithm, M, complex, N, precision })],
     {
       encoding: 'utf8'
     }
@@ -255,6 +272,39 @@ function main(): void {
       });
     }
   }
+  // Float32 emulation (storage in Float32Array, Math.fround after every operation): reported
+  // with its cost relative to the float64 run of the same case; no target is set for it.
+  for (const complex of [false, true]) {
+    for (const algorithm of algs) {
+      MS.forEach(M => {
+        const quadratic = algorithm !== 'nlms' && algorithm !== 'lms';
+        const N = !quadratic ? 200_000 : M === 8 ? 200_000 : M === 32 ? 20_000 : 3_000;
+        const ms = timeInChild(algorithm, M, complex, N, 'float32');
+        const sps = N / (ms / 1e3);
+        const flops = FLOPS[algorithm](M) * (complex ? 4 : 1);
+        const f64 = rows.find(
+          r => r.name === `filters.${algorithm}` && r.M === M && r.complex === complex
+        );
+        const f64ksps = f64 ? (f64.perpend_ksps as number) : undefined;
+        rows.push({
+          name: `filters.${algorithm}`,
+          M,
+          samples: N,
+          complex,
+          precision: 'float32',
+          perpend_ms: +ms.toFixed(3),
+          perpend_ksps: +(sps / 1e3).toFixed(1),
+          flops_per_sample: flops,
+          gflops: +((flops * sps) / 1e9).toFixed(3),
+          repeats: REPEATS,
+          ...(f64ksps ? { float32_vs_float64: +(sps / 1e3 / f64ksps).toFixed(3) } : {})
+        });
+        if (!JSON_OUT) {
+          process.stderr.write('.');
+        }
+      });
+    }
+  }
   if (JSON_OUT) {
     console.log(JSON.stringify({ env }));
     for (const r of rows) {
@@ -272,6 +322,7 @@ function main(): void {
   const head = [
     'algorithm',
     'cx',
+    'prec',
     'M',
     'samples',
     'ksps',
@@ -281,11 +332,13 @@ function main(): void {
     'np QR ksps',
     '×np QR',
     'cx/real',
+    'f32/f64',
     'targets'
   ];
   const fmt = (r: Record<string, unknown>) => [
     String(r.name).replace('filters.', ''),
     r.complex ? 'c' : 'r',
+    r.precision === 'float32' ? 'f32' : 'f64',
     String(r.M),
     String(r.samples),
     String(r.perpend_ksps),
@@ -295,6 +348,7 @@ function main(): void {
     r.numpy_qrrls_ksps === undefined ? '' : String(r.numpy_qrrls_ksps),
     r.ratio_vs_numpy_qrrls === undefined ? '' : String(r.ratio_vs_numpy_qrrls),
     r.complex_vs_real === undefined ? '' : String(r.complex_vs_real),
+    r.float32_vs_float64 === undefined ? '' : String(r.float32_vs_float64),
     r.targets
       ? Object.entries(r.targets as Record<string, { target: number; met: boolean }>)
           .map(([k, v]) => `${k}≥${v.target}:${v.met ? 'met' : 'MISSED'}`)
@@ -311,7 +365,7 @@ function main(): void {
 const caseArg = process.argv.indexOf('--case');
 if (caseArg >= 0) {
   const c = JSON.parse(process.argv[caseArg + 1]);
-  console.log(`CASE_MS ${timePerpend(c.algorithm, c.M, c.complex, c.N)}`);
+  console.log(`CASE_MS ${timePerpend(c.algorithm, c.M, c.complex, c.N, c.precision)}`);
 } else {
   main();
 }
