@@ -209,6 +209,9 @@ export class QrRlsFilter extends AdaptiveFilter {
       // per pair); every element sees the same operations in the same order as one row at a time.
       let j = 0;
       // Four rows per pass while they last (the work row is loaded and stored once per four).
+      // The entry that becomes the next rotation's b is formed as (a·u − b·√λ·t)/ρ rather than
+      // c·u − s√λ·t: its products run while the square root and the division are in flight, which
+      // shortens the serial chain from one rotation to the next (the same value up to rounding).
       for (; j + 3 < M; j += 4) {
         const jj0 = j * M + j;
         const jj1 = jj0 + M + 1;
@@ -227,7 +230,7 @@ export class QrRlsFilter extends AdaptiveFilter {
         let t = R[jj0 + 1];
         let u1 = r[j + 1];
         R[jj0 + 1] = cs0 * t + s0 * u1;
-        u1 = c0 * u1 - ss0 * t;
+        u1 = (a0 * u1 - b0 * sl * t) * inv0;
         t = R[jj0 + 2];
         let u2 = r[j + 2];
         R[jj0 + 2] = cs0 * t + s0 * u2;
@@ -251,7 +254,7 @@ export class QrRlsFilter extends AdaptiveFilter {
         const ss1 = s1 * sl;
         t = R[jj1 + 1];
         R[jj1 + 1] = cs1 * t + s1 * u2;
-        u2 = c1 * u2 - ss1 * t;
+        u2 = (a1 * u2 - u1 * sl * t) * inv1;
         t = R[jj1 + 2];
         R[jj1 + 2] = cs1 * t + s1 * u3;
         u3 = c1 * u3 - ss1 * t;
@@ -270,7 +273,7 @@ export class QrRlsFilter extends AdaptiveFilter {
         const ss2 = s2 * sl;
         t = R[jj2 + 1];
         R[jj2 + 1] = cs2 * t + s2 * u3;
-        u3 = c2 * u3 - ss2 * t;
+        u3 = (a2 * u3 - u2 * sl * t) * inv2;
         pj = p[j + 2];
         p[j + 2] = cs2 * pj + s2 * dr;
         dr = c2 * dr - ss2 * pj;
