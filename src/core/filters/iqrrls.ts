@@ -23,7 +23,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
   protected w!: Real;
   /** Work column: g γ^−½ accumulates here. */
   protected v!: Real;
-  /** Work: the inner products b_j = Σ_{k≤j} S_kj u_k of the coming sample (real float64). */
+  /** Work: the inner products b_j = Σ_{k≤j} S_kj u_k of the coming sample (float64; interleaved when complex). */
   protected bNext!: Float64Array;
 
   constructor(options: FilterOptions) {
@@ -41,8 +41,8 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     this.T = this.zeroed(this.T, w * M * M);
     this.w = this.zeroed(this.w, w * M);
     this.v = this.zeroed(this.v, w * M);
-    if (this.bNext === undefined || this.bNext.length !== M) {
-      this.bNext = new Float64Array(M);
+    if (this.bNext === undefined || this.bNext.length !== w * M) {
+      this.bNext = new Float64Array(w * M);
     }
     const s = this.f32
       ? Math.fround(1 / Math.fround(Math.sqrt(Math.fround(this.options.delta))))
@@ -443,6 +443,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     this.hPd = pd;
   }
 
+  /** Complex float64, with the lookahead of kernelR (one accumulator pair, k ascending, both ways). */
   private kernelC(
     x: Float64Array,
     d: Float64Array,
@@ -459,6 +460,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     const T = this.T as Float64Array;
     const w = this.w as Float64Array;
     const v = this.v as Float64Array;
+    const bn = this.bNext;
     const ub = this.ub as Float64Array;
     const isl = 1 / Math.sqrt(this.options.lambda);
     const tv = this.transversal;
@@ -470,21 +472,41 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     let row = 0;
     let pe = this.hPe;
     let pd = this.hPd;
+    let ready = false;
     for (let i = 0; i < n; i++) {
+      let ua = ub;
       let uo = 0;
-      if (tv) {
-        pos = pos === 0 ? M - 1 : pos - 1;
-        const xr = x[2 * i];
-        const xi = x[2 * i + 1];
-        ub[2 * pos] = xr;
-        ub[2 * pos + 1] = xi;
-        ub[2 * pos + M2] = xr;
-        ub[2 * pos + M2 + 1] = xi;
-        uo = 2 * pos;
+      if (!tv) {
+        ua = x;
+        uo = i * M2;
       } else {
-        const b = i * M2;
-        for (let k = 0; k < M2; k++) {
-          ub[k] = x[b + k];
+        if (!ready) {
+          pos = pos === 0 ? M - 1 : pos - 1;
+          const xr = x[2 * i];
+          const xi = x[2 * i + 1];
+          ub[2 * pos] = xr;
+          ub[2 * pos + 1] = xi;
+          ub[2 * pos + M2] = xr;
+          ub[2 * pos + M2 + 1] = xi;
+        }
+        uo = 2 * pos;
+      }
+      if (!ready) {
+        // b_j = Σ ū_k S_kj over the columns before this sample's rotations
+        for (let j = 0; j < M; j++) {
+          const b0 = 2 * j * M;
+          let ar = 0;
+          let ai = 0;
+          for (let k = 0; k <= 2 * j; k += 2) {
+            const tr = T[b0 + k];
+            const ti = T[b0 + k + 1];
+            const ur = ua[uo + k];
+            const ui = ua[uo + k + 1];
+            ar += ur * tr + ui * ti;
+            ai += ur * ti - ui * tr;
+          }
+          bn[2 * j] = ar;
+          bn[2 * j + 1] = ai;
         }
       }
       // y = wᴴu
@@ -493,8 +515,8 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
       for (let k = 0; k < M2; k += 2) {
         const wr = w[k];
         const wi = w[k + 1];
-        const ur = ub[uo + k];
-        const ui = ub[uo + k + 1];
+        const ur = ua[uo + k];
+        const ui = ua[uo + k + 1];
         yr += wr * ur + wi * ui;
         yi += wr * ui - wi * ur;
         v[k] = 0;
@@ -504,22 +526,30 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
       const dvi = d[2 * i + 1];
       const er = dvr - yr;
       const ei = dvi - yi;
+      // u(n+1) for the next sample's inner products (on the chunk's last sample they are formed
+      // with u(n) and discarded)
+      ready = i + 1 < n;
+      const va = ua;
+      let vo = uo;
+      if (ready) {
+        if (tv) {
+          pos = pos === 0 ? M - 1 : pos - 1;
+          const xr = x[2 * i + 2];
+          const xi = x[2 * i + 3];
+          ub[2 * pos] = xr;
+          ub[2 * pos + 1] = xi;
+          ub[2 * pos + M2] = xr;
+          ub[2 * pos + M2 + 1] = xi;
+          vo = 2 * pos;
+        } else {
+          vo = (i + 1) * M2;
+        }
+      }
       let eta = 1;
       for (let j = 0; j < M; j++) {
         const b0 = 2 * j * M;
-        // b_j = λ^−½ Σ ū_k S_kj
-        let ar = 0;
-        let ai = 0;
-        for (let k = 0; k <= 2 * j; k += 2) {
-          const tr = T[b0 + k];
-          const ti = T[b0 + k + 1];
-          const ur = ub[uo + k];
-          const ui = ub[uo + k + 1];
-          ar += ur * tr + ui * ti;
-          ai += ur * ti - ui * tr;
-        }
-        ar *= isl;
-        ai *= isl;
+        const ar = bn[2 * j] * isl;
+        const ai = bn[2 * j + 1] * isl;
         const etaN = Math.sqrt(eta * eta + ar * ar + ai * ai);
         const inv = 1 / etaN;
         const c = eta * inv;
@@ -528,6 +558,8 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
         const cs = c * isl;
         const ssr = sr * isl;
         const ssi = si * isl;
+        let nr = 0;
+        let ni = 0;
         for (let k = 0; k <= 2 * j; k += 2) {
           const vr = v[k];
           const vi = v[k + 1];
@@ -536,9 +568,17 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
           // v ← c v + s̄ λ^−½ S ;  S ← c λ^−½ S − s v
           v[k] = c * vr + (ssr * tr + ssi * ti);
           v[k + 1] = c * vi + (ssr * ti - ssi * tr);
-          T[b0 + k] = cs * tr - (sr * vr - si * vi);
-          T[b0 + k + 1] = cs * ti - (sr * vi + si * vr);
+          const tr1 = cs * tr - (sr * vr - si * vi);
+          const ti1 = cs * ti - (sr * vi + si * vr);
+          T[b0 + k] = tr1;
+          T[b0 + k + 1] = ti1;
+          const ur = va[vo + k];
+          const ui = va[vo + k + 1];
+          nr += ur * tr1 + ui * ti1;
+          ni += ur * ti1 - ui * tr1;
         }
+        bn[2 * j] = nr;
+        bn[2 * j + 1] = ni;
         eta = etaN;
       }
       // w += g e*, g = v / η
