@@ -212,6 +212,9 @@ export class QrRlsFilter extends AdaptiveFilter {
       // The entry that becomes the next rotation's b is formed as (a·u − b·√λ·t)/ρ rather than
       // c·u − s√λ·t: its products run while the square root and the division are in flight, which
       // shortens the serial chain from one rotation to the next (the same value up to rounding).
+      // Likewise 1/ρ is formed as ρ·(1/ρ²), so that the square root and the division run side by
+      // side instead of one after the other (within about an ulp of 1/ρ; same range, since ρ² is
+      // formed either way).
       for (; j + 3 < M; j += 4) {
         const jj0 = j * M + j;
         const jj1 = jj0 + M + 1;
@@ -220,8 +223,9 @@ export class QrRlsFilter extends AdaptiveFilter {
         // rotation j, and its action on columns j+1 … j+3
         const a0 = sl * R[jj0];
         const b0 = r[j];
-        const rho0 = Math.sqrt(a0 * a0 + b0 * b0);
-        const inv0 = 1 / rho0;
+        const h0 = a0 * a0 + b0 * b0;
+        const rho0 = Math.sqrt(h0);
+        const inv0 = rho0 * (1 / h0);
         const c0 = a0 * inv0;
         const s0 = b0 * inv0;
         R[jj0] = rho0;
@@ -245,8 +249,9 @@ export class QrRlsFilter extends AdaptiveFilter {
         gs *= c0;
         // rotation j+1 on columns j+2, j+3
         const a1 = sl * R[jj1];
-        const rho1 = Math.sqrt(a1 * a1 + u1 * u1);
-        const inv1 = 1 / rho1;
+        const h1 = a1 * a1 + u1 * u1;
+        const rho1 = Math.sqrt(h1);
+        const inv1 = rho1 * (1 / h1);
         const c1 = a1 * inv1;
         const s1 = u1 * inv1;
         R[jj1] = rho1;
@@ -264,8 +269,9 @@ export class QrRlsFilter extends AdaptiveFilter {
         gs *= c1;
         // rotation j+2 on column j+3
         const a2 = sl * R[jj2];
-        const rho2 = Math.sqrt(a2 * a2 + u2 * u2);
-        const inv2 = 1 / rho2;
+        const h2 = a2 * a2 + u2 * u2;
+        const rho2 = Math.sqrt(h2);
+        const inv2 = rho2 * (1 / h2);
         const c2 = a2 * inv2;
         const s2 = u2 * inv2;
         R[jj2] = rho2;
@@ -280,8 +286,9 @@ export class QrRlsFilter extends AdaptiveFilter {
         gs *= c2;
         // rotation j+3
         const a3 = sl * R[jj3];
-        const rho3 = Math.sqrt(a3 * a3 + u3 * u3);
-        const inv3 = 1 / rho3;
+        const h3 = a3 * a3 + u3 * u3;
+        const rho3 = Math.sqrt(h3);
+        const inv3 = rho3 * (1 / h3);
         const c3 = a3 * inv3;
         const s3 = u3 * inv3;
         R[jj3] = rho3;
