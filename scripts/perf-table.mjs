@@ -13,6 +13,7 @@ const lines = fs
   .filter(r => r.name);
 
 const cell = v => (v === undefined || v === null ? '' : String(v));
+const withMin = (v, m) => (v === undefined ? '' : m === undefined ? String(v) : `${v} (${m})`);
 const targets = r =>
   r.targets
     ? Object.entries(r.targets)
@@ -81,11 +82,11 @@ if (kind === 'filters') {
       r.name,
       r.size,
       r.dtype,
-      r.perpend_ms === undefined ? '' : `${r.perpend_ms} (${cell(r.perpend_min_ms)})`,
+      withMin(r.perpend_ms, r.perpend_min_ms),
       cell(r.perpend_gflops),
       cell(r.mlmatrix_ms),
       cell(r.speedup_vs_mlmatrix),
-      r.lapack_ms === undefined ? '' : `${r.lapack_ms} (${cell(r.lapack_min_ms)})`,
+      withMin(r.lapack_ms, r.lapack_min_ms),
       cell(r.lapack_gflops),
       r.ratio !== undefined
         ? `${r.ratio} (${cell(r.ratio_min)})`
