@@ -483,8 +483,10 @@ export class QrRlsFilter extends AdaptiveFilter {
         const a = sl * R[jj];
         const br = r[2 * j];
         const bi = r[2 * j + 1];
-        const rho = Math.sqrt(a * a + br * br + bi * bi);
-        const inv = 1 / rho;
+        // 1/ρ as ρ·(1/ρ²): the square root and the division run side by side (see kernelR)
+        const h = a * a + br * br + bi * bi;
+        const rho = Math.sqrt(h);
+        const inv = rho * (1 / h);
         const c = a * inv;
         const sr = br * inv;
         const si = bi * inv;
