@@ -31,7 +31,7 @@ export class RlsFilter extends AdaptiveFilter {
   protected w!: Real;
   /** Work: π = Pu. */
   protected pi!: Real;
-  /** Work: the next sample's π, formed while P is updated (real float64 default variant). */
+  /** Work: the next sample's π, formed while P is updated (float64 default variant; interleaved when complex). */
   protected piNext!: Float64Array;
   /** Work: ψ = uᴴP (legacy only). */
   protected psi!: Real;
@@ -55,8 +55,9 @@ export class RlsFilter extends AdaptiveFilter {
     this.w = this.zeroed(this.w, w * M);
     this.pi = this.zeroed(this.pi, w * M);
     this.psi = this.zeroed(this.psi, w * M);
-    if (this.piNext === undefined || this.piNext.length !== M) {
-      this.piNext = new Float64Array(M);
+    const pl = (this.complex ? 2 : 1) * M;
+    if (this.piNext === undefined || this.piNext.length !== pl) {
+      this.piNext = new Float64Array(pl);
     } else {
       this.piNext.fill(0);
     }
@@ -143,6 +144,18 @@ export class RlsFilter extends AdaptiveFilter {
         e as Float32Array,
         ep as Float32Array,
         g as Float32Array,
+        traj,
+        tIdx
+      );
+    } else if (this.complex && !this.legacy) {
+      this.kernelCSym(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
         traj,
         tIdx
       );
@@ -361,6 +374,7 @@ export class RlsFilter extends AdaptiveFilter {
     this.hPd = pd;
   }
 
+  /** Real float64, legacy variant: every entry of P updated, the asymmetry monitor formed alongside. */
   private kernelR(
     x: Float64Array,
     d: Float64Array,
@@ -380,7 +394,6 @@ export class RlsFilter extends AdaptiveFilter {
     const ub = this.ub as Float64Array;
     const lam = this.options.lambda;
     const il = 1 / lam;
-    const legacy = this.legacy;
     const tol = this.options.asymmetryTolerance;
     const tv = this.transversal;
     const dec = this.options.decimation;
@@ -410,67 +423,29 @@ export class RlsFilter extends AdaptiveFilter {
         yv += w[k] * ub[uo + k];
         pi[k] = 0;
       }
-      let asym = 0;
-      if (!legacy) {
-        // π = P u from the upper triangle (symmetric matrix-vector product); row r's dot
-        // product in four partial sums (a single one made this pass add-latency bound).
-        for (let r = 0; r < M; r++) {
-          const b = r * M;
-          const ur = ub[uo + r];
-          let a0 = pi[r] + P[b + r] * ur;
-          let a1 = 0;
-          let a2 = 0;
-          let a3 = 0;
-          let j = r + 1;
-          const j4 = j + ((M - j) & ~3);
-          for (; j < j4; j += 4) {
-            const q = b + j;
-            const v = uo + j;
-            const p0 = P[q];
-            const p1 = P[q + 1];
-            const p2 = P[q + 2];
-            const p3 = P[q + 3];
-            a0 += p0 * ub[v];
-            a1 += p1 * ub[v + 1];
-            a2 += p2 * ub[v + 2];
-            a3 += p3 * ub[v + 3];
-            pi[j] += p0 * ur;
-            pi[j + 1] += p1 * ur;
-            pi[j + 2] += p2 * ur;
-            pi[j + 3] += p3 * ur;
-          }
-          for (; j < M; j++) {
-            const prj = P[b + j];
-            a0 += prj * ub[uo + j];
-            pi[j] += prj * ur;
-          }
-          pi[r] = a0 + a1 + (a2 + a3);
-        }
-      } else {
-        for (let k = 0; k < M; k++) {
-          psi[k] = 0;
-        }
-        // π = P u over the full matrix; ψ = uᵀP only for the asymmetry monitor.
-        for (let r = 0; r < M; r++) {
-          const b = r * M;
-          const ur = ub[uo + r];
-          let acc = 0;
-          for (let j = 0; j < M; j++) {
-            const prj = P[b + j];
-            acc += prj * ub[uo + j];
-            psi[j] += ur * prj;
-          }
-          pi[r] = acc;
-        }
-        let dn = 0;
-        let nn = 0;
-        for (let k = 0; k < M; k++) {
-          const t = pi[k] - psi[k];
-          dn += t * t;
-          nn += pi[k] * pi[k];
-        }
-        asym = Math.sqrt(dn / nn);
+      for (let k = 0; k < M; k++) {
+        psi[k] = 0;
       }
+      // π = P u over the full matrix; ψ = uᵀP only for the asymmetry monitor.
+      for (let r = 0; r < M; r++) {
+        const b = r * M;
+        const ur = ub[uo + r];
+        let acc = 0;
+        for (let j = 0; j < M; j++) {
+          const prj = P[b + j];
+          acc += prj * ub[uo + j];
+          psi[j] += ur * prj;
+        }
+        pi[r] = acc;
+      }
+      let dn = 0;
+      let nn = 0;
+      for (let k = 0; k < M; k++) {
+        const t = pi[k] - psi[k];
+        dn += t * t;
+        nn += pi[k] * pi[k];
+      }
+      const asym = Math.sqrt(dn / nn);
       let q = 0;
       for (let k = 0; k < M; k++) {
         q += ub[uo + k] * pi[k];
@@ -484,36 +459,14 @@ export class RlsFilter extends AdaptiveFilter {
         w[k] += pi[k] * eka;
       }
       let diagBad = false;
-      if (!legacy) {
-        for (let r = 0; r < M; r++) {
-          const b = r * M;
-          const kr = pi[r] * ia;
-          let j = r;
-          const j4 = j + ((M - j) & ~3);
-          for (; j < j4; j += 4) {
-            const q4 = b + j;
-            P[q4] = (P[q4] - kr * pi[j]) * il;
-            P[q4 + 1] = (P[q4 + 1] - kr * pi[j + 1]) * il;
-            P[q4 + 2] = (P[q4 + 2] - kr * pi[j + 2]) * il;
-            P[q4 + 3] = (P[q4 + 3] - kr * pi[j + 3]) * il;
-          }
-          for (; j < M; j++) {
-            P[b + j] = (P[b + j] - kr * pi[j]) * il;
-          }
-          if (!(P[b + r] > 0)) {
-            diagBad = true;
-          }
+      for (let r = 0; r < M; r++) {
+        const b = r * M;
+        const kr = pi[r] * ia;
+        for (let j = 0; j < M; j++) {
+          P[b + j] = (P[b + j] - kr * pi[j]) * il;
         }
-      } else {
-        for (let r = 0; r < M; r++) {
-          const b = r * M;
-          const kr = pi[r] * ia;
-          for (let j = 0; j < M; j++) {
-            P[b + j] = (P[b + j] - kr * pi[j]) * il;
-          }
-          if (!(P[b + r] > 0)) {
-            diagBad = true;
-          }
+        if (!(P[b + r] > 0)) {
+          diagBad = true;
         }
       }
       if (!(q >= 0) || diagBad || asym > tol) {
@@ -544,6 +497,204 @@ export class RlsFilter extends AdaptiveFilter {
     this.hPd = pd;
   }
 
+  /**
+   * Complex float64, default variant, with the fused pass of kernelRSym: the update of the upper
+   * triangle of P and the next sample's π = P(n)u(n+1) (P Hermitian) in one pass; the same
+   * arithmetic in the same order as the two-pass form.
+   */
+  private kernelCSym(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    const M = this.M;
+    const M2 = 2 * M;
+    const P = this.P as Float64Array;
+    const w = this.w as Float64Array;
+    const ub = this.ub as Float64Array;
+    const lam = this.options.lambda;
+    const il = 1 / lam;
+    const tv = this.transversal;
+    const dec = this.options.decimation;
+    const thr = this.options.divergenceThreshold;
+    const t0 = this.t;
+    let pa = this.pi as Float64Array;
+    let pb = this.piNext;
+    let pos = this.upos;
+    let dc = this.dcount;
+    let row = 0;
+    let pe = this.hPe;
+    let pd = this.hPd;
+    let ready = false;
+    for (let i = 0; i < n; i++) {
+      let ua = ub;
+      let uo = 0;
+      if (!tv) {
+        ua = x;
+        uo = i * M2;
+      } else {
+        if (!ready) {
+          pos = pos === 0 ? M - 1 : pos - 1;
+          const xr = x[2 * i];
+          const xi = x[2 * i + 1];
+          ub[2 * pos] = xr;
+          ub[2 * pos + 1] = xi;
+          ub[2 * pos + M2] = xr;
+          ub[2 * pos + M2 + 1] = xi;
+        }
+        uo = 2 * pos;
+      }
+      if (!ready) {
+        // π = P u with P Hermitian, upper triangle stored (diagonal real).
+        for (let k = 0; k < M2; k++) {
+          pa[k] = 0;
+        }
+        for (let r = 0; r < M; r++) {
+          const b = 2 * r * M;
+          const ur = ua[uo + 2 * r];
+          const ui = ua[uo + 2 * r + 1];
+          const prr = P[b + 2 * r];
+          let ar = pa[2 * r] + prr * ur;
+          let ai = pa[2 * r + 1] + prr * ui;
+          for (let j = r + 1; j < M; j++) {
+            const pr = P[b + 2 * j];
+            const pim = P[b + 2 * j + 1];
+            const vr = ua[uo + 2 * j];
+            const vi = ua[uo + 2 * j + 1];
+            ar += pr * vr - pim * vi;
+            ai += pr * vi + pim * vr;
+            // lower entry conj(P_rj) times u_r
+            pa[2 * j] += pr * ur + pim * ui;
+            pa[2 * j + 1] += pr * ui - pim * ur;
+          }
+          pa[2 * r] = ar;
+          pa[2 * r + 1] = ai;
+        }
+      }
+      let yr = 0;
+      let yi = 0;
+      let q = 0;
+      for (let k = 0; k < M2; k += 2) {
+        const wr = w[k];
+        const wi = w[k + 1];
+        const ur = ua[uo + k];
+        const ui = ua[uo + k + 1];
+        yr += wr * ur + wi * ui;
+        yi += wr * ui - wi * ur;
+        q += ur * pa[k] + ui * pa[k + 1];
+      }
+      const alpha = lam + q;
+      const ia = 1 / alpha;
+      const dvr = d[2 * i];
+      const dvi = d[2 * i + 1];
+      const er = dvr - yr;
+      const ei = dvi - yi;
+      // w += k e*, k = π/α
+      const qr = er * ia;
+      const qi = -ei * ia;
+      for (let k = 0; k < M2; k += 2) {
+        const pr = pa[k];
+        const pim = pa[k + 1];
+        w[k] += pr * qr - pim * qi;
+        w[k + 1] += pr * qi + pim * qr;
+        pb[k] = 0;
+        pb[k + 1] = 0;
+      }
+      let diagBad = false;
+      // u(n+1), when this chunk holds it (u(n) is not needed any more); otherwise the update
+      // runs with u(n) and the π it forms is discarded.
+      ready = i + 1 < n;
+      const va = ua;
+      let vo = uo;
+      if (ready) {
+        if (tv) {
+          pos = pos === 0 ? M - 1 : pos - 1;
+          const xr = x[2 * i + 2];
+          const xi = x[2 * i + 3];
+          ub[2 * pos] = xr;
+          ub[2 * pos + 1] = xi;
+          ub[2 * pos + M2] = xr;
+          ub[2 * pos + M2 + 1] = xi;
+          vo = 2 * pos;
+        } else {
+          vo = (i + 1) * M2;
+        }
+      }
+      for (let r = 0; r < M; r++) {
+        const b = 2 * r * M;
+        const kr = pa[2 * r] * ia;
+        const ki = pa[2 * r + 1] * ia;
+        // diagonal: P_rr − |π_r|²/α, kept real
+        const prr = (P[b + 2 * r] - (kr * pa[2 * r] + ki * pa[2 * r + 1])) * il;
+        P[b + 2 * r] = prr;
+        if (!(prr > 0)) {
+          diagBad = true;
+        }
+        const ur = va[vo + 2 * r];
+        const ui = va[vo + 2 * r + 1];
+        let ar = pb[2 * r] + prr * ur;
+        let ai = pb[2 * r + 1] + prr * ui;
+        for (let j = r + 1; j < M; j++) {
+          const pr0 = pa[2 * j];
+          const pim0 = pa[2 * j + 1];
+          // P_rj − k_r conj(π_j)
+          const pr = (P[b + 2 * j] - (kr * pr0 + ki * pim0)) * il;
+          const pim = (P[b + 2 * j + 1] - (ki * pr0 - kr * pim0)) * il;
+          P[b + 2 * j] = pr;
+          P[b + 2 * j + 1] = pim;
+          const vr = va[vo + 2 * j];
+          const vi = va[vo + 2 * j + 1];
+          ar += pr * vr - pim * vi;
+          ai += pr * vi + pim * vr;
+          pb[2 * j] += pr * ur + pim * ui;
+          pb[2 * j + 1] += pr * ui - pim * ur;
+        }
+        pb[2 * r] = ar;
+        pb[2 * r + 1] = ai;
+      }
+      const t = pa;
+      pa = pb;
+      pb = t;
+      if (!(q >= 0) || diagBad) {
+        this.report(q, diagBad, 0, t0 + i);
+      }
+      const gam = lam * ia;
+      y[2 * i] = yr;
+      y[2 * i + 1] = yi;
+      e[2 * i] = er;
+      e[2 * i + 1] = ei;
+      g[i] = gam;
+      ep[2 * i] = gam * er;
+      ep[2 * i + 1] = gam * ei;
+      const ee = er * er + ei * ei;
+      pe += (ee - pe) * HEALTH_ALPHA;
+      pd += (dvr * dvr + dvi * dvi - pd) * HEALTH_ALPHA;
+      if (!(pe <= thr * pd) && !(this.hMask & 1)) {
+        this.hPe = pe;
+        this.hPd = pd;
+        this.checkError(ee, t0 + i);
+      }
+      if (dec > 0 && ++dc === dec) {
+        dc = 0;
+        this.writeWeights(traj, row * M2);
+        tIdx[row++] = t0 + i;
+      }
+    }
+    this.pi = pa;
+    this.piNext = pb;
+    this.upos = pos;
+    this.dcount = dc;
+    this.hPe = pe;
+    this.hPd = pd;
+  }
+
+  /** Complex float64, legacy variant (as kernelR). */
   private kernelC(
     x: Float64Array,
     d: Float64Array,
@@ -564,7 +715,6 @@ export class RlsFilter extends AdaptiveFilter {
     const ub = this.ub as Float64Array;
     const lam = this.options.lambda;
     const il = 1 / lam;
-    const legacy = this.legacy;
     const tol = this.options.asymmetryTolerance;
     const tv = this.transversal;
     const dec = this.options.decimation;
@@ -606,62 +756,36 @@ export class RlsFilter extends AdaptiveFilter {
         psi[k] = 0;
         psi[k + 1] = 0;
       }
-      let asym = 0;
-      if (!legacy) {
-        // π = P u with P Hermitian, upper triangle stored (diagonal real).
-        for (let r = 0; r < M; r++) {
-          const b = 2 * r * M;
-          const ur = ub[uo + 2 * r];
-          const ui = ub[uo + 2 * r + 1];
-          const prr = P[b + 2 * r];
-          let ar = pi[2 * r] + prr * ur;
-          let ai = pi[2 * r + 1] + prr * ui;
-          for (let j = r + 1; j < M; j++) {
-            const pr = P[b + 2 * j];
-            const pim = P[b + 2 * j + 1];
-            const vr = ub[uo + 2 * j];
-            const vi = ub[uo + 2 * j + 1];
-            ar += pr * vr - pim * vi;
-            ai += pr * vi + pim * vr;
-            // lower entry conj(P_rj) times u_r
-            pi[2 * j] += pr * ur + pim * ui;
-            pi[2 * j + 1] += pr * ui - pim * ur;
-          }
-          pi[2 * r] = ar;
-          pi[2 * r + 1] = ai;
+      for (let r = 0; r < M; r++) {
+        const b = 2 * r * M;
+        const ur = ub[uo + 2 * r];
+        const ui = ub[uo + 2 * r + 1];
+        let ar = 0;
+        let ai = 0;
+        for (let j = 0; j < M; j++) {
+          const pr = P[b + 2 * j];
+          const pim = P[b + 2 * j + 1];
+          const vr = ub[uo + 2 * j];
+          const vi = ub[uo + 2 * j + 1];
+          ar += pr * vr - pim * vi;
+          ai += pr * vi + pim * vr;
+          // ψ_j += conj(u_r) P_rj
+          psi[2 * j] += ur * pr + ui * pim;
+          psi[2 * j + 1] += ur * pim - ui * pr;
         }
-      } else {
-        for (let r = 0; r < M; r++) {
-          const b = 2 * r * M;
-          const ur = ub[uo + 2 * r];
-          const ui = ub[uo + 2 * r + 1];
-          let ar = 0;
-          let ai = 0;
-          for (let j = 0; j < M; j++) {
-            const pr = P[b + 2 * j];
-            const pim = P[b + 2 * j + 1];
-            const vr = ub[uo + 2 * j];
-            const vi = ub[uo + 2 * j + 1];
-            ar += pr * vr - pim * vi;
-            ai += pr * vi + pim * vr;
-            // ψ_j += conj(u_r) P_rj
-            psi[2 * j] += ur * pr + ui * pim;
-            psi[2 * j + 1] += ur * pim - ui * pr;
-          }
-          pi[2 * r] = ar;
-          pi[2 * r + 1] = ai;
-        }
-        // (Pᴴu)_j = conj(ψ_j)
-        let dn = 0;
-        let nn = 0;
-        for (let k = 0; k < M2; k += 2) {
-          const tr = pi[k] - psi[k];
-          const ti = pi[k + 1] + psi[k + 1];
-          dn += tr * tr + ti * ti;
-          nn += pi[k] * pi[k] + pi[k + 1] * pi[k + 1];
-        }
-        asym = Math.sqrt(dn / nn);
+        pi[2 * r] = ar;
+        pi[2 * r + 1] = ai;
       }
+      // (Pᴴu)_j = conj(ψ_j)
+      let dn = 0;
+      let nn = 0;
+      for (let k = 0; k < M2; k += 2) {
+        const tr = pi[k] - psi[k];
+        const ti = pi[k + 1] + psi[k + 1];
+        dn += tr * tr + ti * ti;
+        nn += pi[k] * pi[k] + pi[k + 1] * pi[k + 1];
+      }
+      const asym = Math.sqrt(dn / nn);
       let q = 0;
       for (let k = 0; k < M2; k += 2) {
         q += ub[uo + k] * pi[k] + ub[uo + k + 1] * pi[k + 1];
@@ -682,39 +806,19 @@ export class RlsFilter extends AdaptiveFilter {
         w[k + 1] += pr * qi + pim * qr;
       }
       let diagBad = false;
-      if (!legacy) {
-        for (let r = 0; r < M; r++) {
-          const b = 2 * r * M;
-          const kr = pi[2 * r] * ia;
-          const ki = pi[2 * r + 1] * ia;
-          // diagonal: P_rr − |π_r|²/α, kept real
-          P[b + 2 * r] = (P[b + 2 * r] - (kr * pi[2 * r] + ki * pi[2 * r + 1])) * il;
-          if (!(P[b + 2 * r] > 0)) {
-            diagBad = true;
-          }
-          for (let j = r + 1; j < M; j++) {
-            const pr = pi[2 * j];
-            const pim = pi[2 * j + 1];
-            // P_rj − k_r conj(π_j)
-            P[b + 2 * j] = (P[b + 2 * j] - (kr * pr + ki * pim)) * il;
-            P[b + 2 * j + 1] = (P[b + 2 * j + 1] - (ki * pr - kr * pim)) * il;
-          }
+      for (let r = 0; r < M; r++) {
+        const b = 2 * r * M;
+        const kr = pi[2 * r] * ia;
+        const ki = pi[2 * r + 1] * ia;
+        for (let j = 0; j < M; j++) {
+          // P_rj − k_r conj(π_j), every entry
+          const pr = pi[2 * j];
+          const pim = pi[2 * j + 1];
+          P[b + 2 * j] = (P[b + 2 * j] - (kr * pr + ki * pim)) * il;
+          P[b + 2 * j + 1] = (P[b + 2 * j + 1] - (ki * pr - kr * pim)) * il;
         }
-      } else {
-        for (let r = 0; r < M; r++) {
-          const b = 2 * r * M;
-          const kr = pi[2 * r] * ia;
-          const ki = pi[2 * r + 1] * ia;
-          for (let j = 0; j < M; j++) {
-            // P_rj − k_r conj(π_j), every entry
-            const pr = pi[2 * j];
-            const pim = pi[2 * j + 1];
-            P[b + 2 * j] = (P[b + 2 * j] - (kr * pr + ki * pim)) * il;
-            P[b + 2 * j + 1] = (P[b + 2 * j + 1] - (ki * pr - kr * pim)) * il;
-          }
-          if (!(P[b + 2 * r] > 0)) {
-            diagBad = true;
-          }
+        if (!(P[b + 2 * r] > 0)) {
+          diagBad = true;
         }
       }
       if (!(q >= 0) || diagBad || asym > tol) {
