@@ -351,8 +351,12 @@ export abstract class AdaptiveFilter {
   protected abstract init(): void;
   /** Writes the current weights at out[o…]. */
   protected abstract writeWeights(out: Float64Array, o: number): void;
-  /** Runs one chunk: regressor, output, errors, update, conversion factor, trajectory, health. */
-  protected abstract kernel(
+  /**
+   * Runs one chunk: regressor, output, errors, update, conversion factor, trajectory, health.
+   * The buffers' element type follows the precision, so the chunk goes to the kernel written
+   * for it (float32 emulation, complex float64 or real float64).
+   */
+  protected kernel(
     x: Real,
     d: Real,
     n: number,
@@ -360,6 +364,80 @@ export abstract class AdaptiveFilter {
     e: Real,
     ep: Real,
     g: Real,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    if (this.f32) {
+      this.kernel32(
+        x as Float32Array,
+        d as Float32Array,
+        n,
+        y as Float32Array,
+        e as Float32Array,
+        ep as Float32Array,
+        g as Float32Array,
+        traj,
+        tIdx
+      );
+    } else if (this.complex) {
+      this.kernelC(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
+        traj,
+        tIdx
+      );
+    } else {
+      this.kernelR(
+        x as Float64Array,
+        d as Float64Array,
+        n,
+        y as Float64Array,
+        e as Float64Array,
+        ep as Float64Array,
+        g as Float64Array,
+        traj,
+        tIdx
+      );
+    }
+  }
+  /** Float32 emulation, real or complex (always interleaved). */
+  protected abstract kernel32(
+    x: Float32Array,
+    d: Float32Array,
+    n: number,
+    y: Float32Array,
+    e: Float32Array,
+    ep: Float32Array,
+    g: Float32Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void;
+  /** Complex float64 (interleaved). */
+  protected abstract kernelC(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void;
+  /** Real float64. */
+  protected abstract kernelR(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
     traj: Float64Array,
     tIdx: Float64Array
   ): void;

@@ -96,56 +96,6 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     }
   }
 
-  protected kernel(
-    x: Real,
-    d: Real,
-    n: number,
-    y: Real,
-    e: Real,
-    ep: Real,
-    g: Real,
-    traj: Float64Array,
-    tIdx: Float64Array
-  ): void {
-    if (this.f32) {
-      this.kernel32(
-        x as Float32Array,
-        d as Float32Array,
-        n,
-        y as Float32Array,
-        e as Float32Array,
-        ep as Float32Array,
-        g as Float32Array,
-        traj,
-        tIdx
-      );
-    } else if (this.complex) {
-      this.kernelC(
-        x as Float64Array,
-        d as Float64Array,
-        n,
-        y as Float64Array,
-        e as Float64Array,
-        ep as Float64Array,
-        g as Float64Array,
-        traj,
-        tIdx
-      );
-    } else {
-      this.kernelR(
-        x as Float64Array,
-        d as Float64Array,
-        n,
-        y as Float64Array,
-        e as Float64Array,
-        ep as Float64Array,
-        g as Float64Array,
-        traj,
-        tIdx
-      );
-    }
-  }
-
   /** Σ_{k≤j} T[b+k]·u[o+k] in four partial sums, in a fixed order. */
   private dotTri(T: Float64Array, b: number, u: Float64Array, o: number, j: number): number {
     let a0 = 0;
@@ -176,7 +126,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
    * same operations in the same order either way (four partial sums as in dotTri), so chunked and
    * one-shot runs agree bit for bit.
    */
-  private kernelR(
+  protected kernelR(
     x: Float64Array,
     d: Float64Array,
     n: number,
@@ -444,7 +394,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
   }
 
   /** Complex float64, with the lookahead of kernelR (one accumulator pair, k ascending, both ways). */
-  private kernelC(
+  protected kernelC(
     x: Float64Array,
     d: Float64Array,
     n: number,
@@ -619,7 +569,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
   }
 
   /** Float32 emulation (see QrRlsFilter.kernel32 for the conventions). */
-  private kernel32(
+  protected kernel32(
     x: Float32Array,
     d: Float32Array,
     n: number,

@@ -73,6 +73,22 @@ export class LmsFilter extends AdaptiveFilter {
 
   private lastX: Real | null = null;
 
+  protected kernel(
+    x: Real,
+    d: Real,
+    n: number,
+    y: Real,
+    e: Real,
+    ep: Real,
+    g: Real,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    // the chunk's input, for the power estimate behind the step-size warning
+    this.lastX = x;
+    super.kernel(x, d, n, y, e, ep, g, traj, tIdx);
+  }
+
   protected writeWeights(out: Float64Array, o: number): void {
     const w = this.w;
     if (this.complex || !this.il) {
@@ -86,66 +102,22 @@ export class LmsFilter extends AdaptiveFilter {
     }
   }
 
-  protected kernel(
-    x: Real,
-    d: Real,
+  protected kernelR(
+    x: Float64Array,
+    d: Float64Array,
     n: number,
-    y: Real,
-    e: Real,
-    ep: Real,
-    g: Real,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
     traj: Float64Array,
     tIdx: Float64Array
   ): void {
-    this.lastX = x;
-    if (this.f32) {
-      this.kernel32(
-        x as Float32Array,
-        d as Float32Array,
-        n,
-        y as Float32Array,
-        e as Float32Array,
-        ep as Float32Array,
-        g as Float32Array,
-        traj,
-        tIdx
-      );
-    } else if (this.complex) {
-      this.kernelC(
-        x as Float64Array,
-        d as Float64Array,
-        n,
-        y as Float64Array,
-        e as Float64Array,
-        ep as Float64Array,
-        g as Float64Array,
-        traj,
-        tIdx
-      );
-    } else if (this.transversal && n > 0) {
-      this.kernelRT(
-        x as Float64Array,
-        d as Float64Array,
-        n,
-        y as Float64Array,
-        e as Float64Array,
-        ep as Float64Array,
-        g as Float64Array,
-        traj,
-        tIdx
-      );
+    // The delay-line kernel's prologue reads the chunk's first sample.
+    if (this.transversal && n > 0) {
+      this.kernelRT(x, d, n, y, e, ep, g, traj, tIdx);
     } else {
-      this.kernelR(
-        x as Float64Array,
-        d as Float64Array,
-        n,
-        y as Float64Array,
-        e as Float64Array,
-        ep as Float64Array,
-        g as Float64Array,
-        traj,
-        tIdx
-      );
+      this.kernelRRows(x, d, n, y, e, ep, g, traj, tIdx);
     }
   }
 
@@ -342,7 +314,7 @@ export class LmsFilter extends AdaptiveFilter {
     this.hPd = pd;
   }
 
-  private kernelR(
+  private kernelRRows(
     x: Float64Array,
     d: Float64Array,
     n: number,
@@ -455,7 +427,7 @@ export class LmsFilter extends AdaptiveFilter {
     this.hPd = pd;
   }
 
-  private kernelC(
+  protected kernelC(
     x: Float64Array,
     d: Float64Array,
     n: number,
@@ -554,7 +526,7 @@ export class LmsFilter extends AdaptiveFilter {
   }
 
   /** Float32 emulation (see QrRlsFilter.kernel32 for the conventions). */
-  private kernel32(
+  protected kernel32(
     x: Float32Array,
     d: Float32Array,
     n: number,

@@ -108,57 +108,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     }
   }
 
-  protected kernel(
-    x: Real,
-    d: Real,
-    n: number,
-    y: Real,
-    e: Real,
-    ep: Real,
-    g: Real,
-    traj: Float64Array,
-    tIdx: Float64Array
-  ): void {
-    if (this.f32) {
-      this.kernel32(
-        x as Float32Array,
-        d as Float32Array,
-        n,
-        y as Float32Array,
-        e as Float32Array,
-        ep as Float32Array,
-        g as Float32Array,
-        traj,
-        tIdx
-      );
-    } else if (this.complex) {
-      this.kernelC(
-        x as Float64Array,
-        d as Float64Array,
-        n,
-        y as Float64Array,
-        e as Float64Array,
-        ep as Float64Array,
-        g as Float64Array,
-        traj,
-        tIdx
-      );
-    } else {
-      this.kernelR(
-        x as Float64Array,
-        d as Float64Array,
-        n,
-        y as Float64Array,
-        e as Float64Array,
-        ep as Float64Array,
-        g as Float64Array,
-        traj,
-        tIdx
-      );
-    }
-  }
-
-  private kernelR(
+  protected kernelR(
     x: Float64Array,
     d: Float64Array,
     n: number,
@@ -423,7 +373,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     this.hPd = pd;
   }
 
-  private kernelC(
+  protected kernelC(
     x: Float64Array,
     d: Float64Array,
     n: number,
@@ -553,7 +503,7 @@ export class QrRlsFilter extends AdaptiveFilter {
    * (through a local alias they were called as functions, boxing each argument — seen as
    * scavenges under --trace-gc).
    */
-  private kernel32(
+  protected kernel32(
     x: Float32Array,
     d: Float32Array,
     n: number,

@@ -124,77 +124,39 @@ export class RlsFilter extends AdaptiveFilter {
     }
   }
 
-  protected kernel(
-    x: Real,
-    d: Real,
+  protected kernelR(
+    x: Float64Array,
+    d: Float64Array,
     n: number,
-    y: Real,
-    e: Real,
-    ep: Real,
-    g: Real,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
     traj: Float64Array,
     tIdx: Float64Array
   ): void {
-    if (this.f32) {
-      this.kernel32(
-        x as Float32Array,
-        d as Float32Array,
-        n,
-        y as Float32Array,
-        e as Float32Array,
-        ep as Float32Array,
-        g as Float32Array,
-        traj,
-        tIdx
-      );
-    } else if (this.complex && !this.legacy) {
-      this.kernelCSym(
-        x as Float64Array,
-        d as Float64Array,
-        n,
-        y as Float64Array,
-        e as Float64Array,
-        ep as Float64Array,
-        g as Float64Array,
-        traj,
-        tIdx
-      );
-    } else if (this.complex) {
-      this.kernelC(
-        x as Float64Array,
-        d as Float64Array,
-        n,
-        y as Float64Array,
-        e as Float64Array,
-        ep as Float64Array,
-        g as Float64Array,
-        traj,
-        tIdx
-      );
-    } else if (!this.legacy) {
-      this.kernelRSym(
-        x as Float64Array,
-        d as Float64Array,
-        n,
-        y as Float64Array,
-        e as Float64Array,
-        ep as Float64Array,
-        g as Float64Array,
-        traj,
-        tIdx
-      );
+    if (this.legacy) {
+      this.kernelRLegacy(x, d, n, y, e, ep, g, traj, tIdx);
     } else {
-      this.kernelR(
-        x as Float64Array,
-        d as Float64Array,
-        n,
-        y as Float64Array,
-        e as Float64Array,
-        ep as Float64Array,
-        g as Float64Array,
-        traj,
-        tIdx
-      );
+      this.kernelRSym(x, d, n, y, e, ep, g, traj, tIdx);
+    }
+  }
+
+  protected kernelC(
+    x: Float64Array,
+    d: Float64Array,
+    n: number,
+    y: Float64Array,
+    e: Float64Array,
+    ep: Float64Array,
+    g: Float64Array,
+    traj: Float64Array,
+    tIdx: Float64Array
+  ): void {
+    if (this.legacy) {
+      this.kernelCLegacy(x, d, n, y, e, ep, g, traj, tIdx);
+    } else {
+      this.kernelCSym(x, d, n, y, e, ep, g, traj, tIdx);
     }
   }
 
@@ -375,7 +337,7 @@ export class RlsFilter extends AdaptiveFilter {
   }
 
   /** Real float64, legacy variant: every entry of P updated, the asymmetry monitor formed alongside. */
-  private kernelR(
+  private kernelRLegacy(
     x: Float64Array,
     d: Float64Array,
     n: number,
@@ -695,7 +657,7 @@ export class RlsFilter extends AdaptiveFilter {
   }
 
   /** Complex float64, legacy variant (as kernelR). */
-  private kernelC(
+  private kernelCLegacy(
     x: Float64Array,
     d: Float64Array,
     n: number,
@@ -853,7 +815,7 @@ export class RlsFilter extends AdaptiveFilter {
   }
 
   /** Float32 emulation of both variants (see QrRlsFilter.kernel32 for the conventions). */
-  private kernel32(
+  protected kernel32(
     x: Float32Array,
     d: Float32Array,
     n: number,
