@@ -253,7 +253,36 @@ export class QrRlsFilter extends AdaptiveFilter {
         let q1 = jj1 + 3;
         let q2 = jj2 + 2;
         let q3 = jj3 + 1;
-        for (let k = j + 4; k < M; k++, q0++, q1++, q2++, q3++) {
+        let k = j + 4;
+        for (; k + 1 < M; k += 2, q0 += 2, q1 += 2, q2 += 2, q3 += 2) {
+          let rk = r[k];
+          let rl = r[k + 1];
+          const t0 = R[q0];
+          const u0 = R[q0 + 1];
+          R[q0] = cs0 * t0 + s0 * rk;
+          R[q0 + 1] = cs0 * u0 + s0 * rl;
+          rk = c0 * rk - ss0 * t0;
+          rl = c0 * rl - ss0 * u0;
+          const t1 = R[q1];
+          const u1 = R[q1 + 1];
+          R[q1] = cs1 * t1 + s1 * rk;
+          R[q1 + 1] = cs1 * u1 + s1 * rl;
+          rk = c1 * rk - ss1 * t1;
+          rl = c1 * rl - ss1 * u1;
+          const t2 = R[q2];
+          const u2 = R[q2 + 1];
+          R[q2] = cs2 * t2 + s2 * rk;
+          R[q2 + 1] = cs2 * u2 + s2 * rl;
+          rk = c2 * rk - ss2 * t2;
+          rl = c2 * rl - ss2 * u2;
+          const t3 = R[q3];
+          const u3 = R[q3 + 1];
+          R[q3] = cs3 * t3 + s3 * rk;
+          R[q3 + 1] = cs3 * u3 + s3 * rl;
+          r[k] = c3 * rk - ss3 * t3;
+          r[k + 1] = c3 * rl - ss3 * u3;
+        }
+        for (; k < M; k++, q0++, q1++, q2++, q3++) {
           let rk = r[k];
           const t0 = R[q0];
           R[q0] = cs0 * t0 + s0 * rk;
