@@ -457,7 +457,79 @@ export class QrRlsFilter extends AdaptiveFilter {
       let dr = dvr;
       let di = -dvi;
       let gs = 1;
-      for (let j = 0; j < M; j++) {
+      let j = 0;
+      // Rows j and j+1 in one pass over the work row (loaded and stored once per pair); every
+      // element sees the same operations in the same order as one row at a time.
+      for (; j + 1 < M; j += 2) {
+        const jj = 2 * (j * M + j);
+        const a = sl * R[jj];
+        const br = r[2 * j];
+        const bi = r[2 * j + 1];
+        const h = a * a + br * br + bi * bi;
+        const rho = Math.sqrt(h);
+        const inv = rho * (1 / h);
+        const c = a * inv;
+        const sr = br * inv;
+        const si = bi * inv;
+        R[jj] = rho;
+        const cs = c * sl;
+        const ssr = sr * sl;
+        const ssi = si * sl;
+        // row j on entry j+1, which then makes rotation j+1
+        const tr0 = R[jj + 2];
+        const ti0 = R[jj + 3];
+        const rr0 = r[2 * j + 2];
+        const ri0 = r[2 * j + 3];
+        R[jj + 2] = cs * tr0 + sr * rr0 + si * ri0;
+        R[jj + 3] = cs * ti0 + sr * ri0 - si * rr0;
+        const br1 = c * rr0 - (ssr * tr0 - ssi * ti0);
+        const bi1 = c * ri0 - (ssr * ti0 + ssi * tr0);
+        const pr = p[2 * j];
+        const pim = p[2 * j + 1];
+        p[2 * j] = cs * pr + sr * dr + si * di;
+        p[2 * j + 1] = cs * pim + sr * di - si * dr;
+        let ndr = c * dr - (ssr * pr - ssi * pim);
+        di = c * di - (ssr * pim + ssi * pr);
+        dr = ndr;
+        gs *= c;
+        const jj1 = jj + 2 * M + 2;
+        const a1 = sl * R[jj1];
+        const h1 = a1 * a1 + br1 * br1 + bi1 * bi1;
+        const rho1 = Math.sqrt(h1);
+        const inv1 = rho1 * (1 / h1);
+        const c1 = a1 * inv1;
+        const sr1 = br1 * inv1;
+        const si1 = bi1 * inv1;
+        R[jj1] = rho1;
+        const cs1 = c1 * sl;
+        const ssr1 = sr1 * sl;
+        const ssi1 = si1 * sl;
+        for (let k = 2 * (j + 2), q = jj + 4, q1 = jj1 + 2; k < M2; k += 2, q += 2, q1 += 2) {
+          const tr = R[q];
+          const ti = R[q + 1];
+          const rr = r[k];
+          const ri = r[k + 1];
+          R[q] = cs * tr + sr * rr + si * ri;
+          R[q + 1] = cs * ti + sr * ri - si * rr;
+          const rr1 = c * rr - (ssr * tr - ssi * ti);
+          const ri1 = c * ri - (ssr * ti + ssi * tr);
+          const tr1 = R[q1];
+          const ti1 = R[q1 + 1];
+          R[q1] = cs1 * tr1 + sr1 * rr1 + si1 * ri1;
+          R[q1 + 1] = cs1 * ti1 + sr1 * ri1 - si1 * rr1;
+          r[k] = c1 * rr1 - (ssr1 * tr1 - ssi1 * ti1);
+          r[k + 1] = c1 * ri1 - (ssr1 * ti1 + ssi1 * tr1);
+        }
+        const pr1 = p[2 * j + 2];
+        const pim1 = p[2 * j + 3];
+        p[2 * j + 2] = cs1 * pr1 + sr1 * dr + si1 * di;
+        p[2 * j + 3] = cs1 * pim1 + sr1 * di - si1 * dr;
+        ndr = c1 * dr - (ssr1 * pr1 - ssi1 * pim1);
+        di = c1 * di - (ssr1 * pim1 + ssi1 * pr1);
+        dr = ndr;
+        gs *= c1;
+      }
+      for (; j < M; j++) {
         const jj = 2 * (j * M + j);
         const a = sl * R[jj];
         const br = r[2 * j];
