@@ -5,6 +5,9 @@
  * message. Every request ends (no hang) with a clear BridgeError, and the bridge works again
  * afterwards.
  */
+import * as fs from 'fs';
+import * as os from 'os';
+import * as path from 'path';
 import type { Kernel } from '@jupyterlab/services';
 import {
   BridgeError,
@@ -191,10 +194,16 @@ describe('writes under faults', () => {
   it('an interrupt mid-write binds nothing and says so', async () => {
     const bridge = new KernelBridge({ kernel, timeoutMs: 20000 });
     await bridge.listVariables();
+    // The slowed chunk handler leaves a marker when the first chunk arrives, so the interrupt
+    // lands inside the write however long the client took to start sending (a fixed delay
+    // once fired before the first chunk reached a loaded machine's kernel).
+    const marker = path.join(fs.mkdtempSync(path.join(os.tmpdir(), 'perpend-int-')), 'started');
     await runCell(
       kernel,
       `_p = ${H}; _p.w_put_orig = getattr(_p, 'w_put_orig', _p.w_put)\n` +
-        `def _slow(h, o, d, _o=_p.w_put_orig):\n    __import__('time').sleep(0.5)\n    return _o(h, o, d)\n` +
+        `def _slow(h, o, d, _o=_p.w_put_orig):\n` +
+        `    open(${JSON.stringify(marker)}, 'a').close()\n` +
+        `    __import__('time').sleep(0.5)\n    return _o(h, o, d)\n` +
         `_p.w_put = _slow\ndel _p, _slow`
     );
     const n = 3_000_000;
@@ -205,7 +214,13 @@ describe('writes under faults', () => {
       complex: false,
       dtype: 'float64'
     });
-    await sleep(1200);
+    for (let t = 0; !fs.existsSync(marker); t += 20) {
+      if (t > 20000) {
+        throw new Error('the write never reached the kernel');
+      }
+      await sleep(20);
+    }
+    await sleep(700);
     await kernel.interrupt();
     const e = await failure(p);
     expect(e.code).toBe('interrupted');
@@ -213,6 +228,7 @@ describe('writes under faults', () => {
       'The kernel was interrupted while working on half_written. Nothing in the panel was changed.'
     );
     await runCell(kernel, `${H}.w_put = ${H}.w_put_orig`);
+    fs.rmSync(path.dirname(marker), { recursive: true, force: true });
     expect(await evalText(kernel, "'half_written' in get_ipython().user_ns")).toBe('False');
     // And the next write goes through whole.
     const ok = await bridge.writeArray('half_written', {
