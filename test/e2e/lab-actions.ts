@@ -69,20 +69,29 @@ export async function runAllCells(page: Page): Promise<void> {
 
 export async function palette(page: Page, command: string): Promise<void> {
   const input = page.locator('.lm-CommandPalette-input');
-  // The shortcut is lost when the keystroke lands while focus is moving (seen once in CI, right
-  // after Run All); then the View menu's item opens the same palette.
-  await page.keyboard.press('Control+Shift+C');
-  try {
-    await input.waitFor({ state: 'visible', timeout: 5000 });
-  } catch {
-    await menu(page, 'View', 'Activate Command Palette');
-    await input.waitFor({ state: 'visible' });
-  }
-  await input.fill(command);
-  await page
+  const item = page
     .locator('.lm-CommandPalette-item:visible .lm-CommandPalette-itemLabel', { hasText: command })
-    .first()
-    .click();
+    .first();
+  // Right after Run All the lab can take the focus back, which loses the shortcut or closes the
+  // palette just opened (seen in CI, both ways); so each step is retried, the later attempts
+  // through the View menu's item.
+  for (let attempt = 0; ; attempt++) {
+    try {
+      if (attempt === 0) {
+        await page.keyboard.press('Control+Shift+C');
+      } else if (!(await input.isVisible())) {
+        await menu(page, 'View', 'Activate Command Palette');
+      }
+      await input.waitFor({ state: 'visible', timeout: 5000 });
+      await input.fill(command, { timeout: 5000 });
+      await item.click({ timeout: 5000 });
+      return;
+    } catch (e) {
+      if (attempt >= 3) {
+        throw e;
+      }
+    }
+  }
 }
 
 export async function setTheme(
