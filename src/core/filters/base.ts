@@ -24,6 +24,35 @@ import type {
 /** Smoothing of the health monitor's power estimates: time constant 256 samples. */
 export const HEALTH_ALPHA = 1 / 256;
 
+/**
+ * Moves a real tapped delay line on by one sample. The line is stored twice (ub has length 2M)
+ * so that u(n) is the contiguous slice ub[pos … pos+M): the new sample goes in front of it, at
+ * pos − 1 (mod M), in both copies. Returns the new pos.
+ */
+export function pushSample(ub: Float64Array, pos: number, M: number, v: number): number {
+  const p = pos === 0 ? M - 1 : pos - 1;
+  ub[p] = v;
+  ub[p + M] = v;
+  return p;
+}
+
+/** pushSample for complex samples (interleaved; ub has length 4M, the slice starts at 2·pos). */
+export function pushSampleC(
+  ub: Float64Array,
+  pos: number,
+  M: number,
+  re: number,
+  im: number
+): number {
+  const p = pos === 0 ? M - 1 : pos - 1;
+  const o = 2 * p;
+  ub[o] = re;
+  ub[o + 1] = im;
+  ub[o + 2 * M] = re;
+  ub[o + 2 * M + 1] = im;
+  return p;
+}
+
 /** Bit order of the health mask (nonfinite = 1, divergence = 2, indefinite = 4, …). */
 const HEALTH_KINDS: HealthKind[] = [
   'nonfinite',

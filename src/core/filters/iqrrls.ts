@@ -14,7 +14,7 @@
  * b_j = λ^−½ Σ_{i≤j} ū_i S_ij and the rotation of column j run over contiguous memory.
  * Per sample (real): 4M² + O(M) flops, M square roots and M divisions.
  */
-import { AdaptiveFilter, HEALTH_ALPHA } from './base';
+import { AdaptiveFilter, HEALTH_ALPHA, pushSample, pushSampleC } from './base';
 import type { FilterOptions, Real } from './types';
 
 export class InverseQrRlsFilter extends AdaptiveFilter {
@@ -163,10 +163,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
         uo = i * M;
       } else {
         if (!ready) {
-          pos = pos === 0 ? M - 1 : pos - 1;
-          const xv = x[i];
-          ub[pos] = xv;
-          ub[pos + M] = xv;
+          pos = pushSample(ub, pos, M, x[i]);
         }
         uo = pos;
       }
@@ -189,10 +186,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
       let vo = uo;
       if (ready) {
         if (tv) {
-          pos = pos === 0 ? M - 1 : pos - 1;
-          const xv = x[i + 1];
-          ub[pos] = xv;
-          ub[pos + M] = xv;
+          pos = pushSample(ub, pos, M, x[i + 1]);
           vo = pos;
         } else {
           vo = (i + 1) * M;
@@ -431,13 +425,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
         uo = i * M2;
       } else {
         if (!ready) {
-          pos = pos === 0 ? M - 1 : pos - 1;
-          const xr = x[2 * i];
-          const xi = x[2 * i + 1];
-          ub[2 * pos] = xr;
-          ub[2 * pos + 1] = xi;
-          ub[2 * pos + M2] = xr;
-          ub[2 * pos + M2 + 1] = xi;
+          pos = pushSampleC(ub, pos, M, x[2 * i], x[2 * i + 1]);
         }
         uo = 2 * pos;
       }
@@ -483,13 +471,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
       let vo = uo;
       if (ready) {
         if (tv) {
-          pos = pos === 0 ? M - 1 : pos - 1;
-          const xr = x[2 * i + 2];
-          const xi = x[2 * i + 3];
-          ub[2 * pos] = xr;
-          ub[2 * pos + 1] = xi;
-          ub[2 * pos + M2] = xr;
-          ub[2 * pos + M2 + 1] = xi;
+          pos = pushSampleC(ub, pos, M, x[2 * i + 2], x[2 * i + 3]);
           vo = 2 * pos;
         } else {
           vo = (i + 1) * M2;

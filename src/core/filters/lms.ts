@@ -10,7 +10,7 @@
  * ch. 6; Sayed 2003 §23 (from memory)); μ above it raises a 'step-size' warning. For coloured
  * input the true bound is lower; the warning is a guide, not a guarantee.
  */
-import { AdaptiveFilter, HEALTH_ALPHA } from './base';
+import { AdaptiveFilter, HEALTH_ALPHA, pushSample, pushSampleC } from './base';
 import type { ChunkBuffers, FilterChunk, FilterOptions, Real } from './types';
 
 export class LmsFilter extends AdaptiveFilter {
@@ -152,9 +152,7 @@ export class LmsFilter extends AdaptiveFilter {
     let pe = this.hPe;
     let pd = this.hPd;
     // Prologue: y(0) and ‖u(0)‖² of the chunk's first sample.
-    pos = pos === 0 ? M - 1 : pos - 1;
-    ub[pos] = x[0];
-    ub[pos + M] = x[0];
+    pos = pushSample(ub, pos, M, x[0]);
     let y0 = 0;
     let y1 = 0;
     let y2 = 0;
@@ -344,10 +342,7 @@ export class LmsFilter extends AdaptiveFilter {
     for (let i = 0; i < n; i++) {
       let uo = 0;
       if (tv) {
-        pos = pos === 0 ? M - 1 : pos - 1;
-        const xv = x[i];
-        ub[pos] = xv;
-        ub[pos + M] = xv;
+        pos = pushSample(ub, pos, M, x[i]);
         uo = pos;
       } else {
         const b = i * M;
@@ -457,13 +452,7 @@ export class LmsFilter extends AdaptiveFilter {
     for (let i = 0; i < n; i++) {
       let uo = 0;
       if (tv) {
-        pos = pos === 0 ? M - 1 : pos - 1;
-        const xr = x[2 * i];
-        const xi = x[2 * i + 1];
-        ub[2 * pos] = xr;
-        ub[2 * pos + 1] = xi;
-        ub[2 * pos + M2] = xr;
-        ub[2 * pos + M2 + 1] = xi;
+        pos = pushSampleC(ub, pos, M, x[2 * i], x[2 * i + 1]);
         uo = 2 * pos;
       } else {
         const b = i * M2;

@@ -16,8 +16,7 @@
  *
  * Per sample (real): 3M² + O(M) flops, M square roots and M divisions.
  */
-import { AdaptiveFilter } from './base';
-import { HEALTH_ALPHA } from './base';
+import { AdaptiveFilter, HEALTH_ALPHA, pushSample, pushSampleC } from './base';
 import type { FilterOptions, Real } from './types';
 
 export class QrRlsFilter extends AdaptiveFilter {
@@ -138,10 +137,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     for (let i = 0; i < n; i++) {
       let uo = 0;
       if (tv) {
-        pos = pos === 0 ? M - 1 : pos - 1;
-        const xv = x[i];
-        ub[pos] = xv;
-        ub[pos + M] = xv;
+        pos = pushSample(ub, pos, M, x[i]);
         uo = pos;
       } else {
         const b = i * M;
@@ -433,13 +429,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     for (let i = 0; i < n; i++) {
       let uo = 0;
       if (tv) {
-        pos = pos === 0 ? M - 1 : pos - 1;
-        const xr = x[2 * i];
-        const xi = x[2 * i + 1];
-        ub[2 * pos] = xr;
-        ub[2 * pos + 1] = xi;
-        ub[2 * pos + M2] = xr;
-        ub[2 * pos + M2 + 1] = xi;
+        pos = pushSampleC(ub, pos, M, x[2 * i], x[2 * i + 1]);
         uo = 2 * pos;
       } else {
         const b = i * M2;

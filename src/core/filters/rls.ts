@@ -22,7 +22,7 @@
  * positive definiteness, each with its sample index. For complex data α uses the real part of
  * uᴴPu. About 7M² flops per sample.
  */
-import { AdaptiveFilter, HEALTH_ALPHA } from './base';
+import { AdaptiveFilter, HEALTH_ALPHA, pushSample, pushSampleC } from './base';
 import type { FilterOptions, Real } from './types';
 
 export class RlsFilter extends AdaptiveFilter {
@@ -205,10 +205,7 @@ export class RlsFilter extends AdaptiveFilter {
         ua = x;
         uo = i * M;
       } else if (!ready) {
-        pos = pos === 0 ? M - 1 : pos - 1;
-        const xv = x[i];
-        ub[pos] = xv;
-        ub[pos + M] = xv;
+        pos = pushSample(ub, pos, M, x[i]);
       }
       if (tv) {
         uo = pos;
@@ -239,10 +236,7 @@ export class RlsFilter extends AdaptiveFilter {
         let va = ub;
         let vo = 0;
         if (tv) {
-          pos = pos === 0 ? M - 1 : pos - 1;
-          const xv = x[i + 1];
-          ub[pos] = xv;
-          ub[pos + M] = xv;
+          pos = pushSample(ub, pos, M, x[i + 1]);
           vo = pos;
         } else {
           va = x;
@@ -369,10 +363,7 @@ export class RlsFilter extends AdaptiveFilter {
     for (let i = 0; i < n; i++) {
       let uo = 0;
       if (tv) {
-        pos = pos === 0 ? M - 1 : pos - 1;
-        const xv = x[i];
-        ub[pos] = xv;
-        ub[pos + M] = xv;
+        pos = pushSample(ub, pos, M, x[i]);
         uo = pos;
       } else {
         const b = i * M;
@@ -502,13 +493,7 @@ export class RlsFilter extends AdaptiveFilter {
         uo = i * M2;
       } else {
         if (!ready) {
-          pos = pos === 0 ? M - 1 : pos - 1;
-          const xr = x[2 * i];
-          const xi = x[2 * i + 1];
-          ub[2 * pos] = xr;
-          ub[2 * pos + 1] = xi;
-          ub[2 * pos + M2] = xr;
-          ub[2 * pos + M2 + 1] = xi;
+          pos = pushSampleC(ub, pos, M, x[2 * i], x[2 * i + 1]);
         }
         uo = 2 * pos;
       }
@@ -576,13 +561,7 @@ export class RlsFilter extends AdaptiveFilter {
       let vo = uo;
       if (ready) {
         if (tv) {
-          pos = pos === 0 ? M - 1 : pos - 1;
-          const xr = x[2 * i + 2];
-          const xi = x[2 * i + 3];
-          ub[2 * pos] = xr;
-          ub[2 * pos + 1] = xi;
-          ub[2 * pos + M2] = xr;
-          ub[2 * pos + M2 + 1] = xi;
+          pos = pushSampleC(ub, pos, M, x[2 * i + 2], x[2 * i + 3]);
           vo = 2 * pos;
         } else {
           vo = (i + 1) * M2;
@@ -690,13 +669,7 @@ export class RlsFilter extends AdaptiveFilter {
     for (let i = 0; i < n; i++) {
       let uo = 0;
       if (tv) {
-        pos = pos === 0 ? M - 1 : pos - 1;
-        const xr = x[2 * i];
-        const xi = x[2 * i + 1];
-        ub[2 * pos] = xr;
-        ub[2 * pos + 1] = xi;
-        ub[2 * pos + M2] = xr;
-        ub[2 * pos + M2 + 1] = xi;
+        pos = pushSampleC(ub, pos, M, x[2 * i], x[2 * i + 1]);
         uo = 2 * pos;
       } else {
         const b = i * M2;
