@@ -34,6 +34,11 @@ export interface StoredWorkbench {
 export interface LoadResult {
   setups: Setup[];
   problems: string[];
+  /**
+   * The stored value could not be read as a whole (a newer schema, not an object, no version):
+   * nothing loaded, and it must not be overwritten.
+   */
+  keep: boolean;
 }
 
 /** Most set-ups a notebook keeps (a bound on hand-edited metadata). */
@@ -430,12 +435,13 @@ export function describeValue(v: unknown): string {
 export function loadWorkbench(trans: Trans, raw: unknown): LoadResult {
   const problems: string[] = [];
   if (raw === undefined || raw === null) {
-    return { setups: [], problems };
+    return { setups: [], problems, keep: false };
   }
   if (typeof raw !== 'object' || Array.isArray(raw)) {
     return {
       setups: [],
-      problems: [trans.__('The stored set-ups are not an object; none was loaded.')]
+      problems: [trans.__('The stored set-ups are not an object; none was loaded.')],
+      keep: true
     };
   }
   const o = raw as Record<string, unknown>;
@@ -456,7 +462,8 @@ export function loadWorkbench(trans: Trans, raw: unknown): LoadResult {
           'The stored set-ups have no valid schema version (found %1); none was loaded.',
           describeValue(o.version)
         )
-      ]
+      ],
+      keep: true
     };
   }
   if (o.version > SETUP_SCHEMA_VERSION) {
@@ -468,13 +475,15 @@ export function loadWorkbench(trans: Trans, raw: unknown): LoadResult {
           o.version,
           SETUP_SCHEMA_VERSION
         )
-      ]
+      ],
+      keep: true
     };
   }
   if (!Array.isArray(o.setups)) {
     return {
       setups: [],
-      problems: [trans.__('The stored "setups" is not a list; none was loaded.')]
+      problems: [trans.__('The stored "setups" is not a list; none was loaded.')],
+      keep: true
     };
   }
   if (o.setups.length > MAX_SETUPS) {
@@ -508,5 +517,5 @@ export function loadWorkbench(trans: Trans, raw: unknown): LoadResult {
       problems.push(e.message);
     }
   });
-  return { setups, problems };
+  return { setups, problems, keep: false };
 }
