@@ -10,3 +10,12 @@ export * from './metrics';
 export * from './dsp';
 export * from './subspace';
 export * from './stats';
+// Per-direction shares from least-squares coefficients on the user's own columns (harmonics,
+// steering vectors, lags), in the columns' order (not the pivoted-QR basis order).
+export { columnShares, harmonicShares } from './subspace/harmonic-shares';
+export type {
+  ColumnShares,
+  ColumnSharesOptions,
+  HarmonicShares,
+  HarmonicSharesOptions
+} from './subspace/harmonic-shares';
