@@ -76,9 +76,13 @@ export function checkSources(
   };
   const facts = new Map<string, SourceFacts>();
   for (const { field, pick } of setupSources(p.tool === 'sweep' ? p.base : p)) {
+    const at = p.tool === 'sweep' ? `base.${field}` : field;
+    if (pick.ref.kind === 'variable' && pick.ref.name === '') {
+      add(at, trans.__('Choose an array.'));
+      continue;
+    }
     const f = lookup(pick.ref);
     const name = refLabel(trans, pick.ref);
-    const at = p.tool === 'sweep' ? `base.${field}` : field;
     if (!f) {
       add(
         at,
