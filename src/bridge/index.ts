@@ -61,17 +61,17 @@
  * `sys.modules` (never in the user's namespace), which calls no method of the user's objects
  * when listing.
  */
-export {
-  CACHE_NOTES,
-  KernelBridge,
-  type ArrayData,
-  type ArrayInfo,
-  type ArraySource,
-  type CellRef,
-  type CellVerdict,
-  type WriteConflict,
-  type WriteResult
-} from './bridge';
+export { KernelBridge } from './bridge';
+export { CACHE_NOTES } from './notes';
+export type {
+  ArrayData,
+  ArrayInfo,
+  ArraySource,
+  CellRef,
+  CellVerdict,
+  WriteConflict,
+  WriteResult
+} from './types';
 export { BridgeError, isBridgeError, type BridgeErrorCode } from './errors';
 export { COMM_TARGET, HELPER_MODULE, HELPER_VERSION } from './helper';
 export { SessionLedger, watchKernelExecutions } from './ledger';

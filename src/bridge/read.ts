@@ -1,0 +1,287 @@
+/**
+ * How an array is read: the source is checked (a valid name, or a cell count this session
+ * produced), then the helper sends a header and the array's bytes (float64, or interleaved
+ * complex128) in chunks, over the comm as binary buffers or as base64 in silent executes.
+ * Every header and chunk is checked against the others before its bytes are used.
+ */
+import { decodeBase64Into } from './base64';
+import type { CommChannel } from './comm';
+import { BridgeError } from './errors';
+import { HELPER_REF } from './helper';
+import type { SessionLedger } from './ledger';
+import { checkIdentifier, pyIntLiteral, pyStringLiteral } from './names';
+import { kernelRefusal, refusalOf } from './refusals';
+import {
+  isRecord,
+  malformed,
+  parseHeader,
+  parseJsonExpression,
+  plainText,
+  sourceLabel,
+  type TransferHeader
+} from './replies';
+import { inFlight, type KernelRequests } from './requests';
+import type { ArrayData, ArraySource, TransferLimits } from './types';
+
+/** Reads arrays and scalars from the kernel. */
+export class ArrayReader {
+  constructor(
+    private readonly _requests: KernelRequests,
+    private readonly _channel: CommChannel,
+    private readonly _limits: TransferLimits,
+    private readonly _ledger: SessionLedger | null
+  ) {}
+
+  /** See `KernelBridge.readArray`. */
+  async read(source: ArraySource): Promise<ArrayData> {
+    const src = this._sourceLiteral(source);
+    const label = `reading ${sourceLabel(source)}`;
+    if (await this._channel.use()) {
+      return this._readComm(src.json, label, source);
+    }
+    return this._readBase64(src.py, label, source);
+  }
+
+  /** See `KernelBridge.readScalar`. */
+  async readScalar(path: string): Promise<number> {
+    if (typeof path !== 'string') {
+      throw new TypeError(`path must be a string, got ${typeof path}`);
+    }
+    const parts = path.split('.').map((p, i) => checkIdentifier(`path part ${i + 1}`, p.trim()));
+    if (parts.length > 4) {
+      throw new RangeError(`path must have at most 4 parts, got ${parts.length}`);
+    }
+    const dunder = parts.slice(1).find(p => p.startsWith('__'));
+    if (dunder !== undefined) {
+      throw new TypeError(`path must not reach private attributes, got ${JSON.stringify(dunder)}`);
+    }
+    const expr = `${HELPER_REF}.read_scalar([${parts.map(pyStringLiteral).join(', ')}])`;
+    const r = await this._requests.evaluate(`reading ${parts.join('.')}`, { r: expr });
+    const v = parseJsonExpression(r.r, `reading ${parts.join('.')}`);
+    if (isRecord(v) && typeof v.value === 'number') {
+      return v.value;
+    }
+    throw kernelRefusal(v, parts.join('.'), this._limits.maxBytesSetting);
+  }
+
+  /** The source as the comm's JSON and as a Python literal, after its checks. */
+  private _sourceLiteral(source: ArraySource): { json: Record<string, unknown>; py: string } {
+    if (!isRecord(source)) {
+      throw new TypeError(`source must be an ArraySource, got ${typeof source}`);
+    }
+    if (source.kind === 'variable') {
+      const name = checkIdentifier('source.name', source.name);
+      return {
+        json: { kind: 'variable', name },
+        py: `{"kind": "variable", "name": ${pyStringLiteral(name)}}`
+      };
+    }
+    if (source.kind === 'cell') {
+      const n = source.executionCount;
+      if (typeof n !== 'number' || !Number.isSafeInteger(n) || n < 1) {
+        throw new TypeError(`source.executionCount must be a positive integer, got ${String(n)}`);
+      }
+      if (this._ledger && !this._ledger.trusts(source.cellId, n)) {
+        throw new BridgeError(
+          'stale-count',
+          `The result Out[${n}] shown in the notebook was not produced by the kernel running now (it was restarted or changed since), so it cannot be read. Run the cell again, or pick a variable.`
+        );
+      }
+      return { json: { kind: 'cell', n }, py: `{"kind": "cell", "n": ${n}}` };
+    }
+    throw new TypeError(
+      `source.kind must be 'cell' or 'variable', got ${String((source as { kind: unknown }).kind)}`
+    );
+  }
+
+  /** Header, chunks as binary buffers, end: one comm request. */
+  private async _readComm(
+    source: Record<string, unknown>,
+    label: string,
+    original: ArraySource
+  ): Promise<ArrayData> {
+    const requests = this._requests;
+    const channel = this._channel;
+    const limits = this._limits;
+    const comm = await channel.open();
+    const req = requests.nextId();
+    const op = requests.newOp(label);
+    const what = sourceLabel(original);
+    try {
+      const work = new Promise<ArrayData>((resolve, reject) => {
+        let head: TransferHeader | null = null;
+        let out: Float64Array | null = null;
+        let bytes: Uint8Array | null = null;
+        let seen: Uint8Array | null = null;
+        let received = 0;
+        channel.handle(req, (d, buffers) => {
+          op.touch();
+          try {
+            switch (d.op) {
+              case 'header': {
+                head = parseHeader(d, limits.maxBytes, label);
+                if (head.chunks > 1) {
+                  out = new Float64Array(head.nbytes / 8);
+                  bytes = new Uint8Array(out.buffer);
+                }
+                seen = new Uint8Array(head.chunks);
+                return;
+              }
+              case 'chunk': {
+                const i = d.i;
+                const offset = d.offset;
+                if (
+                  !head ||
+                  !seen ||
+                  typeof i !== 'number' ||
+                  !Number.isInteger(i) ||
+                  i < 0 ||
+                  i >= head.chunks ||
+                  seen[i] ||
+                  offset !== i * head.chunk ||
+                  buffers.length !== 1
+                ) {
+                  throw malformed(label);
+                }
+                const b = buffers[0];
+                const expect = Math.min(head.chunk, head.nbytes - offset);
+                if (b.byteLength !== expect) {
+                  throw malformed(label);
+                }
+                if (bytes) {
+                  bytes.set(new Uint8Array(b.buffer, b.byteOffset, b.byteLength), offset);
+                } else if (b.byteOffset % 8 === 0) {
+                  // One chunk: its buffer (a fresh copy made by the deserialiser) is the result.
+                  out = new Float64Array(b.buffer, b.byteOffset, b.byteLength / 8);
+                } else {
+                  out = new Float64Array(b.byteLength / 8);
+                  new Uint8Array(out.buffer).set(
+                    new Uint8Array(b.buffer, b.byteOffset, b.byteLength)
+                  );
+                }
+                seen[i] = 1;
+                received += b.byteLength;
+                return;
+              }
+              case 'end': {
+                if (!head || !out || received !== head.nbytes) {
+                  throw malformed(label);
+                }
+                resolve({ data: out, shape: head.shape, complex: head.complex, dtype: head.dtype });
+                return;
+              }
+              case 'error':
+                throw refusalOf(d.code, d.detail, what, limits.maxBytesSetting);
+              case 'closed':
+                throw new BridgeError(
+                  'comm-closed',
+                  `The kernel closed Perpend's data channel while ${label}. Nothing in the panel was changed; try again (Perpend reopens it).`
+                );
+              default:
+                throw malformed(label);
+            }
+          } catch (e) {
+            channel.unhandle(req);
+            reject(e);
+          }
+        });
+        const future = channel.send(comm, op, {
+          req,
+          op: 'read',
+          source,
+          chunk: limits.readChunk,
+          max_bytes: limits.maxBytes
+        });
+        future.done.then(
+          () => {
+            // The kernel went idle for this request: everything it sent has been handled.
+            reject(
+              new BridgeError(
+                'malformed',
+                `The kernel finished ${label} without sending the whole array (was it interrupted?). Nothing in the panel was changed; try again.`
+              )
+            );
+          },
+          () => undefined
+        );
+      });
+      return await Promise.race([work, op.promise]);
+    } catch (e) {
+      throw requests.translate(e, label);
+    } finally {
+      channel.unhandle(req);
+      requests.endOp(op);
+    }
+  }
+
+  /** A staged copy in the kernel, fetched as base64 a chunk per user expression. */
+  private async _readBase64(src: string, label: string, original: ArraySource): Promise<ArrayData> {
+    const requests = this._requests;
+    const limits = this._limits;
+    const h = requests.nextId();
+    const what = sourceLabel(original);
+    const cs = limits.readChunk;
+    // One request opens the stage and brings the first chunk (closing the stage when that
+    // was all): a small array costs one round trip.
+    const openR = await requests.evaluate(label, {
+      r: `${HELPER_REF}.b64_open(${h}, ${src}, ${pyIntLiteral('maxBytes', limits.maxBytes)})`,
+      c: `${HELPER_REF}.b64_chunk(${h}, 0, ${cs}, True)`
+    });
+    const head0 = parseJsonExpression(openR.r, label);
+    if (isRecord(head0) && typeof head0.error === 'string') {
+      throw refusalOf(head0.error, head0.detail, what, limits.maxBytesSetting);
+    }
+    let closed = false;
+    try {
+      const head = parseHeader(
+        {
+          ...(head0 as object),
+          chunk: cs,
+          chunks: Math.ceil(Number((head0 as { nbytes?: unknown }).nbytes) / cs)
+        },
+        limits.maxBytes,
+        label
+      );
+      const out = new Float64Array(head.nbytes / 8);
+      const bytes = new Uint8Array(out.buffer);
+      const offsets: number[] = [];
+      for (let o = cs; o < head.nbytes; o += cs) {
+        offsets.push(o);
+      }
+      closed = offsets.length === 0;
+      const put = (entry: unknown, o: number): void => {
+        const size = Math.min(cs, head.nbytes - o);
+        const text = plainText(entry, label);
+        if (text.startsWith('{')) {
+          throw new BridgeError(
+            'malformed',
+            `The kernel lost the staged array while ${label} (was the helper reset?). Try again.`
+          );
+        }
+        let n: number;
+        try {
+          n = decodeBase64Into(text, bytes, o);
+        } catch {
+          throw malformed(label);
+        }
+        if (n !== size) {
+          throw malformed(label);
+        }
+      };
+      put(openR.c, 0);
+      // A few requests in flight keep the kernel busy while the previous reply is decoded.
+      await inFlight(offsets, async o => {
+        const size = Math.min(cs, head.nbytes - o);
+        const r = await requests.evaluate(label, {
+          r: `${HELPER_REF}.b64_chunk(${h}, ${o}, ${size})`
+        });
+        put(r.r, o);
+      });
+      return { data: out, shape: head.shape, complex: head.complex, dtype: head.dtype };
+    } finally {
+      if (!closed) {
+        requests.release(`${HELPER_REF}.b64_close(${h})`);
+      }
+    }
+  }
+}

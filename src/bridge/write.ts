@@ -1,0 +1,311 @@
+/**
+ * How an array is written: the name is validated, then the helper is told the name, shape and
+ * byte count (`begin`, which reports a conflict and stops unless overwrite), receives the
+ * bytes in chunks far below the server's 10 MiB message limit, and binds the new numpy array
+ * only at `end`. Over the comm as binary buffers, or as base64 in silent executes. What the
+ * replies mean, and the question asked on a conflict, are in `conflicts.ts`.
+ */
+import { encodeBase64 } from './base64';
+import type { CommChannel } from './comm';
+import { conflictResult, parseWriteReply, writtenWarnings, type WriteReply } from './conflicts';
+import { BridgeError } from './errors';
+import { HELPER_REF } from './helper';
+import { normalizeIdentifier, pyIntLiteral, pyStringLiteral } from './names';
+import { kernelRefusal, refusalOf } from './refusals';
+import { MiB, isRecord, malformed, parseJsonExpression } from './replies';
+import { inFlight, type KernelRequests } from './requests';
+import type { ArrayData, TransferLimits, WriteResult } from './types';
+
+/** One write, as both transports take it. */
+interface WriteJob {
+  /** The name as bound in Python (NFKC form). */
+  name: string;
+  shape: number[];
+  complex: boolean;
+  /** The bytes of the float64/complex128 data. */
+  raw: Uint8Array;
+  overwrite: boolean;
+  /** "writing <name>", for messages and the activity line. */
+  label: string;
+}
+
+/** Writes arrays into the kernel's namespace. */
+export class ArrayWriter {
+  constructor(
+    private readonly _requests: KernelRequests,
+    private readonly _channel: CommChannel,
+    private readonly _limits: TransferLimits
+  ) {}
+
+  /** See `KernelBridge.writeArray`. */
+  async write(
+    name: string,
+    array: ArrayData,
+    options: { overwrite?: boolean } = {}
+  ): Promise<WriteResult> {
+    const check = normalizeIdentifier(name);
+    if (!check.ok) {
+      throw new BridgeError(
+        'invalid-name',
+        `Cannot write to ${JSON.stringify(String(name).slice(0, 40))}: ${check.reason}.`
+      );
+    }
+    const pyName = check.name;
+    validateArrayData(array);
+    const job: WriteJob = {
+      name: pyName,
+      shape: array.shape.slice(),
+      complex: array.complex,
+      raw: new Uint8Array(array.data.buffer, array.data.byteOffset, array.data.byteLength),
+      overwrite: options.overwrite === true,
+      label: `writing ${pyName}`
+    };
+    const outcome = (await this._channel.use())
+      ? await this._writeComm(job)
+      : await this._writeBase64(job);
+    if ('conflict' in outcome) {
+      return conflictResult(pyName, outcome.conflict);
+    }
+    const warnings = writtenWarnings(pyName, check.changed, outcome.was);
+    return { status: 'written', name: pyName, bytes: job.raw.byteLength, warnings };
+  }
+
+  /** Begin, chunks, end on the comm; a small write in one burst. */
+  private async _writeComm(job: WriteJob): Promise<WriteReply> {
+    const { name, raw, label } = job;
+    const requests = this._requests;
+    const channel = this._channel;
+    const comm = await channel.open();
+    const req = requests.nextId();
+    const op = requests.newOp(label);
+    try {
+      let waiter: {
+        resolve: (d: Record<string, unknown>) => void;
+        reject: (e: unknown) => void;
+      } | null = null;
+      let failure: BridgeError | null = null;
+      const inbox: Record<string, unknown>[] = [];
+      channel.handle(req, d => {
+        op.touch();
+        let err: BridgeError | null = null;
+        if (d.op === 'error') {
+          err = refusalOf(d.code, d.detail, name, this._limits.maxBytesSetting);
+        } else if (d.op === 'closed') {
+          err = new BridgeError(
+            'comm-closed',
+            `The kernel closed Perpend's data channel while ${label}. "${name}" was not written; try again.`
+          );
+        } else if (waiter) {
+          const w = waiter;
+          waiter = null;
+          w.resolve(d);
+          return;
+        } else {
+          // Pipelined small writes: a reply may come before anyone waits for it.
+          inbox.push(d);
+          return;
+        }
+        if (err) {
+          failure = err;
+          if (waiter) {
+            const w = waiter;
+            waiter = null;
+            w.reject(err);
+          }
+        }
+      });
+      const expect = (
+        future: { done: Promise<unknown> },
+        opName: string
+      ): Promise<Record<string, unknown>> =>
+        new Promise<Record<string, unknown>>((resolve, reject) => {
+          const queued = inbox.shift();
+          if (queued) {
+            if (queued.op === opName) {
+              resolve(queued);
+            } else {
+              reject(malformed(label));
+            }
+            return;
+          }
+          if (failure) {
+            reject(failure);
+            return;
+          }
+          waiter = {
+            resolve: d => (d.op === opName ? resolve(d) : reject(malformed(label))),
+            reject
+          };
+          future.done.then(
+            () => reject(malformed(label)),
+            () => undefined
+          );
+        });
+      const begin = channel.send(comm, op, {
+        req,
+        op: 'w-begin',
+        name,
+        shape: job.shape,
+        complex: job.complex,
+        nbytes: raw.byteLength,
+        overwrite: job.overwrite
+      });
+      const cs = this._limits.writeChunk;
+      // A small write goes in one burst (begin, data, end) without waiting for the kernel's
+      // answer to begin: one round trip. A large one waits, so that nothing is sent when the
+      // name needs confirmation.
+      const small = raw.byteLength <= cs;
+      if (!small) {
+        const begun = await Promise.race([expect(begin, 'w-begun'), op.promise]);
+        const early = parseWriteReply(begun, label);
+        if (early && 'conflict' in early) {
+          return early;
+        }
+      }
+      for (let offset = 0; offset < raw.byteLength; offset += cs) {
+        if (failure && !small) {
+          throw failure;
+        }
+        if (op.done) {
+          await op.promise;
+        }
+        // A standalone ArrayBuffer per chunk: @jupyterlab/services 7.6 serialises a view's
+        // whole underlying buffer, not the view.
+        const end = Math.min(offset + cs, raw.byteLength);
+        const chunk = raw.buffer.slice(
+          raw.byteOffset + offset,
+          raw.byteOffset + end
+        ) as ArrayBuffer;
+        channel.send(comm, op, { req, op: 'w-chunk', offset }, [chunk]);
+        // Let the socket drain so that memory stays bounded on large writes.
+        if (!small) {
+          await yieldToEventLoop();
+        }
+      }
+      const endF = channel.send(comm, op, { req, op: 'w-end' });
+      if (small) {
+        const begun = await Promise.race([expect(begin, 'w-begun'), op.promise]);
+        const early = parseWriteReply(begun, label);
+        if (early && 'conflict' in early) {
+          return early;
+        }
+      }
+      const ended = await Promise.race([expect(endF, 'w-ended'), op.promise]);
+      const r = parseWriteReply(ended, label);
+      if (!r) {
+        throw malformed(label);
+      }
+      return r;
+    } catch (e) {
+      if (channel.isCurrent(comm)) {
+        try {
+          comm.send({ req, op: 'w-abort' });
+        } catch {
+          // Best effort: the kernel drops stale staged writes on its own.
+        }
+      }
+      throw requests.translate(e, label);
+    } finally {
+      channel.unhandle(req);
+      requests.endOp(op);
+    }
+  }
+
+  /** Begin, chunks, end as helper calls in silent executes; a small write in one request. */
+  private async _writeBase64(job: WriteJob): Promise<WriteReply> {
+    const { name, shape, raw, label } = job;
+    const requests = this._requests;
+    const h = requests.nextId();
+    // 3 MiB of bytes is 4 MiB of base64: far below the 10 MiB message limit.
+    const cs = Math.min(this._limits.writeChunk, 3 * MiB);
+    const beginExpr = `${HELPER_REF}.w_begin(${h}, ${pyStringLiteral(name)}, [${shape.map(s => pyIntLiteral('shape', s)).join(', ')}], ${job.complex ? 'True' : 'False'}, ${raw.byteLength}, ${job.overwrite ? 'True' : 'False'})`;
+    const chunkExpr = (o: number): string =>
+      `${HELPER_REF}.w_chunk(${h}, ${o}, "${encodeBase64(raw.subarray(o, Math.min(o + cs, raw.byteLength)))}")`;
+    const checkChunk = (entry: unknown): void => {
+      const v = parseJsonExpression(entry, label);
+      if (!isRecord(v) || v.ok !== true) {
+        throw kernelRefusal(v, name, this._limits.maxBytesSetting);
+      }
+    };
+    if (raw.byteLength <= cs) {
+      // Small: begin, data and end in one request (evaluated in order; after a conflict the
+      // later two find no stage and are ignored).
+      const r = await requests.evaluate(label, {
+        b: beginExpr,
+        c: chunkExpr(0),
+        e: `${HELPER_REF}.w_end(${h})`
+      });
+      const b = parseWriteReply(parseJsonExpression(r.b, label), label);
+      if (b && 'conflict' in b) {
+        return b;
+      }
+      checkChunk(r.c);
+      const done = parseWriteReply(parseJsonExpression(r.e, label), label);
+      if (!done) {
+        throw malformed(label);
+      }
+      return done;
+    }
+    const begin = await requests.evaluate(label, { r: beginExpr });
+    const b = parseWriteReply(parseJsonExpression(begin.r, label), label);
+    if (b && 'conflict' in b) {
+      return b;
+    }
+    try {
+      const offsets: number[] = [];
+      for (let o = 0; o < raw.byteLength; o += cs) {
+        offsets.push(o);
+      }
+      // A few chunks in flight: the kernel decodes one while the next is on its way.
+      await inFlight(offsets, async o => {
+        const r = await requests.evaluate(label, { r: chunkExpr(o) });
+        checkChunk(r.r);
+      });
+      const end = await requests.evaluate(label, { r: `${HELPER_REF}.w_end(${h})` });
+      const r = parseWriteReply(parseJsonExpression(end.r, label), label);
+      if (!r) {
+        throw malformed(label);
+      }
+      return r;
+    } catch (e) {
+      requests.release(`${HELPER_REF}.w_abort(${h})`);
+      throw e;
+    }
+  }
+}
+
+function yieldToEventLoop(): Promise<void> {
+  return new Promise(resolve => setTimeout(resolve, 0));
+}
+
+/** Checks an {@link ArrayData} given to a write: a caller's mistake throws a TypeError/RangeError. */
+function validateArrayData(a: ArrayData): void {
+  if (!isRecord(a)) {
+    throw new TypeError(`array must be an ArrayData object, got ${typeof a}`);
+  }
+  if (!(a.data instanceof Float64Array)) {
+    throw new TypeError(
+      `array.data must be a Float64Array, got ${a.data === null ? 'null' : typeof a.data}`
+    );
+  }
+  const shape = a.shape;
+  if (!Array.isArray(shape) || shape.length < 1 || shape.length > 2) {
+    throw new RangeError(`array.shape must have 1 or 2 dimensions, got ${JSON.stringify(shape)}`);
+  }
+  for (const s of shape) {
+    if (typeof s !== 'number' || !Number.isSafeInteger(s) || s < 1) {
+      throw new RangeError(
+        `array.shape entries must be positive integers, got ${JSON.stringify(shape)}`
+      );
+    }
+  }
+  if (typeof a.complex !== 'boolean') {
+    throw new TypeError(`array.complex must be a boolean, got ${typeof a.complex}`);
+  }
+  const n = shape.reduce((x, y) => x * y, 1) * (a.complex ? 2 : 1);
+  if (n !== a.data.length) {
+    throw new RangeError(
+      `array.data has length ${a.data.length} but shape ${JSON.stringify(shape)}${a.complex ? ' (complex, interleaved)' : ''} needs ${n}`
+    );
+  }
+}
