@@ -1,0 +1,249 @@
+/**
+ * The workbench of one notebook, as a main-area widget: a row of tools to start a set-up, the
+ * set-ups with their runs on the left, and the editor or the chosen run on the right. It wires
+ * the views to the model and to the actions the plugin provides (write-back, confirmations);
+ * it computes nothing.
+ */
+import { BoxLayout, SplitPanel, Widget } from '@lumino/widgets';
+import type { TranslationBundle } from '@jupyterlab/translation';
+import { draftFor, type KernelHints, type WorkbenchDefaults } from '../../model/workbench/drafts';
+import { TOOL_LABELS } from '../../model/workbench/fields';
+import type { FieldIssue } from '../../model/workbench/rules';
+import { TOOLS, type SetupParams, type Tool } from '../../model/workbench/setup';
+import type { WorkbenchModel } from '../../model/workbench/workbench';
+import type { ISourceCatalog } from './catalog';
+import { RunDetail } from './run-detail';
+import { SetupEditor } from './setup-editor';
+import { SetupsView } from './setups-view';
+
+export class WorkbenchPanel extends Widget {
+  constructor(options: WorkbenchPanel.IOptions) {
+    super();
+    this.addClass('pp-Workbench');
+    this._trans = options.trans;
+    this._model = options.model;
+    this._host = options.host;
+    const trans = this._trans;
+
+    this._header = new Widget();
+    this._header.addClass('pp-Workbench-header');
+    this._problems = new Widget();
+    this._problems.addClass('pp-Workbench-problems');
+
+    this._list = new SetupsView({
+      trans,
+      model: this._model,
+      actions: {
+        run: id => void this._model.run(id),
+        cancelSetup: id => this._model.runsOf(id).forEach(r => this._model.cancel(r.id)),
+        edit: id => this.editSetup(id),
+        remove: id => void this._remove(id),
+        show: id => this.showRun(id)
+      }
+    });
+    this._editor = new SetupEditor({
+      trans,
+      catalog: options.catalog,
+      hints: () => this._host.hints(),
+      validate: p => this._model.validate(p),
+      save: (p, title, id, run) => this._save(p, title, id, run),
+      close: () => this._closeEditor()
+    });
+    this._detail = new RunDetail({
+      trans,
+      model: this._model,
+      actions: { writeArray: options.host.writeArray, writeRun: options.host.writeRun }
+    });
+    this._editor.hide();
+
+    const right = new Widget();
+    right.addClass('pp-Workbench-side');
+    const rightLayout = new BoxLayout({ direction: 'top-to-bottom', spacing: 0 });
+    rightLayout.addWidget(this._editor);
+    rightLayout.addWidget(this._detail);
+    right.layout = rightLayout;
+
+    const split = new SplitPanel({ orientation: 'horizontal', spacing: 1 });
+    split.addClass('pp-Workbench-split');
+    split.addWidget(this._list);
+    split.addWidget(right);
+    split.setRelativeSizes([1, 1]);
+
+    const layout = new BoxLayout({ direction: 'top-to-bottom', spacing: 0 });
+    BoxLayout.setStretch(this._header, 0);
+    BoxLayout.setStretch(this._problems, 0);
+    BoxLayout.setStretch(split, 1);
+    layout.addWidget(this._header);
+    layout.addWidget(this._problems);
+    layout.addWidget(split);
+    this.layout = layout;
+
+    this._defaults = options.defaults;
+    this._renderHeader();
+    this._renderProblems();
+    this._model.setupsChanged.connect(this._renderProblems, this);
+  }
+
+  get model(): WorkbenchModel {
+    return this._model;
+  }
+
+  /** Opens a new set-up of `tool` in the editor, with the defaults filled in. */
+  newSetup(tool: Tool): void {
+    const params = draftFor(tool, this._defaults(), this._hintsNow());
+    this._editor.edit(params, '', null);
+    this._showEditor();
+  }
+
+  /** Opens an existing set-up in the editor. */
+  editSetup(id: string): void {
+    const s = this._model.setup(id);
+    if (s) {
+      this._editor.edit(s.params, s.title, id);
+      this._showEditor();
+    }
+  }
+
+  /** Shows a run in the detail view. */
+  showRun(runId: string): void {
+    this._detail.runId = runId;
+    this._list.selectedRun = runId;
+  }
+
+  private _save(
+    params: SetupParams,
+    title: string,
+    id: string | null,
+    run: boolean
+  ): FieldIssue[] | null {
+    const name = title || this._trans.__(TOOL_LABELS[params.tool]);
+    let setupId = id;
+    if (id === null) {
+      const r = this._model.add(params, name);
+      if ('issues' in r) {
+        return r.issues;
+      }
+      setupId = r.id;
+    } else {
+      const issues = this._model.update(id, params, name);
+      if (issues.length > 0) {
+        return issues;
+      }
+    }
+    this._closeEditor();
+    if (run && setupId) {
+      const started = this._model.run(setupId);
+      // Show the newest run of this set-up as soon as it exists.
+      const newest = this._model.runsOf(setupId).slice(-1)[0];
+      if (newest) {
+        this.showRun(newest.id);
+      }
+      void started;
+    }
+    return null;
+  }
+
+  private async _remove(id: string): Promise<void> {
+    const s = this._model.setup(id);
+    if (s && (await this._host.confirmRemove(s.title || s.id))) {
+      this._model.remove(id);
+      if (this._editor.setupId === id) {
+        this._closeEditor();
+      }
+    }
+  }
+
+  private _showEditor(): void {
+    this._editor.show();
+    this._detail.hide();
+    this._editor.node.querySelector<HTMLElement>('input, select')?.focus();
+  }
+
+  private _closeEditor(): void {
+    this._editor.hide();
+    this._detail.show();
+  }
+
+  private _hintsNow(): KernelHints {
+    return this._host.hints();
+  }
+
+  private _renderHeader(): void {
+    const trans = this._trans;
+    const row = document.createElement('div');
+    row.className = 'pp-Workbench-tools';
+    row.setAttribute('role', 'toolbar');
+    row.setAttribute('aria-label', trans.__('Start a set-up'));
+    const lead = document.createElement('span');
+    lead.className = 'pp-Workbench-lead';
+    lead.textContent = trans.__('New set-up:');
+    row.append(lead);
+    for (const tool of TOOLS) {
+      const b = document.createElement('button');
+      b.type = 'button';
+      b.className = 'jp-Button jp-mod-styled jp-mod-reject pp-Workbench-tool';
+      b.dataset.tool = tool;
+      b.textContent = trans.__(TOOL_LABELS[tool]);
+      b.addEventListener('click', () => this.newSetup(tool));
+      row.append(b);
+    }
+    this._header.node.replaceChildren(row);
+  }
+
+  private _renderProblems(): void {
+    const problems = this._model.problems;
+    const node = this._problems.node;
+    if (problems.length === 0 && !this._model.readOnly) {
+      node.replaceChildren();
+      this._problems.hide();
+      return;
+    }
+    const trans = this._trans;
+    const head = document.createElement('strong');
+    head.textContent = this._model.readOnly
+      ? trans.__(
+          'The set-ups stored in this notebook could not be read; they are kept as they are and nothing new is saved into the notebook.'
+        )
+      : trans.__(
+          'Some stored set-ups could not be read and were left out (they stay in the notebook):'
+        );
+    const ul = document.createElement('ul');
+    for (const p of problems) {
+      const li = document.createElement('li');
+      li.textContent = p;
+      ul.append(li);
+    }
+    node.setAttribute('role', 'alert');
+    node.replaceChildren(head, ul);
+    this._problems.show();
+  }
+
+  private readonly _trans: TranslationBundle;
+  private readonly _model: WorkbenchModel;
+  private readonly _host: WorkbenchPanel.IHost;
+  private readonly _header: Widget;
+  private readonly _problems: Widget;
+  private readonly _list: SetupsView;
+  private readonly _editor: SetupEditor;
+  private readonly _detail: RunDetail;
+  private readonly _defaults: () => WorkbenchDefaults;
+}
+
+export namespace WorkbenchPanel {
+  /** What the panel needs from the application (dialogs, the kernel, the settings). */
+  export interface IHost {
+    /** Asks once before a set-up and its runs are removed. */
+    confirmRemove(title: string): Promise<boolean>;
+    writeArray(runId: string, key: string): void;
+    writeRun(runId: string): void;
+    /** What the kernel defines that new set-ups start from (fs, f0). */
+    hints(): KernelHints;
+  }
+  export interface IOptions {
+    trans: TranslationBundle;
+    model: WorkbenchModel;
+    catalog: ISourceCatalog;
+    host: IHost;
+    defaults: () => WorkbenchDefaults;
+  }
+}
