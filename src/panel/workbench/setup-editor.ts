@@ -17,7 +17,7 @@ import {
 } from '../../model/workbench/fields';
 import type { FieldIssue } from '../../model/workbench/rules';
 import type { RateRef, SetupParams, SourcePick } from '../../model/workbench/setup';
-import { refKey, type ISourceCatalog, type SourceOption } from './catalog';
+import { refKey, type ISourceCatalog, type SourceOption } from '../../model/workbench/catalog';
 import { formatShape } from '../format';
 
 /** The four ways a 2-D source can hold its samples (DESIGN §3: K×N, samples along the last axis). */

@@ -11,7 +11,7 @@ import { TOOL_LABELS } from '../../model/workbench/fields';
 import type { FieldIssue } from '../../model/workbench/rules';
 import { TOOLS, type SetupParams, type Tool } from '../../model/workbench/setup';
 import type { WorkbenchModel } from '../../model/workbench/workbench';
-import type { ISourceCatalog } from './catalog';
+import type { ISourceCatalog } from '../../model/workbench/catalog';
 import { RunDetail } from './run-detail';
 import { SetupEditor } from './setup-editor';
 import { SetupsView } from './setups-view';

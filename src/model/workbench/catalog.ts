@@ -3,7 +3,7 @@
  * results), as one list with labels the user recognises.
  */
 import type { ISignal } from '@lumino/signaling';
-import type { SourceRef } from '../../model/workbench/setup';
+import type { SourceRef } from './setup';
 
 export interface SourceOption {
   ref: SourceRef;
