@@ -68,9 +68,46 @@ cells = [
     ),
     (
         "code",
+        "link",
+        "# A QPSK link through a short complex channel, for the equalizer: 4000 unit-energy symbols\n"
+        "# (the first 500 are the training sequence), received with complex white noise.\n"
+        "n_sym = 4000\n"
+        "symbols = np.exp(1j * (np.pi / 4 + np.pi / 2 * rng.integers(0, 4, n_sym)))\n"
+        "channel = np.array([1.0, 0.35 - 0.2j, -0.12 + 0.08j])  # invented for the demo\n"
+        "noise = (rng.standard_normal(n_sym) + 1j * rng.standard_normal(n_sym)) * 0.03 / np.sqrt(2)\n"
+        "received = np.convolve(symbols, channel)[:n_sym] + noise\n"
+        "received",
+    ),
+    (
+        "code",
+        "array",
+        "# An 8-element line array at half-wavelength spacing: a wanted source at broadside and a\n"
+        "# jammer at 35 degrees, 2000 complex snapshots (sensors x snapshots). Steering vectors\n"
+        "# a_m = exp(-j 2 pi (d / wavelength) m sin(theta)), element 0 the phase reference.\n"
+        "n_el, n_snap, spacing, wavelength = 8, 2000, 0.5, 1.0\n"
+        "def steer(deg):\n"
+        "    return np.exp(-2j * np.pi * spacing / wavelength * np.arange(n_el) * np.sin(np.deg2rad(deg)))\n"
+        "wanted = 0.3 * np.exp(2j * np.pi * 0.01 * np.arange(n_snap))\n"
+        "jammer = 3.0 * (rng.standard_normal(n_snap) + 1j * rng.standard_normal(n_snap)) / np.sqrt(2)\n"
+        "sensors = np.outer(steer(0.0), wanted) + np.outer(steer(35.0), jammer)\n"
+        "sensors += 0.01 * (rng.standard_normal(sensors.shape) + 1j * rng.standard_normal(sensors.shape))\n"
+        "sensors.shape",
+    ),
+    (
+        "code",
+        "long",
+        "# A long record (1e6 samples, 250 s at fs) through the same 12-tap path, for long runs.\n"
+        "n_long = 1_000_000\n"
+        "long_reference = rng.standard_normal(n_long)\n"
+        "long_primary = np.convolve(long_reference, path)[:n_long] + 0.01 * rng.standard_normal(n_long)\n"
+        "long_primary.shape",
+    ),
+    (
+        "code",
         "summary",
         "{name: (a.shape, str(a.dtype)) for name, a in\n"
-        " dict(reference=reference, primary=primary, rail=rail, baseband=baseband).items()}",
+        " dict(reference=reference, primary=primary, rail=rail, baseband=baseband,\n"
+        "      symbols=symbols, received=received, sensors=sensors, long_primary=long_primary).items()}",
     ),
 ]
 
