@@ -15,8 +15,18 @@ import { checkInteger, describe } from './errors';
 
 export type Order = 'C' | 'F';
 
-/** Anything the friendly entry points accept as a matrix. */
-export type MatrixLike = Dense | AbstractMatrix | number[][];
+/**
+ * Anything the friendly entry points accept as a matrix: a `Dense` (1-D or 2-D), an ml-matrix
+ * `Matrix`, nested number arrays (rows), or a 1-D input — `number[]`, `Float64Array`,
+ * `Float32Array` — which counts as one column (real).
+ */
+export type MatrixLike =
+  | Dense
+  | AbstractMatrix
+  | readonly (readonly number[])[]
+  | readonly number[]
+  | Float64Array
+  | Float32Array;
 
 export class Dense {
   /** The underlying storage (interleaved re, im when `complex`). */
@@ -508,8 +518,9 @@ function finiteEntry(name: string, at: number[], v: unknown): number {
 }
 
 /**
- * Turns any accepted matrix input into a 2-D Dense (a 1-D Dense becomes a column). Nested arrays
- * and ml-matrix matrices are copied; a Dense is used as is (a view). Checks finiteness.
+ * Turns any accepted matrix input into a 2-D Dense (a 1-D input becomes a column). Nested arrays,
+ * typed arrays and ml-matrix matrices are copied; a Dense is used as is (a view). Checks
+ * finiteness. A value of another type is a TypeError naming `name`.
  */
 export function toDense(name: string, a: unknown): Dense {
   let d: Dense;
@@ -521,6 +532,11 @@ export function toDense(name: string, a: unknown): Dense {
     } catch (e) {
       throw rename(e, name);
     }
+  } else if (a instanceof Float64Array || a instanceof Float32Array) {
+    if (a.length === 0) {
+      throw new RangeError(`${name} is empty; give at least one element`);
+    }
+    d = new Dense(Float64Array.from(a), [a.length, 1], [1, 1]);
   } else if (Array.isArray(a)) {
     try {
       d = Dense.fromNested(a as number[][]).asColumn();
@@ -529,7 +545,8 @@ export function toDense(name: string, a: unknown): Dense {
     }
   } else {
     throw new TypeError(
-      `${name} must be a Dense array, an ml-matrix Matrix or nested number arrays, got ${describe(a)}`
+      `${name} must be a Dense array, an ml-matrix Matrix or nested number arrays, got ` +
+        `${describe(a)} (a 1-D number[], Float64Array or Float32Array also counts, as one column)`
     );
   }
   if (d.ndim !== 2) {
@@ -537,6 +554,28 @@ export function toDense(name: string, a: unknown): Dense {
   }
   checkFiniteDense(name, d);
   return d;
+}
+
+/**
+ * True when a `MatrixLike` input is 1-D (a 1-D Dense, a flat number[] or a typed array): the
+ * friendly functions then return a 1-D result where numpy would. Not part of the public API.
+ */
+export function isVectorInput(a: unknown): boolean {
+  if (a instanceof Dense) {
+    return a.ndim === 1;
+  }
+  if (a instanceof Float64Array || a instanceof Float32Array) {
+    return true;
+  }
+  return Array.isArray(a) && a.length > 0 && !Array.isArray(a[0]);
+}
+
+/** An n×1 result as a 1-D view of the same data (unchanged when it has more columns). */
+export function asVector(x: Dense): Dense {
+  if (x.ndim !== 2 || x.cols !== 1) {
+    return x;
+  }
+  return new Dense(x.data, [x.rows], [x.strides[0]], x.offset, x.complex);
 }
 
 function rename(e: unknown, name: string): unknown {
@@ -547,8 +586,16 @@ function rename(e: unknown, name: string): unknown {
   return e;
 }
 
-/** Throws a RangeError naming the first (i, j) that is NaN or ±Inf. */
-export function checkFiniteDense(name: string, a: Dense): void {
+/**
+ * Throws a RangeError naming the first (i, j) that is NaN or ±Inf. A value that is not a `Dense`
+ * is converted as every friendly entry point does (`toDense`), which checks it the same way or
+ * throws a TypeError naming `name`.
+ */
+export function checkFiniteDense(name: string, a: MatrixLike): void {
+  if (!(a instanceof Dense)) {
+    toDense(name, a);
+    return;
+  }
   if (a.isCContiguous() || a.isFContiguous()) {
     // One linear sweep over the buffer; only on failure find the first bad (i, j) in row order.
     const f = a.complex ? 2 : 1;

@@ -1,9 +1,18 @@
 /**
  * Perpend's numerical core: pure TypeScript on typed arrays, no DOM, no JupyterLab.
  * Runs in Node, the browser and a Web Worker. Each area keeps its own index file.
+ *
+ * Everything exported here is documented in the README's "Core API" section; the argument
+ * checks of `errors.ts` and the shape helpers of `dense.ts` not listed below are internal.
  */
-export * from './errors';
-export * from './dense';
+export {
+  Dense,
+  contiguousStrides,
+  toDense,
+  checkFiniteDense,
+  type MatrixLike,
+  type Order
+} from './dense';
 export * from './linalg';
 export * from './filters';
 export * from './metrics';

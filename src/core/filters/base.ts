@@ -144,8 +144,31 @@ export function resolveOptions(options: FilterOptions): ResolvedOptions {
   };
 }
 
-/** Turns an accepted input (typed array, number[], or a Dense array) into a flat typed array. */
-export function toFlat(name: string, a: unknown, f32: boolean, complex: boolean): Real {
+/**
+ * Turns an accepted input (typed array, number[], or a Dense array) into a flat typed array.
+ * With `rowLength` (the values of one regressor row), a list of rows — number[][] or typed
+ * arrays — is also accepted and flattened row by row; without it a list of rows is a TypeError
+ * that says the argument takes one flat signal.
+ */
+export function toFlat(
+  name: string,
+  a: unknown,
+  f32: boolean,
+  complex: boolean,
+  rowLength?: number
+): Real {
+  if (Array.isArray(a) && a.length > 0 && typeof a[0] !== 'number') {
+    if (rowLength === undefined || !(Array.isArray(a[0]) || ArrayBuffer.isView(a[0]))) {
+      throw new TypeError(
+        `${name} must be one flat signal (Float64Array, Float32Array, number[] or a 1-D Dense), ` +
+          `got an Array(${a.length}) whose first entry is ${describe(a[0])}` +
+          (Array.isArray(a[0]) || ArrayBuffer.isView(a[0])
+            ? "; rows are taken only as regressor rows (input: 'regressor') or as trials (runTrials)"
+            : '')
+      );
+    }
+    return flattenRows(name, a, rowLength, f32, complex);
+  }
   let src: ArrayLike<number>;
   if (a instanceof Dense) {
     if (a.complex !== complex) {
@@ -155,8 +178,15 @@ export function toFlat(name: string, a: unknown, f32: boolean, complex: boolean)
     }
     const c = a.isCContiguous() && a.offset === 0 ? a : a.copy('C');
     src = c.data.subarray(0, (complex ? 2 : 1) * c.size);
-  } else if (a instanceof Float64Array || a instanceof Float32Array || Array.isArray(a)) {
-    src = a as ArrayLike<number>;
+  } else if (a instanceof Float64Array || a instanceof Float32Array) {
+    src = a;
+  } else if (Array.isArray(a)) {
+    for (let i = 0; i < a.length; i++) {
+      if (typeof a[i] !== 'number') {
+        throw new TypeError(`${name}[${i}] must be a number, got ${describe(a[i])}`);
+      }
+    }
+    src = a as number[];
   } else {
     throw new TypeError(
       `${name} must be a Float64Array, Float32Array, number[] or Dense array, got ${describe(a)}`
@@ -166,6 +196,36 @@ export function toFlat(name: string, a: unknown, f32: boolean, complex: boolean)
     return src instanceof Float32Array ? src : Float32Array.from(src);
   }
   return src instanceof Float64Array ? src : Float64Array.from(src);
+}
+
+/** A list of rows (number[] or typed arrays) of `rowLength` values each, flattened in order. */
+function flattenRows(
+  name: string,
+  rows: unknown[],
+  rowLength: number,
+  f32: boolean,
+  complex: boolean
+): Real {
+  const out = f32
+    ? new Float32Array(rows.length * rowLength)
+    : new Float64Array(rows.length * rowLength);
+  for (let k = 0; k < rows.length; k++) {
+    const r = rows[k];
+    if (!(r instanceof Float64Array || r instanceof Float32Array || Array.isArray(r))) {
+      throw new TypeError(
+        `${name}[${k}] must be a row (Float64Array, Float32Array or number[]), got ${describe(r)}`
+      );
+    }
+    const row = toFlat(`${name}[${k}]`, r, f32, complex);
+    if (row.length !== rowLength) {
+      throw new RangeError(
+        `${name}[${k}] has ${row.length} values but each row must have ${rowLength}` +
+          (complex ? ' (interleaved re, im)' : '')
+      );
+    }
+    out.set(row, k * rowLength);
+  }
+  return out;
 }
 
 /** Base class: argument checks, buffers, trajectory bookkeeping and the health monitor. */
@@ -281,7 +341,7 @@ export abstract class AdaptiveFilter {
    */
   process(x: unknown, d: unknown, out: ChunkBuffers = {}): FilterChunk {
     const cx = this.complex;
-    const X = toFlat('x', x, this.f32, cx);
+    const X = toFlat('x', x, this.f32, cx, this.transversal ? undefined : this.weightLength);
     const D = toFlat('d', d, this.f32, cx);
     const w = cx ? 2 : 1;
     if (D.length % w !== 0) {

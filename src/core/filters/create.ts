@@ -49,7 +49,7 @@ export function runFilter(x: unknown, d: unknown, options: RunOptions): FilterRu
   const o = resolveOptions(options);
   const cx = o.complex;
   const f32 = o.precision === 'float32';
-  const X = toFlat('x', x, f32, cx);
+  const X = toFlat('x', x, f32, cx, o.input === 'regressor' ? (cx ? 2 : 1) * o.order : undefined);
   const D = toFlat('d', d, f32, cx);
   const W = cx ? 2 : 1;
   const N = D.length / W;

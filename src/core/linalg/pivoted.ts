@@ -205,27 +205,27 @@ export class PivotedQR extends HouseholderQR {
   readonly rank: number;
   /** The tolerance used for the rank decision. */
   readonly tol: number;
+  /**
+   * |r_ii|, i < min(m, n): the rank-revealing diagonal (non-increasing). A property, as on the
+   * results of `orth`, `nullSpace` and `lstsq`.
+   */
+  readonly diagonal: Float64Array;
 
   constructor(factors: Dense, tau: Float64Array, perm: Int32Array, tol: number) {
     super(factors, tau);
     this.perm = perm;
     this.tol = tol;
-    let r = 0;
     const k = Math.min(factors.rows, factors.cols);
-    while (r < k && Math.hypot(factors.get(r, r), factors.getIm(r, r)) > tol) {
+    const d = new Float64Array(k);
+    for (let i = 0; i < k; i++) {
+      d[i] = Math.hypot(factors.get(i, i), factors.getIm(i, i));
+    }
+    this.diagonal = d;
+    let r = 0;
+    while (r < k && d[r] > tol) {
       r++;
     }
     this.rank = r;
-  }
-
-  /** |r_ii|, i < min(m, n): the rank-revealing diagonal. */
-  diagonal(): Float64Array {
-    const k = this.k;
-    const d = new Float64Array(k);
-    for (let i = 0; i < k; i++) {
-      d[i] = Math.hypot(this.factors.get(i, i), this.factors.getIm(i, i));
-    }
-    return d;
   }
 
   /** The permutation as an n×n matrix P (A·P = Q·R). */

@@ -3,7 +3,7 @@
  * nested arrays). The factored form (reflectors + τ) is kept; R, the thin or full Q, and the
  * products Q·X and Qᴴ·X are computed on request without forming Q for the latter.
  */
-import { Dense, toDense, type MatrixLike } from '../dense';
+import { Dense, asVector, isVectorInput, toDense, type MatrixLike } from '../dense';
 import { dgeqrfCM, dormqrCM, dorgqrCM, zgeqrfCM, zungqrCM, zunmqrCM } from './householder';
 import { triangularCondition, type ConditionEstimate } from './triangular';
 
@@ -80,17 +80,21 @@ export class HouseholderQR {
   }
 
   /**
-   * Q·X (default) or Qᴴ·X (`adjoint: true`) for an m×p X (a 1-D X is a column), without forming
-   * Q. Returns a new column-major array; X is not modified.
+   * Q·X (default) or Qᴴ·X (`adjoint: true`) for an m×p X, without forming Q. Returns a new
+   * column-major array (1-D for a 1-D x); X is not modified.
    */
   applyQ(x: MatrixLike, options: { adjoint?: boolean } = {}): Dense {
-    const xd = toDense('x', x);
+    const out = this.applyQ2(toDense('x', x), options);
+    return isVectorInput(x) ? asVector(out) : out;
+  }
+
+  private applyQ2(xd: Dense, options: { adjoint?: boolean }): Dense {
     if (xd.rows !== this.m) {
       throw new RangeError(`x has ${xd.rows} rows but Q is ${this.m}x${this.m}; they must match`);
     }
     if (xd.complex && !this.complex) {
       // Q is real: apply it to the real and imaginary parts alike (same code path, complex Q).
-      return complexify(this).applyQ(xd, options);
+      return complexify(this).applyQ2(xd, options);
     }
     const c = this.complex && !xd.complex ? xd.toComplex().copy('F') : xd.copy('F');
     const lda = Math.max(1, this.m);

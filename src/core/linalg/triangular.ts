@@ -5,7 +5,7 @@
  * matrix, with applications to condition estimation", ACM TOMS 14, 1988, Algorithm 4.1 — the
  * estimator behind LAPACK's xLACN2 and xTRCON).
  */
-import { type Dense, toDense, type MatrixLike } from '../dense';
+import { type Dense, asVector, isVectorInput, toDense, type MatrixLike } from '../dense';
 
 export type Uplo = 'U' | 'L';
 export type Trans = 'N' | 'T' | 'C';
@@ -131,7 +131,7 @@ export interface TriangularOptions {
 
 /**
  * Solves op(T)·X = B for triangular T (n×n; only the chosen triangle is read) and B n×p (or a
- * 1-D b). Returns X; T and B are not modified. An exactly zero diagonal entry is a caller error
+ * 1-D b, which gives a 1-D x). Returns X; T and B are not modified. An exactly zero diagonal entry is a caller error
  * (the system has no unique solution) and throws a RangeError naming it.
  */
 export function solveTriangular(
@@ -179,7 +179,7 @@ export function solveTriangular(
       j * n
     );
   }
-  return x;
+  return isVectorInput(bIn) ? asVector(x) : x;
 }
 
 /**

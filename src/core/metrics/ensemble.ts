@@ -4,10 +4,11 @@
  * confidence band for the mean, mean ± z·s/√K (normal approximation to the sampling
  * distribution of the mean, adequate for K ≳ 30; common practice).
  */
-import { checkInteger, checkInterval } from '../errors';
+import { checkInteger, checkInterval, describe } from '../errors';
+import { Dense } from '../dense';
 import { movingAverage } from './learning';
 import { createFilter } from '../filters/create';
-import type { FilterOptions, Health } from '../filters/types';
+import type { FilterOptions, Health, Real } from '../filters/types';
 import { toFlat } from '../filters/base';
 
 export interface EnsembleCurve {
@@ -178,6 +179,11 @@ export interface TrialsResult {
 /**
  * Runs K independent filters on the rows of x (K×N; for regressor input K×N×M) and d (K×N) and
  * averages their learning curves. With `window`, each trial's curve is smoothed first.
+ *
+ * Accepted layouts for x and d (samples along the last axis, DESIGN §3): one flat array of K
+ * rows back to back (Float64Array, Float32Array or number[], C order), a list of K rows (typed
+ * arrays or number[]; for regressor input each row holds N·M values, row-major), or a Dense
+ * whose first axis is K. Anything else is an error that names the argument and the layout.
  */
 export function runTrials(
   x: unknown,
@@ -188,8 +194,8 @@ export function runTrials(
   checkInteger('K', K, 1);
   const filt = createFilter(options);
   const cx = filt.complex;
-  const X = toFlat('x', x, filt.f32, cx);
-  const D = toFlat('d', d, filt.f32, cx);
+  const X = trials('x', x, K, filt.f32, cx);
+  const D = trials('d', d, K, filt.f32, cx);
   if (D.length % K !== 0 || X.length % K !== 0) {
     throw new RangeError(
       `x (${X.length} values) and d (${D.length} values) must both hold K = ${K} rows`
@@ -216,4 +222,30 @@ export function runTrials(
     health.push(f.health());
   }
   return { curve: ensembleAverage(curves, { confidence: options.confidence }), weights, health };
+}
+
+/** K trials in one of runTrials' layouts, as one flat array of K rows back to back. */
+function trials(name: string, a: unknown, K: number, f32: boolean, complex: boolean): Real {
+  if (Array.isArray(a) && a.length > 0 && typeof a[0] !== 'number') {
+    if (a.length !== K) {
+      throw new RangeError(
+        `${name} is a list of ${a.length} rows but K = ${K}: give one row per trial`
+      );
+    }
+    const first = a[0] as unknown;
+    if (!(first instanceof Float64Array || first instanceof Float32Array || Array.isArray(first))) {
+      throw new TypeError(
+        `${name}[0] must be a row (Float64Array, Float32Array or number[]), got ${describe(first)}`
+      );
+    }
+    const len = (first as ArrayLike<number>).length;
+    return toFlat(name, a, f32, complex, len);
+  }
+  if (a instanceof Dense && a.ndim >= 2 && a.shape[0] !== K) {
+    throw new RangeError(
+      `${name} is a ${a.shape.join('×')} Dense array but K = ${K}: trials run along the first ` +
+        `axis (K×N, samples along the last axis); if the samples run down the columns, pass ${name}.T`
+    );
+  }
+  return toFlat(name, a, f32, complex);
 }

@@ -17,6 +17,19 @@ function checkArray(name: string, a: unknown): Arr {
       `${name} must be a Float64Array, Float32Array or number[], got ${describe(a)}`
     );
   }
+  if (Array.isArray(a)) {
+    // A list of rows (or anything but numbers) would turn into NaN silently below.
+    for (let i = 0; i < a.length; i++) {
+      if (typeof a[i] !== 'number') {
+        throw new TypeError(
+          `${name}[${i}] must be a number, got ${describe(a[i])}` +
+            (Array.isArray(a[i]) || ArrayBuffer.isView(a[i])
+              ? `: ${name} is one signal; for several trials use ensembleAverage`
+              : '')
+        );
+      }
+    }
+  }
   return a as Arr;
 }
 

@@ -14,6 +14,7 @@ import { Matrix, SingularValueDecomposition } from 'ml-matrix';
 import { Dense, toDense, type MatrixLike } from '../dense';
 import { householderQR } from '../linalg/qr';
 import { orth } from './basis';
+import { checkInteger } from '../errors';
 import type { PivotedQROptions } from '../linalg/pivoted';
 
 export interface PrincipalAngles {
@@ -92,10 +93,10 @@ export function principalAngles(
       w.set(r, j, re, im);
     }
   }
-  const cos = singularValues(mm, q); // descending
+  const cos = svdValues(mm, q); // descending
   // Singular values of the tall W via its q×q R factor (same singular values, small SVD).
   const wr = w.rows >= q ? householderQR(w).R() : w;
-  const sinDesc = singularValues(wr, q); // descending
+  const sinDesc = svdValues(wr, q); // descending
   const angles = new Float64Array(q);
   const cosines = new Float64Array(q);
   const sines = new Float64Array(q);
@@ -109,8 +110,17 @@ export function principalAngles(
   return { angles, cosines, sines, rankA, rankB };
 }
 
-/** The k largest singular values (descending) of a real or complex matrix, via ml-matrix. */
-export function singularValues(a: Dense, k = Math.min(a.rows, a.cols)): Float64Array {
+/**
+ * The k largest singular values (descending) of a real or complex matrix (any `MatrixLike`; a 1-D
+ * input is one column), via ml-matrix. k defaults to min(m, n) and must lie in [0, min(m, n)].
+ */
+export function singularValues(aIn: MatrixLike, k?: number): Float64Array {
+  const a = toDense('a', aIn);
+  const kmax = Math.min(a.rows, a.cols);
+  return svdValues(a, k === undefined ? kmax : checkInteger('k', k, 0, kmax));
+}
+
+function svdValues(a: Dense, k: number): Float64Array {
   const m = a.rows;
   const n = a.cols;
   let mat: Matrix;

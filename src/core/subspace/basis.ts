@@ -28,5 +28,5 @@ export function orth(b: MatrixLike, options: PivotedQROptions = {}): OrthResult 
   const q = f.Q();
   const basis =
     f.rank === q.cols ? q : new Dense(q.data, [q.rows, f.rank], q.strides, 0, q.complex);
-  return { basis, rank: f.rank, tol: f.tol, diagonal: f.diagonal(), perm: f.perm };
+  return { basis, rank: f.rank, tol: f.tol, diagonal: f.diagonal, perm: f.perm };
 }

@@ -16,14 +16,14 @@
  * comes out of the trailing updates — and the pivoted QR runs on the n×n R only (O(n³); at
  * 10000×50 about 0.15 ms of ≈ 20 ms), so a cheaper condition-estimate test first would not pay.
  */
-import { Dense, toDense, type MatrixLike } from '../dense';
+import { Dense, asVector, isVectorInput, toDense, type MatrixLike } from '../dense';
 import { dgeqrfCM, dormqrCM, zgeqrfCM, zunmqrCM } from '../linalg/householder';
 import { dgeqp3CM, zgeqp3CM } from '../linalg/pivoted';
 import { dtrsv, ztrsv } from '../linalg/triangular';
 import { checkNumber } from '../errors';
 
 export interface LeastSquaresResult {
-  /** n×p solution (a 1-D b gives n×1). Minimum-norm when rank < n. */
+  /** n×p solution for an m×p b; a 1-D b gives a 1-D x of length n. Minimum-norm when rank < n. */
   x: Dense;
   /** Numerical rank of A. */
   rank: number;
@@ -190,7 +190,7 @@ export function lstsq(
     }
   }
   const residualNorm = residuals(a0, b0, x, complex);
-  return { x, rank, tol, residualNorm, diagonal: diag };
+  return { x: isVectorInput(bIn) ? asVector(x) : x, rank, tol, residualNorm, diagonal: diag };
 }
 
 /** [A b] as one column-major m×(n+p) array (complex when either is). */

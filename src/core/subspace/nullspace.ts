@@ -70,7 +70,7 @@ export function nullSpace(aIn: MatrixLike, options: NullSpaceOptions = {}): Null
     residual,
     relativeResidual: relative,
     tol: f.tol,
-    diagonal: f.diagonal()
+    diagonal: f.diagonal
   };
 }
 

@@ -7,7 +7,7 @@
  * The energy report gives, per basis direction k, E_k = Σ_j |q_kᴴ x_j|², whose sum is the removed
  * (projected) energy because the q_k are orthonormal (Pythagoras).
  */
-import { Dense, toDense, type MatrixLike } from '../dense';
+import { Dense, asVector, isVectorInput, toDense, type MatrixLike } from '../dense';
 import { describe } from '../errors';
 import { orth } from './basis';
 import type { PivotedQROptions } from '../linalg/pivoted';
@@ -413,7 +413,7 @@ export interface ProjectOptions extends PivotedQROptions {
 }
 
 export interface ProjectionResult {
-  /** Same shape (and C/F order when contiguous) as x. */
+  /** Same shape (and C/F order when contiguous) as x: a 1-D x gives a 1-D output. */
   output: Dense;
   /** The orthonormal basis used (m×rank). */
   basis: Dense;
@@ -482,8 +482,8 @@ function project(
     out.offset,
     energy
   );
-  const inputEnergy = sumSquares(xx);
-  const outputEnergy = sumSquares(out);
+  const inputEnergy = sumSq(xx);
+  const outputEnergy = sumSq(out);
   let projected = 0;
   for (const e of energy) {
     projected += e;
@@ -498,7 +498,7 @@ function project(
     supp[k] = silent ? 0 : 10 * Math.log10(inputEnergy / Math.max(inputEnergy - energy[k], 0));
   }
   return {
-    output: outFull,
+    output: isVectorInput(xIn) ? asVector(outFull) : outFull,
     basis: q,
     rank,
     energy: {
@@ -535,8 +535,12 @@ export function projectOnto(
   return project('onto', basis, x, options);
 }
 
-/** Σ|a_ij|² of a 1-D or 2-D array (any strides). */
-export function sumSquares(a: Dense): number {
+/** Σ|a_ij|² of a 1-D or 2-D array (any `MatrixLike`; a Dense at any strides, not copied). */
+export function sumSquares(a: MatrixLike): number {
+  return sumSq(toDense('a', a));
+}
+
+function sumSq(a: Dense): number {
   const m = a.rows;
   const n = a.cols;
   const s0 = a.strides[0];
@@ -577,9 +581,9 @@ export function suppression(
   const a = after.cols === 1 ? after.transpose() : after;
   const perRow = new Float64Array(b.rows);
   for (let i = 0; i < b.rows; i++) {
-    perRow[i] = 10 * Math.log10(sumSquares(b.row(i)) / sumSquares(a.row(i)));
+    perRow[i] = 10 * Math.log10(sumSq(b.row(i)) / sumSq(a.row(i)));
   }
-  const eb = sumSquares(b);
-  const ea = sumSquares(a);
+  const eb = sumSq(b);
+  const ea = sumSq(a);
   return { before: eb, after: ea, db: 10 * Math.log10(eb / ea), perRowDb: perRow };
 }

@@ -37,7 +37,7 @@ describe.each([false, true])('pivoted QR ratio tests (complex: %s)', complex => 
       const q = f.Q();
       mf = Math.max(mf, ratioFactor(permuteColumns(a, f.perm), matmul(q, f.R())));
       mo = Math.max(mo, ratioOrth(q));
-      const d = f.diagonal();
+      const d = f.diagonal;
       for (let i = 1; i < d.length; i++) {
         // |r_ii| non-increasing up to the downdating's rounding (relative 1e-10 slack)
         expect(d[i]).toBeLessThanOrEqual(d[i - 1] * (1 + 1e-10) + 1e-300);
@@ -68,8 +68,8 @@ describe('rank decision', () => {
     ];
     const f = pivotedQR(a);
     expect(f.rank).toBe(2);
-    expect(f.tol).toBeCloseTo(4 * Number.EPSILON * f.diagonal()[0], 30);
-    expect(f.diagonal()[2]).toBeLessThanOrEqual(f.tol);
+    expect(f.tol).toBeCloseTo(4 * Number.EPSILON * f.diagonal[0], 30);
+    expect(f.diagonal[2]).toBeLessThanOrEqual(f.tol);
   });
   test('an overridden tolerance moves the rank across a clear gap', () => {
     const a = Dense.fromNested([

@@ -94,7 +94,7 @@ test('pivoted QR: ratios < 30, |r_ii| non-increasing, perm a permutation', () =>
           ap.set(i, j, a.get(i, f.perm[j]), a.getIm(i, f.perm[j]));
         }
       }
-      const d = f.diagonal();
+      const d = f.diagonal;
       for (let i = 1; i < d.length; i++) {
         if (d[i] > d[i - 1] * (1 + 1e-10)) {
           return false;
