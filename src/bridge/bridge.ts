@@ -12,11 +12,14 @@
  * | writing arrays | `write.ts` (`conflicts.ts`: confirming a taken name) |
  * | checking replies; the helper's refusals | `replies.ts`, `refusals.ts` |
  * | the data types | `types.ts` |
+ * | the translation bundle (English by default) | `i18n.ts` |
  */
 import type { Kernel } from '@jupyterlab/services';
+import type { ITranslator } from '@jupyterlab/translation';
 import type { IDisposable } from '@lumino/disposable';
 import { Signal, type ISignal } from '@lumino/signaling';
 import { CommChannel, type Transport } from './comm';
+import { bridgeBundle } from './i18n';
 import type { SessionLedger } from './ledger';
 import { ArrayLister } from './listing';
 import { ArrayReader } from './read';
@@ -55,6 +58,11 @@ export namespace KernelBridge {
     readChunkBytes?: number;
     /** Bytes per binary chunk, Perpend to kernel (kept far below 10 MiB). Default 4 MiB. */
     writeChunkBytes?: number;
+    /**
+     * Translates every sentence the bridge makes (errors, notes, questions, warnings, activity
+     * labels), domain 'perpend'. Default: English, as JupyterLab's `nullTranslator` gives.
+     */
+    translator?: ITranslator;
   }
 
   /** What the bridge is doing, for the panel's status line. */
@@ -84,8 +92,11 @@ export class KernelBridge implements IDisposable {
       writeChunk: clampChunk('writeChunkBytes', options.writeChunkBytes ?? 4 * MiB, 8 * MiB)
     };
     const ledger = options.ledger ?? null;
-    this._requests = new KernelRequests(options.kernel, timeoutMs, a =>
-      this._activityChanged.emit(a)
+    this._requests = new KernelRequests(
+      options.kernel,
+      timeoutMs,
+      bridgeBundle(options.translator),
+      a => this._activityChanged.emit(a)
     );
     this._channel = new CommChannel(this._requests, transport);
     const verifier = new CellVerifier(this._requests, ledger);

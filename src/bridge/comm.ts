@@ -51,13 +51,13 @@ export class CommChannel {
       return this._ready;
     }
     const requests = this._requests;
+    const trans = requests.trans;
+    const label = trans.__('opening the data channel');
     const ready = (async () => {
-      const r = await requests.evaluate('opening the data channel', {
-        r: `${HELPER_REF}.HAS_COMM`
-      });
+      const r = await requests.evaluate(label, { r: `${HELPER_REF}.HAS_COMM` });
       const has = r.r;
       if (!isRecord(has) || !isRecord(has.data) || has.data['text/plain'] !== 'True') {
-        throw new BridgeError('comm-closed', 'The kernel has no comm support.');
+        throw new BridgeError('comm-closed', trans.__('The kernel has no comm support.'));
       }
       const comm = requests.kernel.createComm(COMM_TARGET);
       // @jupyterlab/services 7.6 sends comm messages over a kernel subshell (JEP 91) by
@@ -67,7 +67,7 @@ export class CommChannel {
       // the comm's asynchronous subshell start-up checks it.
       comm.commsOverSubshells = 'disabled' as CommsOverSubshells;
       this._comm = comm;
-      const op = requests.newOp('opening the data channel');
+      const op = requests.newOp(label);
       try {
         const opened = new Promise<void>((resolve, reject) => {
           comm.onMsg = msg => {
@@ -79,7 +79,9 @@ export class CommChannel {
             this._onMsg(msg);
           };
           comm.onClose = () => {
-            reject(new BridgeError('comm-closed', "The kernel refused Perpend's data channel."));
+            reject(
+              new BridgeError('comm-closed', trans.__("The kernel refused Perpend's data channel."))
+            );
             this._onClosed(comm);
           };
         });
@@ -99,7 +101,7 @@ export class CommChannel {
           this._comm = null;
           this._ready = null;
         }
-        throw requests.translate(e, 'opening the data channel');
+        throw requests.toBridgeError(e, label);
       } finally {
         requests.endOp(op);
       }
@@ -145,7 +147,7 @@ export class CommChannel {
     };
     future.onReply = msg => {
       if ((msg.content as { status?: string }).status === 'aborted') {
-        op.fail(aborted(op.label));
+        op.fail(aborted(this._requests.trans, op.label));
       }
     };
     return future;

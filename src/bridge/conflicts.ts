@@ -4,6 +4,7 @@
  * is not written and the user is asked with the sentence made here. After a write, the
  * warnings say what was replaced or shadowed.
  */
+import type { TranslationBundle } from '@jupyterlab/translation';
 import { isRecord, malformed } from './replies';
 import { refusalOf } from './refusals';
 import type { WriteConflict, WriteResult } from './types';
@@ -26,49 +27,69 @@ export function parseConflict(c: unknown): WriteConflict | null {
  * One reply of a write step: `{ conflict }` (nothing written), `{ was }` (written; what the
  * name held before), or null for a step that only says ok. A refusal throws.
  */
-export function parseWriteReply(v: unknown, label: string): WriteReply | null {
+export function parseWriteReply(
+  trans: TranslationBundle,
+  v: unknown,
+  label: string
+): WriteReply | null {
   if (!isRecord(v)) {
-    throw malformed(label);
+    throw malformed(trans, label);
   }
   if (typeof v.error === 'string') {
-    throw refusalOf(v.error, v.detail, label, 'maxArrayMiB');
+    throw refusalOf(trans, v.error, v.detail, label, 'maxArrayMiB');
   }
   if ('conflict' in v) {
     const c = parseConflict(v.conflict);
     if (!c) {
-      throw malformed(label);
+      throw malformed(trans, label);
     }
     return { conflict: c };
   }
   if (v.written === true) {
     const c = parseConflict(v.was);
     if (!c) {
-      throw malformed(label);
+      throw malformed(trans, label);
     }
     return { was: c };
   }
   if (v.ok === true) {
     return null;
   }
-  throw malformed(label);
+  throw malformed(trans, label);
 }
 
 /** The question for the user when `name` is taken or shadows a builtin. */
-export function conflictResult(name: string, c: WriteConflict): WriteResult {
+export function conflictResult(
+  trans: TranslationBundle,
+  name: string,
+  c: WriteConflict
+): WriteResult {
   if (c.exists) {
-    const what = c.module ? `the module ${c.module}` : `a ${c.existingType ?? 'value'}`;
     return {
       status: 'exists',
       name,
       conflict: c,
-      message: `"${name}" already exists in the kernel (it holds ${what}). Overwrite it?`
+      message: c.module
+        ? trans.__(
+            '"%1" already exists in the kernel (it holds the module %2). Overwrite it?',
+            name,
+            c.module
+          )
+        : trans.__(
+            '"%1" already exists in the kernel (it holds a %2). Overwrite it?',
+            name,
+            c.existingType ?? trans.__('value')
+          )
     };
   }
   return {
     status: 'shadows',
     name,
     conflict: c,
-    message: `"${name}" is a Python builtin; writing the array would hide it in this notebook. Write anyway?`
+    message: trans.__(
+      '"%1" is a Python builtin; writing the array would hide it in this notebook. Write anyway?',
+      name
+    )
   };
 }
 
@@ -76,20 +97,30 @@ export function conflictResult(name: string, c: WriteConflict): WriteResult {
  * What the user should know after a write to `name`: the NFKC form was used (`renamed`), or
  * a module, value or builtin was replaced or shadowed (`was`).
  */
-export function writtenWarnings(name: string, renamed: boolean, was: WriteConflict): string[] {
+export function writtenWarnings(
+  trans: TranslationBundle,
+  name: string,
+  renamed: boolean,
+  was: WriteConflict
+): string[] {
   const warnings: string[] = [];
   if (renamed) {
     warnings.push(
-      `Written as "${name}", the form Python itself uses for the name you typed (NFKC normalisation).`
+      trans.__(
+        'Written as "%1", the form Python itself uses for the name you typed (NFKC normalisation).',
+        name
+      )
     );
   }
   if (was.module) {
-    warnings.push(`"${name}" was the module ${was.module}; it is now the array.`);
+    warnings.push(trans.__('"%1" was the module %2; it is now the array.', name, was.module));
   } else if (was.exists) {
-    warnings.push(`"${name}" held a ${was.existingType ?? 'value'}; it was replaced.`);
+    warnings.push(
+      trans.__('"%1" held a %2; it was replaced.', name, was.existingType ?? trans.__('value'))
+    );
   }
   if (was.builtin) {
-    warnings.push(`"${name}" now shadows the Python builtin of that name.`);
+    warnings.push(trans.__('"%1" now shadows the Python builtin of that name.', name));
   }
   return warnings;
 }

@@ -1,6 +1,7 @@
 /**
- * Failures of the kernel bridge. Each carries a stable `code` for the panel's logic and an
- * English `message` written for the user (what happened, what was kept, what to do).
+ * Failures of the kernel bridge. Each carries a stable `code` for the panel's logic and a
+ * `message` written for the user (what happened, what was kept, what to do), in the language
+ * of the bridge's translator (English by default).
  */
 export type BridgeErrorCode =
   /** No reply within the timeout after the kernel started the request. */

@@ -13,7 +13,7 @@
  * ```ts
  * const ledger = new SessionLedger();
  * const watch = watchKernelExecutions(kernel, ledger); // dispose with the bridge
- * const bridge = new KernelBridge({ kernel, ledger, timeoutMs, maxBytes, maxBytesSetting: 'maxArrayMiB' });
+ * const bridge = new KernelBridge({ kernel, ledger, timeoutMs, maxBytes, maxBytesSetting: 'maxArrayMiB', translator });
  * bridge.activityChanged.connect((_, a) => status.show(a.state, a.label)); // 'waiting' | 'running' | 'idle'
  * const cells = notebook.widgets.map(c => ({ cellId: c.model.id, executionCount: c.model.executionCount }));
  * const infos = [...await bridge.listCellResults(cells), ...await bridge.listVariables()];
@@ -33,11 +33,14 @@
  *   `idle`; while the kernel is busy a listing waits for idle and concurrent calls share one
  *   request, so calling on every event is cheap.
  * - Every failure is a {@link BridgeError}: show `e.message` (plain text, written for the
- *   user, never HTML) and keep what the panel already shows. `e.code` is for logic, e.g.
+ *   user, never HTML) and keep what the panel already shows. Every sentence the bridge makes
+ *   (errors, notes, the question on a taken name, warnings, activity labels) goes through the
+ *   `translator` option (domain 'perpend'); without one the bridge speaks English. `e.code` is for logic, e.g.
  *   `too-large` (offer the setting), `stale-count` (offer the variable), `unsupported-kernel`
  *   / `dead` (fall back to the parsers below).
- * - Cell results come from IPython's output cache: show {@link CACHE_NOTES} (`reference`
- *   beside each, `notCached` when a cell the user picks is not listed).
+ * - Cell results come from IPython's output cache: show {@link cacheNotes}`(trans)` (English:
+ *   {@link CACHE_NOTES}; `reference` beside each, `notCached` when a cell the user picks is
+ *   not listed).
  * - Sample rate: `bridge.readScalar('fs')` or `bridge.readScalar('rec.fs')`.
  * - Settings the bridge expects (the lead's schema): a timeout in ms (counted from the
  *   kernel starting the request, not from queueing) and a size limit (default 512 MiB);
@@ -62,7 +65,8 @@
  * when listing.
  */
 export { KernelBridge } from './bridge';
-export { CACHE_NOTES } from './notes';
+export { CACHE_NOTES, cacheNotes, type CacheNotes } from './notes';
+export { TRANSLATION_DOMAIN, bridgeBundle, englishTranslator } from './i18n';
 export type {
   ArrayData,
   ArrayInfo,

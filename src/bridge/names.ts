@@ -6,7 +6,14 @@
  * §2.3 "Identifiers and keywords", which applies NFKC while parsing), so a full-width "ｘ" is
  * the same name as "x". Every other string reaches kernel code only as a literal produced by
  * {@link pyStringLiteral}, which emits printable ASCII and escapes.
+ *
+ * The reasons a name is refused are shown to the user (a name typed for a write, a sample-rate
+ * path): they go through the translation bundle given, English by default.
  */
+import type { TranslationBundle } from '@jupyterlab/translation';
+import { bridgeBundle } from './i18n';
+
+const ENGLISH = bridgeBundle();
 
 /**
  * Python 3.11+ hard keywords ("Python Language Reference" §2.3.1). Soft keywords (match, case,
@@ -69,37 +76,48 @@ export type NameCheck =
  * Normalises `raw` with NFKC and checks it is a Python identifier and not a keyword.
  * `changed` tells when the normalised form differs from what was typed (a look-alike).
  */
-export function normalizeIdentifier(raw: unknown): NameCheck {
+export function normalizeIdentifier(raw: unknown, trans: TranslationBundle = ENGLISH): NameCheck {
   if (typeof raw !== 'string') {
-    return { ok: false, reason: `a name must be a string, got ${typeof raw}` };
+    return { ok: false, reason: trans.__('a name must be a string, got %1', typeof raw) };
   }
   const name = raw.normalize('NFKC');
   if (name.length === 0) {
-    return { ok: false, reason: 'the name is empty' };
+    return { ok: false, reason: trans.__('the name is empty') };
   }
   if (name.length > MAX_NAME_LENGTH) {
-    return { ok: false, reason: `the name is longer than ${MAX_NAME_LENGTH} characters` };
+    return {
+      ok: false,
+      reason: trans.__('the name is longer than %1 characters', MAX_NAME_LENGTH)
+    };
   }
   // Unicode 15.1 added ZWNJ/ZWJ to ID_Continue; Python (Unicode ≤ 15.0) refuses them.
   if (!IDENTIFIER.test(name) || /[\u200C\u200D]/.test(name)) {
     return {
       ok: false,
-      reason: `${JSON.stringify(raw.slice(0, 40))} is not a Python identifier (letters, digits and _ only, not starting with a digit)`
+      reason: trans.__(
+        '%1 is not a Python identifier (letters, digits and _ only, not starting with a digit)',
+        JSON.stringify(raw.slice(0, 40))
+      )
     };
   }
   if (PYTHON_KEYWORDS.has(name)) {
-    return { ok: false, reason: `"${name}" is a Python keyword` };
+    return { ok: false, reason: trans.__('"%1" is a Python keyword', name) };
   }
   return { ok: true, name, changed: name !== raw };
 }
 
 /**
- * Returns the NFKC-normalised identifier or throws a TypeError naming the argument and value.
+ * Returns the NFKC-normalised identifier or throws a TypeError naming the argument and value
+ * (in the language of `trans`).
  */
-export function checkIdentifier(argName: string, raw: unknown): string {
-  const r = normalizeIdentifier(raw);
+export function checkIdentifier(
+  argName: string,
+  raw: unknown,
+  trans: TranslationBundle = ENGLISH
+): string {
+  const r = normalizeIdentifier(raw, trans);
   if (!r.ok) {
-    throw new TypeError(`${argName} is not a valid Python name: ${r.reason}`);
+    throw new TypeError(trans.__('%1 is not a valid Python name: %2', argName, r.reason));
   }
   return r.name;
 }

@@ -3,6 +3,7 @@
  * (its `busy` status), not from queueing behind a running cell; progress restarts the clock.
  * A request the kernel never starts while idle is taken as lost after the same time.
  */
+import type { TranslationBundle } from '@jupyterlab/translation';
 import { BridgeError } from './errors';
 
 /** One request in flight: its state, its timeout, and how to fail it. */
@@ -17,6 +18,7 @@ export class Op {
   constructor(
     readonly label: string,
     private readonly _timeoutMs: number,
+    private readonly _trans: TranslationBundle,
     private readonly _changed: () => void
   ) {
     // Rejected by the bridge on timeout or kernel events; raced against the real work.
@@ -55,7 +57,11 @@ export class Op {
       this.fail(
         new BridgeError(
           'timeout',
-          `The kernel did not answer within ${Math.round(this._timeoutMs / 1000)} s while ${this.label}. Nothing in the panel was changed; try again, or raise the timeout in the settings.`
+          this._trans.__(
+            'The kernel did not answer within %1 s while %2. Nothing in the panel was changed; try again, or raise the timeout in the settings.',
+            Math.round(this._timeoutMs / 1000),
+            this.label
+          )
         )
       );
     }, this._timeoutMs);
@@ -73,7 +79,11 @@ export class Op {
       this.fail(
         new BridgeError(
           'timeout',
-          `The kernel is idle but never started ${this.label} (${Math.round(this._timeoutMs / 1000)} s). The request was probably lost; nothing in the panel was changed; try again.`
+          this._trans.__(
+            'The kernel is idle but never started %1 (%2 s). The request was probably lost; nothing in the panel was changed; try again.',
+            this.label,
+            Math.round(this._timeoutMs / 1000)
+          )
         )
       );
     }, this._timeoutMs);

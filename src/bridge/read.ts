@@ -4,6 +4,7 @@
  * complex128) in chunks, over the comm as binary buffers or as base64 in silent executes.
  * Every header and chunk is checked against the others before its bytes are used.
  */
+import type { TranslationBundle } from '@jupyterlab/translation';
 import { decodeBase64Into } from './base64';
 import type { CommChannel } from './comm';
 import { BridgeError } from './errors';
@@ -32,10 +33,15 @@ export class ArrayReader {
     private readonly _ledger: SessionLedger | null
   ) {}
 
+  /** The bundle every sentence goes through. */
+  private get _trans(): TranslationBundle {
+    return this._requests.trans;
+  }
+
   /** See `KernelBridge.readArray`. */
   async read(source: ArraySource): Promise<ArrayData> {
     const src = this._sourceLiteral(source);
-    const label = `reading ${sourceLabel(source)}`;
+    const label = this._trans.__('reading %1', sourceLabel(source));
     if (await this._channel.use()) {
       return this._readComm(src.json, label, source);
     }
@@ -44,24 +50,31 @@ export class ArrayReader {
 
   /** See `KernelBridge.readScalar`. */
   async readScalar(path: string): Promise<number> {
+    // The path may be typed by the user (a sample rate's variable): its errors are translated.
+    const trans = this._trans;
     if (typeof path !== 'string') {
-      throw new TypeError(`path must be a string, got ${typeof path}`);
+      throw new TypeError(trans.__('path must be a string, got %1', typeof path));
     }
-    const parts = path.split('.').map((p, i) => checkIdentifier(`path part ${i + 1}`, p.trim()));
+    const parts = path
+      .split('.')
+      .map((p, i) => checkIdentifier(trans.__('path part %1', i + 1), p.trim(), trans));
     if (parts.length > 4) {
-      throw new RangeError(`path must have at most 4 parts, got ${parts.length}`);
+      throw new RangeError(trans.__('path must have at most 4 parts, got %1', parts.length));
     }
     const dunder = parts.slice(1).find(p => p.startsWith('__'));
     if (dunder !== undefined) {
-      throw new TypeError(`path must not reach private attributes, got ${JSON.stringify(dunder)}`);
+      throw new TypeError(
+        trans.__('path must not reach private attributes, got %1', JSON.stringify(dunder))
+      );
     }
     const expr = `${HELPER_REF}.read_scalar([${parts.map(pyStringLiteral).join(', ')}])`;
-    const r = await this._requests.evaluate(`reading ${parts.join('.')}`, { r: expr });
-    const v = parseJsonExpression(r.r, `reading ${parts.join('.')}`);
+    const label = trans.__('reading %1', parts.join('.'));
+    const r = await this._requests.evaluate(label, { r: expr });
+    const v = parseJsonExpression(trans, r.r, label);
     if (isRecord(v) && typeof v.value === 'number') {
       return v.value;
     }
-    throw kernelRefusal(v, parts.join('.'), this._limits.maxBytesSetting);
+    throw kernelRefusal(trans, v, parts.join('.'), this._limits.maxBytesSetting);
   }
 
   /** The source as the comm's JSON and as a Python literal, after its checks. */
@@ -70,7 +83,7 @@ export class ArrayReader {
       throw new TypeError(`source must be an ArraySource, got ${typeof source}`);
     }
     if (source.kind === 'variable') {
-      const name = checkIdentifier('source.name', source.name);
+      const name = checkIdentifier('source.name', source.name, this._trans);
       return {
         json: { kind: 'variable', name },
         py: `{"kind": "variable", "name": ${pyStringLiteral(name)}}`
@@ -84,7 +97,10 @@ export class ArrayReader {
       if (this._ledger && !this._ledger.trusts(source.cellId, n)) {
         throw new BridgeError(
           'stale-count',
-          `The result Out[${n}] shown in the notebook was not produced by the kernel running now (it was restarted or changed since), so it cannot be read. Run the cell again, or pick a variable.`
+          this._trans.__(
+            'The result Out[%1] shown in the notebook was not produced by the kernel running now (it was restarted or changed since), so it cannot be read. Run the cell again, or pick a variable.',
+            n
+          )
         );
       }
       return { json: { kind: 'cell', n }, py: `{"kind": "cell", "n": ${n}}` };
@@ -101,6 +117,7 @@ export class ArrayReader {
     original: ArraySource
   ): Promise<ArrayData> {
     const requests = this._requests;
+    const trans = requests.trans;
     const channel = this._channel;
     const limits = this._limits;
     const comm = await channel.open();
@@ -119,7 +136,7 @@ export class ArrayReader {
           try {
             switch (d.op) {
               case 'header': {
-                head = parseHeader(d, limits.maxBytes, label);
+                head = parseHeader(trans, d, limits.maxBytes, label);
                 if (head.chunks > 1) {
                   out = new Float64Array(head.nbytes / 8);
                   bytes = new Uint8Array(out.buffer);
@@ -141,12 +158,12 @@ export class ArrayReader {
                   offset !== i * head.chunk ||
                   buffers.length !== 1
                 ) {
-                  throw malformed(label);
+                  throw malformed(trans, label);
                 }
                 const b = buffers[0];
                 const expect = Math.min(head.chunk, head.nbytes - offset);
                 if (b.byteLength !== expect) {
-                  throw malformed(label);
+                  throw malformed(trans, label);
                 }
                 if (bytes) {
                   bytes.set(new Uint8Array(b.buffer, b.byteOffset, b.byteLength), offset);
@@ -165,20 +182,23 @@ export class ArrayReader {
               }
               case 'end': {
                 if (!head || !out || received !== head.nbytes) {
-                  throw malformed(label);
+                  throw malformed(trans, label);
                 }
                 resolve({ data: out, shape: head.shape, complex: head.complex, dtype: head.dtype });
                 return;
               }
               case 'error':
-                throw refusalOf(d.code, d.detail, what, limits.maxBytesSetting);
+                throw refusalOf(trans, d.code, d.detail, what, limits.maxBytesSetting);
               case 'closed':
                 throw new BridgeError(
                   'comm-closed',
-                  `The kernel closed Perpend's data channel while ${label}. Nothing in the panel was changed; try again (Perpend reopens it).`
+                  trans.__(
+                    "The kernel closed Perpend's data channel while %1. Nothing in the panel was changed; try again (Perpend reopens it).",
+                    label
+                  )
                 );
               default:
-                throw malformed(label);
+                throw malformed(trans, label);
             }
           } catch (e) {
             channel.unhandle(req);
@@ -198,7 +218,10 @@ export class ArrayReader {
             reject(
               new BridgeError(
                 'malformed',
-                `The kernel finished ${label} without sending the whole array (was it interrupted?). Nothing in the panel was changed; try again.`
+                trans.__(
+                  'The kernel finished %1 without sending the whole array (was it interrupted?). Nothing in the panel was changed; try again.',
+                  label
+                )
               )
             );
           },
@@ -207,7 +230,7 @@ export class ArrayReader {
       });
       return await Promise.race([work, op.promise]);
     } catch (e) {
-      throw requests.translate(e, label);
+      throw requests.toBridgeError(e, label);
     } finally {
       channel.unhandle(req);
       requests.endOp(op);
@@ -217,6 +240,7 @@ export class ArrayReader {
   /** A staged copy in the kernel, fetched as base64 a chunk per user expression. */
   private async _readBase64(src: string, label: string, original: ArraySource): Promise<ArrayData> {
     const requests = this._requests;
+    const trans = requests.trans;
     const limits = this._limits;
     const h = requests.nextId();
     const what = sourceLabel(original);
@@ -227,13 +251,14 @@ export class ArrayReader {
       r: `${HELPER_REF}.b64_open(${h}, ${src}, ${pyIntLiteral('maxBytes', limits.maxBytes)})`,
       c: `${HELPER_REF}.b64_chunk(${h}, 0, ${cs}, True)`
     });
-    const head0 = parseJsonExpression(openR.r, label);
+    const head0 = parseJsonExpression(trans, openR.r, label);
     if (isRecord(head0) && typeof head0.error === 'string') {
-      throw refusalOf(head0.error, head0.detail, what, limits.maxBytesSetting);
+      throw refusalOf(trans, head0.error, head0.detail, what, limits.maxBytesSetting);
     }
     let closed = false;
     try {
       const head = parseHeader(
+        trans,
         {
           ...(head0 as object),
           chunk: cs,
@@ -251,21 +276,24 @@ export class ArrayReader {
       closed = offsets.length === 0;
       const put = (entry: unknown, o: number): void => {
         const size = Math.min(cs, head.nbytes - o);
-        const text = plainText(entry, label);
+        const text = plainText(trans, entry, label);
         if (text.startsWith('{')) {
           throw new BridgeError(
             'malformed',
-            `The kernel lost the staged array while ${label} (was the helper reset?). Try again.`
+            trans.__(
+              'The kernel lost the staged array while %1 (was the helper reset?). Try again.',
+              label
+            )
           );
         }
         let n: number;
         try {
           n = decodeBase64Into(text, bytes, o);
         } catch {
-          throw malformed(label);
+          throw malformed(trans, label);
         }
         if (n !== size) {
-          throw malformed(label);
+          throw malformed(trans, label);
         }
       };
       put(openR.c, 0);

@@ -3,6 +3,7 @@
  * anything in it is used, and a reply that does not fit becomes a `malformed` BridgeError.
  * Output content is parsed (JSON of the helper's own making, or its fields), never evaluated.
  */
+import type { TranslationBundle } from '@jupyterlab/translation';
 import { BridgeError } from './errors';
 import type { ArraySource } from './types';
 
@@ -24,59 +25,80 @@ export function sourceLabel(s: ArraySource): string {
 }
 
 /** The error for a reply that does not have the expected form, while `what`. */
-export function malformed(what: string): BridgeError {
+export function malformed(trans: TranslationBundle, what: string): BridgeError {
   return new BridgeError(
     'malformed',
-    `The kernel's reply while ${what} was not in the form Perpend expects, so it was ignored. Nothing in the panel was changed. (Was Perpend's helper in the kernel changed?)`
+    trans.__(
+      "The kernel's reply while %1 was not in the form Perpend expects, so it was ignored. Nothing in the panel was changed. (Was Perpend's helper in the kernel changed?)",
+      what
+    )
   );
 }
 
 /** The error for a request the kernel dropped (a cell queued before it failed). */
-export function aborted(label: string): BridgeError {
+export function aborted(trans: TranslationBundle, label: string): BridgeError {
   return new BridgeError(
     'aborted',
-    `The kernel dropped the request (${label}) because a cell queued before it failed or was interrupted. Nothing in the panel was changed; try again.`
+    trans.__(
+      'The kernel dropped the request (%1) because a cell queued before it failed or was interrupted. Nothing in the panel was changed; try again.',
+      label
+    )
   );
 }
 
 /** An exception the kernel raised (an execute reply or a user expression with `ename`). */
-export function kernelException(content: Record<string, unknown>, label: string): BridgeError {
+export function kernelException(
+  trans: TranslationBundle,
+  content: Record<string, unknown>,
+  label: string
+): BridgeError {
   const ename = typeof content.ename === 'string' ? content.ename.slice(0, 60) : 'Error';
   if (ename === 'KeyboardInterrupt') {
     return new BridgeError(
       'interrupted',
-      `The kernel was interrupted while ${label}. Nothing in the panel was changed.`
+      trans.__('The kernel was interrupted while %1. Nothing in the panel was changed.', label)
     );
   }
   const evalue = typeof content.evalue === 'string' ? content.evalue.slice(0, 200) : '';
   return new BridgeError(
     'kernel-error',
-    `The kernel raised ${ename} while ${label}${evalue ? `: ${evalue}` : ''}. Nothing in the panel was changed.`
+    evalue
+      ? trans.__(
+          'The kernel raised %1 while %2: %3. Nothing in the panel was changed.',
+          ename,
+          label,
+          evalue
+        )
+      : trans.__('The kernel raised %1 while %2. Nothing in the panel was changed.', ename, label)
   );
 }
 
 /** The text/plain of one user expression result, or a BridgeError. */
-export function plainText(entry: unknown, label: string): string {
+export function plainText(trans: TranslationBundle, entry: unknown, label: string): string {
   if (!isRecord(entry)) {
-    throw malformed(label);
+    throw malformed(trans, label);
   }
   if (entry.status === 'error') {
-    throw kernelException(entry, label);
+    throw kernelException(trans, entry, label);
   }
   const data = entry.data;
   if (entry.status !== 'ok' || !isRecord(data) || typeof data['text/plain'] !== 'string') {
-    throw malformed(label);
+    throw malformed(trans, label);
   }
   return data['text/plain'];
 }
 
 /** A user expression whose text/plain is the helper's JSON, parsed. */
-export function parseJsonExpression(entry: unknown, label: string): unknown {
-  const text = plainText(entry, label);
+export function parseJsonExpression(
+  trans: TranslationBundle,
+  entry: unknown,
+  label: string
+): unknown {
+  const text = plainText(trans, entry, label);
   try {
     return JSON.parse(text);
   } catch {
-    throw malformed(label);
+    throw malformed(trans, label);
   }
 }
 
@@ -108,6 +130,7 @@ export interface TransferHeader {
  * real value, 16 a complex one), chunk count matching the chunk size, within `maxBytes`.
  */
 export function parseHeader(
+  trans: TranslationBundle,
   d: Record<string, unknown>,
   maxBytes: number,
   label: string
@@ -128,7 +151,7 @@ export function parseHeader(
     !Number.isSafeInteger(chunk) ||
     chunk <= 0
   ) {
-    throw malformed(label);
+    throw malformed(trans, label);
   }
   const elements = shape.reduce((a, b) => a * b, 1);
   if (
@@ -136,10 +159,10 @@ export function parseHeader(
     nbytes === 0 ||
     Math.ceil(nbytes / chunk) !== chunks
   ) {
-    throw malformed(label);
+    throw malformed(trans, label);
   }
   if (nbytes > maxBytes) {
-    throw malformed(label);
+    throw malformed(trans, label);
   }
   return { shape: shape.slice(), dtype, complex, nbytes, chunks, chunk };
 }

@@ -5,6 +5,7 @@
  * the session fails every pending one with a sentence saying what happened.
  */
 import type { Kernel, KernelMessage } from '@jupyterlab/services';
+import type { TranslationBundle } from '@jupyterlab/translation';
 import { Signal, type ISignal } from '@lumino/signaling';
 import { BridgeError, type BridgeErrorCode } from './errors';
 import { installCode } from './helper';
@@ -56,11 +57,13 @@ export class KernelRequests {
    * @param kernel - the notebook's kernel connection.
    * @param timeoutMs - the longest silence once the kernel started a request (the bridge
    *   validates it and may change it later through {@link timeoutMs}).
+   * @param trans - the bundle every sentence of the bridge goes through.
    * @param onActivity - called on every change of {@link activity}.
    */
   constructor(
     readonly kernel: Kernel.IKernelConnection,
     public timeoutMs: number,
+    readonly trans: TranslationBundle,
     private readonly _onActivity: (a: KernelRequests.IActivity) => void
   ) {
     this._shellBusy = kernel.status === 'busy';
@@ -102,7 +105,10 @@ export class KernelRequests {
       return;
     }
     this._disposed = true;
-    this._failAll('disposed', 'Perpend stopped talking to this kernel (the bridge was closed).');
+    this._failAll(
+      'disposed',
+      this.trans.__('Perpend stopped talking to this kernel (the bridge was closed).')
+    );
     this.kernel.statusChanged.disconnect(this._onStatus, this);
     this.kernel.iopubMessage.disconnect(this._onIOPub, this);
     this.kernel.connectionStatusChanged.disconnect(this._onConnection, this);
@@ -117,7 +123,7 @@ export class KernelRequests {
 
   /** A new request: tracked as activity until {@link endOp}. */
   newOp(label: string): Op {
-    const op = new Op(label, this.timeoutMs, () => this._emitActivity());
+    const op = new Op(label, this.timeoutMs, this.trans, () => this._emitActivity());
     this._ops.add(op);
     if (!this._shellBusy && this.kernel.status === 'idle') {
       op.armGuard();
@@ -138,13 +144,15 @@ export class KernelRequests {
     if (this._disposed) {
       throw new BridgeError(
         'disposed',
-        'Perpend stopped talking to this kernel (the bridge was closed).'
+        this.trans.__('Perpend stopped talking to this kernel (the bridge was closed).')
       );
     }
     if (this.kernel.isDisposed || this.kernel.status === 'dead') {
       throw new BridgeError(
         'dead',
-        'The kernel is not running. Start or restart it, then try again; the panel keeps what it has.'
+        this.trans.__(
+          'The kernel is not running. Start or restart it, then try again; the panel keeps what it has.'
+        )
       );
     }
   }
@@ -162,9 +170,9 @@ export class KernelRequests {
       try {
         await this._whenIdle(label);
         const r = await this.evaluate(label, { r: expr });
-        const v = parseJsonExpression(r.r, label);
+        const v = parseJsonExpression(this.trans, r.r, label);
         if (!isRecord(v)) {
-          throw malformed(label);
+          throw malformed(this.trans, label);
         }
         return v;
       } finally {
@@ -221,18 +229,18 @@ export class KernelRequests {
           this.endOp(op);
           return this.evaluate(label, expressions, false);
         }
-        throw aborted(label);
+        throw aborted(this.trans, label);
       }
       if (content.status === 'error') {
-        throw kernelException(content, label);
+        throw kernelException(this.trans, content, label);
       }
       const exprs = content.user_expressions;
       if (!isRecord(exprs)) {
-        throw malformed(label);
+        throw malformed(this.trans, label);
       }
       return exprs;
     } catch (e) {
-      throw this.translate(e, label);
+      throw this.toBridgeError(e, label);
     } finally {
       this.endOp(op);
     }
@@ -265,26 +273,33 @@ export class KernelRequests {
   }
 
   /** Any failure while `label` as a BridgeError that says what happened. */
-  translate(e: unknown, label: string): BridgeError {
+  toBridgeError(e: unknown, label: string): BridgeError {
     if (e instanceof BridgeError) {
       return e;
     }
     if (this.kernel.isDisposed || this.kernel.status === 'dead') {
       return new BridgeError(
         'dead',
-        `The kernel died while ${label}. Nothing in the panel was changed.`
+        this.trans.__('The kernel died while %1. Nothing in the panel was changed.', label)
       );
     }
     const text = e instanceof Error ? e.message : String(e);
     if (/cancel/i.test(text)) {
       return new BridgeError(
         'restarted',
-        `The kernel restarted or disconnected while ${label}. Nothing in the panel was changed; try again.`
+        this.trans.__(
+          'The kernel restarted or disconnected while %1. Nothing in the panel was changed; try again.',
+          label
+        )
       );
     }
     return new BridgeError(
       'disconnected',
-      `The request failed while ${label}: ${text.slice(0, 200)}. Nothing in the panel was changed.`
+      this.trans.__(
+        'The request failed while %1: %2. Nothing in the panel was changed.',
+        label,
+        text.slice(0, 200)
+      )
     );
   }
 
@@ -335,7 +350,10 @@ export class KernelRequests {
     if (this._language !== 'python' && this._language !== '') {
       throw new BridgeError(
         'unsupported-kernel',
-        `This notebook's kernel runs ${this._language.slice(0, 40)}, not Python: Perpend can only read arrays from the notebook's outputs.`
+        this.trans.__(
+          "This notebook's kernel runs %1, not Python: Perpend can only read arrays from the notebook's outputs.",
+          this._language.slice(0, 40)
+        )
       );
     }
   }
@@ -362,7 +380,9 @@ export class KernelRequests {
         }
         this._failAll(
           'restarted',
-          "The kernel restarted before the request finished. Nothing in the panel was changed; the kernel's variables are gone, so run the cells again."
+          this.trans.__(
+            "The kernel restarted before the request finished. Nothing in the panel was changed; the kernel's variables are gone, so run the cells again."
+          )
         );
       }, 0);
     } else if (status === 'autorestarting') {
@@ -370,13 +390,17 @@ export class KernelRequests {
       this._shellBusy = false;
       this._failAll(
         'dead',
-        "The kernel died before the request finished and the server restarted it. Nothing in the panel was changed; the kernel's variables are gone, so run the cells again."
+        this.trans.__(
+          "The kernel died before the request finished and the server restarted it. Nothing in the panel was changed; the kernel's variables are gone, so run the cells again."
+        )
       );
     } else if (status === 'dead') {
       this._reset.emit('lost');
       this._failAll(
         'dead',
-        'The kernel died before the request finished. Nothing in the panel was changed; restart the kernel and run the cells again.'
+        this.trans.__(
+          'The kernel died before the request finished. Nothing in the panel was changed; restart the kernel and run the cells again.'
+        )
       );
     }
   }
@@ -416,14 +440,19 @@ export class KernelRequests {
       this._shellBusy = false;
       this._failAll(
         'disconnected',
-        'The connection to the Jupyter server dropped before the request finished. Nothing in the panel was changed; try again when the kernel is connected.'
+        this.trans.__(
+          'The connection to the Jupyter server dropped before the request finished. Nothing in the panel was changed; try again when the kernel is connected.'
+        )
       );
     }
   }
 
   private _onKernelDisposed(): void {
     this._reset.emit('lost');
-    this._failAll('dead', 'The kernel connection was closed. Nothing in the panel was changed.');
+    this._failAll(
+      'dead',
+      this.trans.__('The kernel connection was closed. Nothing in the panel was changed.')
+    );
   }
 
   private _failAll(code: BridgeErrorCode, message: string): void {

@@ -111,7 +111,8 @@ export class CellVerifier {
     const claims = ask.map(
       a => `[${pyIntLiteral('executionCount', a.n)}, ${pyStringLiteral(a.digest)}]`
     );
-    const label = 'checking cells against the kernel history';
+    const trans = this._requests.trans;
+    const label = trans.__('checking cells against the kernel history');
     const reply = await this._requests.listing(
       'verify:' + ask.map(a => `${a.n}:${a.digest}`).join(','),
       label,
@@ -120,7 +121,7 @@ export class CellVerifier {
     const aligned = (reply as { aligned?: unknown }).aligned;
     const entries = (reply as { cells?: unknown }).cells;
     if (typeof aligned !== 'boolean' || !Array.isArray(entries)) {
-      throw malformed(label);
+      throw malformed(trans, label);
     }
     const answers = new Map<string, boolean | null>();
     for (const e of entries) {
@@ -130,7 +131,7 @@ export class CellVerifier {
         typeof e.d !== 'string' ||
         !(e.match === true || e.match === false || e.match === null)
       ) {
-        throw malformed(label);
+        throw malformed(trans, label);
       }
       answers.set(`${e.n}:${e.d}`, e.match);
     }

@@ -43,11 +43,12 @@ export class ArrayWriter {
     array: ArrayData,
     options: { overwrite?: boolean } = {}
   ): Promise<WriteResult> {
-    const check = normalizeIdentifier(name);
+    const trans = this._requests.trans;
+    const check = normalizeIdentifier(name, trans);
     if (!check.ok) {
       throw new BridgeError(
         'invalid-name',
-        `Cannot write to ${JSON.stringify(String(name).slice(0, 40))}: ${check.reason}.`
+        trans.__('Cannot write to %1: %2.', JSON.stringify(String(name).slice(0, 40)), check.reason)
       );
     }
     const pyName = check.name;
@@ -58,15 +59,15 @@ export class ArrayWriter {
       complex: array.complex,
       raw: new Uint8Array(array.data.buffer, array.data.byteOffset, array.data.byteLength),
       overwrite: options.overwrite === true,
-      label: `writing ${pyName}`
+      label: trans.__('writing %1', pyName)
     };
     const outcome = (await this._channel.use())
       ? await this._writeComm(job)
       : await this._writeBase64(job);
     if ('conflict' in outcome) {
-      return conflictResult(pyName, outcome.conflict);
+      return conflictResult(trans, pyName, outcome.conflict);
     }
-    const warnings = writtenWarnings(pyName, check.changed, outcome.was);
+    const warnings = writtenWarnings(trans, pyName, check.changed, outcome.was);
     return { status: 'written', name: pyName, bytes: job.raw.byteLength, warnings };
   }
 
@@ -74,6 +75,7 @@ export class ArrayWriter {
   private async _writeComm(job: WriteJob): Promise<WriteReply> {
     const { name, raw, label } = job;
     const requests = this._requests;
+    const trans = requests.trans;
     const channel = this._channel;
     const comm = await channel.open();
     const req = requests.nextId();
@@ -89,11 +91,15 @@ export class ArrayWriter {
         op.touch();
         let err: BridgeError | null = null;
         if (d.op === 'error') {
-          err = refusalOf(d.code, d.detail, name, this._limits.maxBytesSetting);
+          err = refusalOf(trans, d.code, d.detail, name, this._limits.maxBytesSetting);
         } else if (d.op === 'closed') {
           err = new BridgeError(
             'comm-closed',
-            `The kernel closed Perpend's data channel while ${label}. "${name}" was not written; try again.`
+            trans.__(
+              'The kernel closed Perpend\'s data channel while %1. "%2" was not written; try again.',
+              label,
+              name
+            )
           );
         } else if (waiter) {
           const w = waiter;
@@ -124,7 +130,7 @@ export class ArrayWriter {
             if (queued.op === opName) {
               resolve(queued);
             } else {
-              reject(malformed(label));
+              reject(malformed(trans, label));
             }
             return;
           }
@@ -133,11 +139,11 @@ export class ArrayWriter {
             return;
           }
           waiter = {
-            resolve: d => (d.op === opName ? resolve(d) : reject(malformed(label))),
+            resolve: d => (d.op === opName ? resolve(d) : reject(malformed(trans, label))),
             reject
           };
           future.done.then(
-            () => reject(malformed(label)),
+            () => reject(malformed(trans, label)),
             () => undefined
           );
         });
@@ -157,7 +163,7 @@ export class ArrayWriter {
       const small = raw.byteLength <= cs;
       if (!small) {
         const begun = await Promise.race([expect(begin, 'w-begun'), op.promise]);
-        const early = parseWriteReply(begun, label);
+        const early = parseWriteReply(trans, begun, label);
         if (early && 'conflict' in early) {
           return early;
         }
@@ -185,15 +191,15 @@ export class ArrayWriter {
       const endF = channel.send(comm, op, { req, op: 'w-end' });
       if (small) {
         const begun = await Promise.race([expect(begin, 'w-begun'), op.promise]);
-        const early = parseWriteReply(begun, label);
+        const early = parseWriteReply(trans, begun, label);
         if (early && 'conflict' in early) {
           return early;
         }
       }
       const ended = await Promise.race([expect(endF, 'w-ended'), op.promise]);
-      const r = parseWriteReply(ended, label);
+      const r = parseWriteReply(trans, ended, label);
       if (!r) {
-        throw malformed(label);
+        throw malformed(trans, label);
       }
       return r;
     } catch (e) {
@@ -204,7 +210,7 @@ export class ArrayWriter {
           // Best effort: the kernel drops stale staged writes on its own.
         }
       }
-      throw requests.translate(e, label);
+      throw requests.toBridgeError(e, label);
     } finally {
       channel.unhandle(req);
       requests.endOp(op);
@@ -215,6 +221,7 @@ export class ArrayWriter {
   private async _writeBase64(job: WriteJob): Promise<WriteReply> {
     const { name, shape, raw, label } = job;
     const requests = this._requests;
+    const trans = requests.trans;
     const h = requests.nextId();
     // 3 MiB of bytes is 4 MiB of base64: far below the 10 MiB message limit.
     const cs = Math.min(this._limits.writeChunk, 3 * MiB);
@@ -222,9 +229,9 @@ export class ArrayWriter {
     const chunkExpr = (o: number): string =>
       `${HELPER_REF}.w_chunk(${h}, ${o}, "${encodeBase64(raw.subarray(o, Math.min(o + cs, raw.byteLength)))}")`;
     const checkChunk = (entry: unknown): void => {
-      const v = parseJsonExpression(entry, label);
+      const v = parseJsonExpression(trans, entry, label);
       if (!isRecord(v) || v.ok !== true) {
-        throw kernelRefusal(v, name, this._limits.maxBytesSetting);
+        throw kernelRefusal(trans, v, name, this._limits.maxBytesSetting);
       }
     };
     if (raw.byteLength <= cs) {
@@ -235,19 +242,19 @@ export class ArrayWriter {
         c: chunkExpr(0),
         e: `${HELPER_REF}.w_end(${h})`
       });
-      const b = parseWriteReply(parseJsonExpression(r.b, label), label);
+      const b = parseWriteReply(trans, parseJsonExpression(trans, r.b, label), label);
       if (b && 'conflict' in b) {
         return b;
       }
       checkChunk(r.c);
-      const done = parseWriteReply(parseJsonExpression(r.e, label), label);
+      const done = parseWriteReply(trans, parseJsonExpression(trans, r.e, label), label);
       if (!done) {
-        throw malformed(label);
+        throw malformed(trans, label);
       }
       return done;
     }
     const begin = await requests.evaluate(label, { r: beginExpr });
-    const b = parseWriteReply(parseJsonExpression(begin.r, label), label);
+    const b = parseWriteReply(trans, parseJsonExpression(trans, begin.r, label), label);
     if (b && 'conflict' in b) {
       return b;
     }
@@ -262,9 +269,9 @@ export class ArrayWriter {
         checkChunk(r.r);
       });
       const end = await requests.evaluate(label, { r: `${HELPER_REF}.w_end(${h})` });
-      const r = parseWriteReply(parseJsonExpression(end.r, label), label);
+      const r = parseWriteReply(trans, parseJsonExpression(trans, end.r, label), label);
       if (!r) {
-        throw malformed(label);
+        throw malformed(trans, label);
       }
       return r;
     } catch (e) {
