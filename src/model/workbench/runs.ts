@@ -44,6 +44,13 @@ export interface Run {
   readonly messages: ReadonlyArray<string>;
   readonly figures: ReadonlyArray<RunFigure>;
   readonly arrays: Readonly<Record<string, ResultArray>>;
+  /**
+   * The arrays read from the kernel for this run, by set-up field (`x`, `d`, `signal`), shared
+   * with the other runs of a sweep and never copied: the plots draw results against them.
+   */
+  readonly inputs: Readonly<Record<string, ResultArray>>;
+  /** The sample rate the run used (Hz), or null. */
+  readonly fs: number | null;
   /** Date.now() when it started. */
   readonly startedAt: number;
   /** Time spent reading from the kernel and computing, ms (null until known). */

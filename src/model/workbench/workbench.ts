@@ -12,6 +12,7 @@ import {
   runLabel,
   type IRunner,
   type IWorkbenchReader,
+  type ResultArray,
   type Run,
   type RunHandle,
   type RunInputs,
@@ -168,9 +169,10 @@ export class WorkbenchModel {
       s.params.tool === 'sweep'
         ? expandSweep(s.params.base, s.params.parameter, s.params.values)
         : [s.params];
-    const runs = list.map(p => this._startRun(s, p));
-    await Promise.all(runs.map(r => this._done.get(r.id)));
-    runs.forEach(r => this._done.delete(r.id));
+    const runs = list.map(p => this._newRun(s, p));
+    // One read serves every run of a sweep (they share their sources).
+    const read = this._read(runs[0].params);
+    await Promise.all(runs.map(r => this._execute(r, read)));
     return runs.map(r => this._run(r.id) ?? r);
   }
 
@@ -192,7 +194,7 @@ export class WorkbenchModel {
     }
     this._handles.get(runId)?.cancel();
     this._handles.delete(runId);
-    this._set(runId, { status: 'cancelled', progress: 0, arrays: {}, figures: [] });
+    this._set(runId, { status: 'cancelled', progress: 0, arrays: {}, figures: [], inputs: {} });
   }
 
   /** Cancels every run in flight. */
@@ -257,7 +259,7 @@ export class WorkbenchModel {
     Signal.clearData(this);
   }
 
-  private _startRun(s: Setup, params: Exclude<SetupParams, { tool: 'sweep' }>): Run {
+  private _newRun(s: Setup, params: Exclude<SetupParams, { tool: 'sweep' }>): Run {
     const run: Run = {
       id: `r${++this._runCount}`,
       setupId: s.id,
@@ -268,6 +270,8 @@ export class WorkbenchModel {
       messages: [],
       figures: [],
       arrays: {},
+      inputs: {},
+      fs: null,
       startedAt: Date.now(),
       readMs: null,
       computeMs: null
@@ -279,23 +283,22 @@ export class WorkbenchModel {
       this._runs = this._runs.filter(r => !drop.has(r.id));
     }
     this._runChanged.emit(run);
-    this._done.set(run.id, this._execute(run));
     return run;
   }
 
-  private async _execute(run: Run): Promise<void> {
+  private async _execute(run: Run, read: Promise<RunInputs>): Promise<void> {
     const t0 = Date.now();
     let inputs: RunInputs;
     try {
-      inputs = await this._read(run.params);
+      inputs = await read;
     } catch (e) {
       if (this._live(run.id, 'reading')) {
         this._set(run.id, { status: 'failed', messages: [messageOf(e)], readMs: Date.now() - t0 });
       }
-      return this._finish(run.id);
+      return;
     }
     if (!this._live(run.id, 'reading')) {
-      return this._finish(run.id);
+      return;
     }
     // Checked again on what was read: the kernel may have changed since the form was checked.
     const issues = checkSources(this._trans, run.params, ref => {
@@ -308,15 +311,20 @@ export class WorkbenchModel {
         messages: issues.map(i => i.message),
         readMs: Date.now() - t0
       });
-      return this._finish(run.id);
+      return;
     }
-    this._set(run.id, { status: 'running', readMs: Date.now() - t0 });
+    this._set(run.id, {
+      status: 'running',
+      readMs: Date.now() - t0,
+      inputs: inputsOf(this._trans, run.params, inputs),
+      fs: inputs.fs
+    });
     let handle: RunHandle;
     try {
       handle = this._runner.start(run.params, inputs, f => this._progress(run.id, f));
     } catch (e) {
       this._set(run.id, { status: 'failed', messages: [messageOf(e)] });
-      return this._finish(run.id);
+      return;
     }
     this._handles.set(run.id, handle);
     let out: RunOutcome;
@@ -328,16 +336,16 @@ export class WorkbenchModel {
     this._handles.delete(run.id);
     if (this._live(run.id, 'running')) {
       const prior = this._run(run.id)!.messages;
+      const cancelled = out.status === 'cancelled';
       this._set(run.id, {
         status: out.status,
-        progress: out.status === 'cancelled' ? 0 : 1,
+        progress: cancelled ? 0 : 1,
         messages: [...prior, ...out.messages],
-        figures: out.status === 'cancelled' ? [] : out.figures,
-        arrays: out.status === 'cancelled' ? {} : out.arrays,
+        figures: cancelled ? [] : out.figures,
+        arrays: cancelled ? {} : out.arrays,
         computeMs: out.computeMs
       });
     }
-    this._finish(run.id);
   }
 
   /** Reads every source and the sample rate. Throws with a sentence naming what failed. */
@@ -388,10 +396,6 @@ export class WorkbenchModel {
     if (r && r.status === 'running' && Math.floor(f * 100) !== Math.floor(r.progress * 100)) {
       this._set(id, { progress: Math.min(1, Math.max(0, f)) });
     }
-  }
-
-  private _finish(id: string): void {
-    this._handles.delete(id);
   }
 
   private _live(id: string, status: Run['status']): boolean {
@@ -454,7 +458,6 @@ export class WorkbenchModel {
   private _runCount = 0;
   private _disposed = false;
   private readonly _handles = new Map<string, RunHandle>();
-  private readonly _done = new Map<string, Promise<void>>();
   private readonly _follow = new Map<string, ReturnType<typeof setTimeout>>();
   private readonly _setupsChanged = new Signal<this, void>(this);
   private readonly _runChanged = new Signal<this, Run>(this);
@@ -480,6 +483,27 @@ function refKey(r: SourceRef): string {
 /** The set-up field a source was read under (for the second check on the arrays read). */
 function fieldOf(p: Exclude<SetupParams, { tool: 'sweep' }>, ref: SourceRef): string {
   return setupSources(p).find(s => refKey(s.pick.ref) === refKey(ref))?.field ?? '';
+}
+
+/** The arrays a run read, kept beside its results for the plots (not copied). */
+function inputsOf(
+  trans: Trans,
+  p: Exclude<SetupParams, { tool: 'sweep' }>,
+  inputs: RunInputs
+): Record<string, ResultArray> {
+  const out: Record<string, ResultArray> = {};
+  for (const { field, pick } of setupSources(p)) {
+    const a = inputs.arrays[field];
+    if (a) {
+      out[field] = {
+        data: a.data,
+        shape: a.shape,
+        complex: a.complex,
+        description: refLabel(trans, pick.ref)
+      };
+    }
+  }
+  return out;
 }
 
 function messageOf(e: unknown): string {

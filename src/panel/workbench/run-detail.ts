@@ -123,8 +123,11 @@ export class RunDetail extends RenderWidget {
     all.className = 'jp-Button jp-mod-styled jp-mod-accept';
     all.textContent = trans.__('Write the whole run to the kernel…');
     all.title = trans.__('One dict: every array below plus the parameters.');
-    all.addEventListener('click', () => this._actions.writeRun(r.id));
-    box.append(h, all);
+    all.addEventListener('click', () => this._actions.writeRun?.(r.id));
+    box.append(h);
+    if (this._actions.writeRun) {
+      box.append(all);
+    }
     for (const k of keys) {
       const a = r.arrays[k];
       const row = document.createElement('div');
@@ -182,7 +185,8 @@ export class RunDetail extends RenderWidget {
 export namespace RunDetail {
   export interface IActions {
     writeArray(runId: string, key: string): void;
-    writeRun(runId: string): void;
+    /** Writes every array and the parameters as one dict (when the bridge can). */
+    writeRun?(runId: string): void;
   }
   export interface IOptions {
     trans: TranslationBundle;

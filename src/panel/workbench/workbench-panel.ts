@@ -44,7 +44,7 @@ export class WorkbenchPanel extends Widget {
     this._editor = new SetupEditor({
       trans,
       catalog: options.catalog,
-      hints: () => this._host.hints(),
+      hints: () => this._hints,
       validate: p => this._model.validate(p),
       save: (p, title, id, run) => this._save(p, title, id, run),
       close: () => this._closeEditor()
@@ -89,8 +89,13 @@ export class WorkbenchPanel extends Widget {
   }
 
   /** Opens a new set-up of `tool` in the editor, with the defaults filled in. */
-  newSetup(tool: Tool): void {
-    const params = draftFor(tool, this._defaults(), this._hintsNow());
+  async newSetup(tool: Tool): Promise<void> {
+    try {
+      this._hints = await this._host.hints();
+    } catch {
+      // No kernel or nothing defined: the draft starts from the defaults alone.
+    }
+    const params = draftFor(tool, this._defaults(), this._hints);
     this._editor.edit(params, '', null);
     this._showEditor();
   }
@@ -164,10 +169,6 @@ export class WorkbenchPanel extends Widget {
     this._detail.show();
   }
 
-  private _hintsNow(): KernelHints {
-    return this._host.hints();
-  }
-
   private _renderHeader(): void {
     const trans = this._trans;
     const row = document.createElement('div');
@@ -184,7 +185,7 @@ export class WorkbenchPanel extends Widget {
       b.className = 'jp-Button jp-mod-styled jp-mod-reject pp-Workbench-tool';
       b.dataset.tool = tool;
       b.textContent = trans.__(TOOL_LABELS[tool]);
-      b.addEventListener('click', () => this.newSetup(tool));
+      b.addEventListener('click', () => void this.newSetup(tool));
       row.append(b);
     }
     this._header.node.replaceChildren(row);
@@ -227,6 +228,7 @@ export class WorkbenchPanel extends Widget {
   private readonly _editor: SetupEditor;
   private readonly _detail: RunDetail;
   private readonly _defaults: () => WorkbenchDefaults;
+  private _hints: KernelHints = {};
 }
 
 export namespace WorkbenchPanel {
@@ -235,9 +237,9 @@ export namespace WorkbenchPanel {
     /** Asks once before a set-up and its runs are removed. */
     confirmRemove(title: string): Promise<boolean>;
     writeArray(runId: string, key: string): void;
-    writeRun(runId: string): void;
+    writeRun?(runId: string): void;
     /** What the kernel defines that new set-ups start from (fs, f0). */
-    hints(): KernelHints;
+    hints(): Promise<KernelHints>;
   }
   export interface IOptions {
     trans: TranslationBundle;

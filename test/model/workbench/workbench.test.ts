@@ -271,7 +271,7 @@ describe('WorkbenchModel', () => {
   });
 
   it('a sweep starts one run per value at once, labelled by the value', async () => {
-    const { model, runner } = make();
+    const { model, runner, reader } = make();
     const id = (
       model.add(
         {
@@ -287,6 +287,9 @@ describe('WorkbenchModel', () => {
     await tick();
     await tick();
     expect(runner.jobs.map(j => (j.params as any).lambda)).toEqual([0.99, 0.995, 0.999]);
+    // The sources are read once for the whole sweep, and each run keeps them for the plots.
+    expect(reader.reads).toEqual(['reference', 'primary']);
+    expect(model.runs.every(r => r.inputs.x.description === 'reference')).toBe(true);
     runner.jobs.forEach(j => j.finish(outcome));
     const runs = await p;
     expect(runs.map(r => r.label)).toEqual([
