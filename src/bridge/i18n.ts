@@ -25,27 +25,34 @@ export function strfmt(fmt: string, ...args: unknown[]): string {
     .replace(/%% /g, '%');
 }
 
+const singular = (msgid: string, ...args: unknown[]): string => strfmt(msgid, ...args);
+const plural = (msgid: string, msgidPlural: string, n: number, ...args: unknown[]): string =>
+  strfmt(n === 1 ? msgid : msgidPlural, n, ...args);
+
 const english: TranslationBundle = {
-  __: (msgid: string, ...args: unknown[]) => strfmt(msgid, ...args),
-  _n: (msgid: string, plural: string, n: number, ...args: unknown[]) =>
-    strfmt(n === 1 ? msgid : plural, n, ...args),
-  _p: (_ctx: string, msgid: string, ...args: unknown[]) => strfmt(msgid, ...args),
-  _np: (_ctx: string, msgid: string, plural: string, n: number, ...args: unknown[]) =>
-    strfmt(n === 1 ? msgid : plural, n, ...args),
-  gettext: (msgid: string, ...args: unknown[]) => strfmt(msgid, ...args),
-  ngettext: (msgid: string, plural: string, n: number, ...args: unknown[]) =>
-    strfmt(n === 1 ? msgid : plural, n, ...args),
-  pgettext: (_ctx: string, msgid: string, ...args: unknown[]) => strfmt(msgid, ...args),
-  npgettext: (_ctx: string, msgid: string, plural: string, n: number, ...args: unknown[]) =>
-    strfmt(n === 1 ? msgid : plural, n, ...args),
-  dcnpgettext: (
-    _domain: string,
-    _ctx: string,
+  __: singular,
+  gettext: singular,
+  _p: (_context: string, msgid: string, ...args: unknown[]) => singular(msgid, ...args),
+  pgettext: (_context: string, msgid: string, ...args: unknown[]) => singular(msgid, ...args),
+  _n: plural,
+  ngettext: plural,
+  _np: (_context: string, msgid: string, msgidPlural: string, n: number, ...args: unknown[]) =>
+    plural(msgid, msgidPlural, n, ...args),
+  npgettext: (
+    _context: string,
     msgid: string,
-    plural: string,
+    msgidPlural: string,
     n: number,
     ...args: unknown[]
-  ) => strfmt(n === 1 ? msgid : plural, n, ...args)
+  ) => plural(msgid, msgidPlural, n, ...args),
+  dcnpgettext: (
+    _domain: string,
+    _context: string,
+    msgid: string,
+    msgidPlural: string,
+    n: number,
+    ...args: unknown[]
+  ) => plural(msgid, msgidPlural, n, ...args)
 };
 
 /** English, untranslated: the bridge's default translator. */
