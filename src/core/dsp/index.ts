@@ -1,5 +1,6 @@
 export * from './fir';
 export * from './signal';
+export * from './decimate';
 export * from './windows';
 export {
   isPowerOfTwo,
