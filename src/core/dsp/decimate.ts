@@ -51,6 +51,17 @@ let scanMin = 0;
 let scanMax = 0;
 
 /**
+ * Radius r for the block test of scanReal: below (mx − mn)/2 by more than the rounding errors of
+ * c = fl(mn/2 + mx/2) (≤ u|c| plus a subnormal's lost bit), of fl(|v − c|) and of r itself
+ * (u = 2⁻⁵³; 1e−15 ≈ 9u, and 1e−300 covers errors at subnormal scale). 0 (every block scanned
+ * exactly) when the range is too narrow for that or when an extreme is infinite (r is NaN then).
+ */
+function rejectRadius(mn: number, mx: number, c: number): number {
+  const r = (0.5 * mx - 0.5 * mn) * (1 - 1e-15) - 1e-15 * Math.abs(c) - 1e-300;
+  return r > 0 ? r : 0;
+}
+
+/**
  * Scans `count` ≥ 1 real samples x[p], x[p + sx], … for their extremes (earliest on ties, NaN
  * skipped). Results in scanMinK, scanMaxK, scanMin, scanMax.
  */
@@ -72,15 +83,84 @@ function scanReal(x: Float64Array | Float32Array, p: number, sx: number, count: 
   let mx = v;
   let imn = k;
   let imx = k;
-  for (k++; k < count; k++) {
-    p += sx;
-    v = x[p];
-    // v < mn ≤ mx excludes v > mx; NaN fails both tests
-    if (v < mn) {
-      mn = v;
+  // Eight samples at a time, one predictable branch per block: a block whose samples all lie
+  // strictly inside [mn, mx] cannot hold a new extreme and is skipped; any other block is scanned
+  // sample by sample as in the tail loop, so ties and NaN are treated exactly as there. The test
+  // |v − c| ≥ r, c the midpoint, r a radius shrunk below the half-range by more than the rounding
+  // of c, of the subtraction and of r itself (rejectRadius), never skips a sample outside
+  // [mn, mx]; NaN fails it and is skipped, as it must be; r = 0 sends every block the exact way.
+  let c = v;
+  let r = 0;
+  k++;
+  p += sx;
+  if (sx === 1) {
+    for (; k + 7 < count; k += 8, p += 8) {
+      if (
+        Math.abs(x[p] - c) >= r ||
+        Math.abs(x[p + 1] - c) >= r ||
+        Math.abs(x[p + 2] - c) >= r ||
+        Math.abs(x[p + 3] - c) >= r ||
+        Math.abs(x[p + 4] - c) >= r ||
+        Math.abs(x[p + 5] - c) >= r ||
+        Math.abs(x[p + 6] - c) >= r ||
+        Math.abs(x[p + 7] - c) >= r
+      ) {
+        for (let j = 0; j < 8; j++) {
+          const u = x[p + j];
+          if (u < mn) {
+            mn = u;
+            imn = k + j;
+          } else if (u > mx) {
+            mx = u;
+            imx = k + j;
+          }
+        }
+        c = 0.5 * mn + 0.5 * mx;
+        r = rejectRadius(mn, mx, c);
+      }
+    }
+  } else {
+    const s2 = 2 * sx;
+    const s3 = 3 * sx;
+    const s4 = 4 * sx;
+    const s5 = 5 * sx;
+    const s6 = 6 * sx;
+    const s7 = 7 * sx;
+    const s8 = 8 * sx;
+    for (; k + 7 < count; k += 8, p += s8) {
+      if (
+        Math.abs(x[p] - c) >= r ||
+        Math.abs(x[p + sx] - c) >= r ||
+        Math.abs(x[p + s2] - c) >= r ||
+        Math.abs(x[p + s3] - c) >= r ||
+        Math.abs(x[p + s4] - c) >= r ||
+        Math.abs(x[p + s5] - c) >= r ||
+        Math.abs(x[p + s6] - c) >= r ||
+        Math.abs(x[p + s7] - c) >= r
+      ) {
+        for (let j = 0, q = p; j < 8; j++, q += sx) {
+          const u = x[q];
+          if (u < mn) {
+            mn = u;
+            imn = k + j;
+          } else if (u > mx) {
+            mx = u;
+            imx = k + j;
+          }
+        }
+        c = 0.5 * mn + 0.5 * mx;
+        r = rejectRadius(mn, mx, c);
+      }
+    }
+  }
+  for (; k < count; k++, p += sx) {
+    const u = x[p];
+    // u < mn ≤ mx excludes u > mx; NaN fails both tests
+    if (u < mn) {
+      mn = u;
       imn = k;
-    } else if (v > mx) {
-      mx = v;
+    } else if (u > mx) {
+      mx = u;
       imx = k;
     }
   }

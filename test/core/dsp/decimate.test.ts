@@ -163,6 +163,46 @@ test('random NaN-free signals, ranges, strides and offsets: identical to the nai
   expect(checked).toBe(400);
 });
 
+test('extremes a few ulps outside the running range, at any scale, are never skipped', () => {
+  // The kernel skips blocks of samples strictly inside the running [min, max] with a rounded
+  // midpoint test; samples a few units in the last place beyond it (around any base value, from
+  // subnormal to near overflow, with offsets) must still be found.
+  fc.assert(
+    fc.property(
+      fc.double({ noNaN: true, noDefaultInfinity: true }),
+      fc.double({ min: 0, max: 1e6, noNaN: true }),
+      fc.array(fc.integer({ min: -6, max: 6 }), { minLength: 9, maxLength: 200 }),
+      fc.integer({ min: 1, max: 3 }),
+      (base, spread, steps, columns) => {
+        const ulp = Math.max(Math.abs(base) * Number.EPSILON, Number.MIN_VALUE);
+        const data = Float64Array.from(steps, (st, i) =>
+          i % 3 === 0 ? base + st * ulp : base + st * ulp * (1 + spread * (i % 2))
+        );
+        const env = envelope(data, { columns });
+        const ref = naive(data, data, 0, data.length, columns);
+        expect(Array.from(env.x.subarray(0, env.count))).toEqual(ref.x);
+        expect(Array.from(env.y.subarray(0, env.count))).toEqual(ref.y);
+      }
+    ),
+    { numRuns: 500, seed: 1105 }
+  );
+  // A range whose midpoint rounds towards the maximum while the half-range rounds up (ties to
+  // even at the scale of 5e15, where one ulp is 1): without the radius's margin the new maximum
+  // 1 + 2⁻⁵² in the third block of eight would be skipped.
+  const d = new Float64Array(24);
+  d[0] = -1e16 + 2;
+  d[3] = 1;
+  d[13] = 1 + 2 ** -52;
+  const e = envelope(d, { columns: 1 });
+  expect(Array.from(e.x.subarray(0, e.count))).toEqual([0, 13, 23]);
+  expect(e.y[1]).toBe(1 + 2 ** -52);
+  // strided: the same samples every third element
+  const s = new Float64Array(72);
+  d.forEach((v, i) => (s[3 * i] = v));
+  const f = envelope({ data: s, stride: 3, n: 24 }, { columns: 1 });
+  expect(Array.from(f.x.subarray(0, f.count))).toEqual([0, 13, 23]);
+});
+
 test("every column's minimum and maximum (and first and last sample) are among the points", () => {
   fc.assert(
     fc.property(
