@@ -1,0 +1,263 @@
+/**
+ * npm run bench:plots [-- --json]
+ *
+ * The numbers behind the plots, timed in Node (the core as a Web Worker runs it):
+ *   decimate            M4 envelope (first, min, max, last per column) of 1e5, 1e6, 1e7 float64
+ *                       samples into 1000 columns: decimate_ms.
+ *   decimate-vs-numpy   the same envelope of 1e7 samples against numpy's reshape-and-reduce
+ *                       (x.reshape(1000, -1).min(axis=1) and .max(axis=1); values only, no
+ *                       positions) in the project's venv in the same run. Target: no slower.
+ *   welch               Welch PSD of 1e7 float64 samples, nperseg 4096, 50 % overlap, periodic
+ *                       hann, mean removed, against scipy.signal.welch with the same parameters in
+ *                       the same run. Target: within 3× SciPy.
+ * Medians of ≥ 5 timed runs after warm-up runs; each Perpend case in a fresh Node process (as a
+ * worker runs one job), the NumPy/SciPy baselines in one child process of the venv with
+ * OPENBLAS_NUM_THREADS=1 (pocketfft in scipy.fft runs one worker by default). Output: a table, or
+ * with --json the JSON lines of DESIGN §9. Always exits 0.
+ *
+ * Browser cases — drawing and redrawing in the plot views (`{"name":"draw","samples",
+ * "draw_ms"}`, `{"name":"zoom","samples","redraw_ms"}`, timed in Debian's chromium through
+ * playwright-core) — belong to whoever builds the plot views; they add their rows where main()
+ * says so below, in the same JSON-line form.
+ */
+import { execSync, spawnSync } from 'child_process';
+import * as fs from 'fs';
+import * as os from 'os';
+import * as path from 'path';
+import { m4Envelope, welch } from '../src/core/dsp';
+
+const ROOT = path.resolve(__dirname, '../..');
+const JSON_OUT = process.argv.includes('--json');
+const REPEATS = 7;
+const COLUMNS = 1000;
+const WELCH = { nperseg: 4096, noverlap: 2048 };
+
+/** Seeded standard normal samples (xorshift32 and Box–Muller; only reproducibility matters). */
+function gaussian(n: number, seed: number): Float64Array {
+  let s = seed >>> 0 || 1;
+  const u = () => {
+    s ^= s << 13;
+    s >>>= 0;
+    s ^= s >>> 17;
+    s ^= s << 5;
+    s >>>= 0;
+    return (s + 0.5) / 4294967296;
+  };
+  const out = new Float64Array(n);
+  for (let i = 0; i < n; i += 2) {
+    const r = Math.sqrt(-2 * Math.log(u()));
+    const t = 2 * Math.PI * u();
+    out[i] = r * Math.cos(t);
+    if (i + 1 < n) {
+      out[i + 1] = r * Math.sin(t);
+    }
+  }
+  return out;
+}
+
+function median(v: number[]): number {
+  const s = [...v].sort((a, b) => a - b);
+  const k = s.length >> 1;
+  return s.length % 2 ? s[k] : (s[k - 1] + s[k]) / 2;
+}
+
+let sink = 0;
+
+/** Median ms of REPEATS runs after `warm` warm-up runs. */
+function timeIt(fn: () => number, warm: number): number {
+  for (let w = 0; w < warm; w++) {
+    sink += fn();
+  }
+  const ts: number[] = [];
+  for (let r = 0; r < REPEATS; r++) {
+    if (typeof global.gc === 'function') {
+      global.gc();
+    }
+    const t0 = process.hrtime.bigint();
+    sink += fn();
+    ts.push(Number(process.hrtime.bigint() - t0) / 1e6);
+  }
+  return median(ts);
+}
+
+interface Case {
+  kind: 'decimate' | 'welch';
+  samples: number;
+}
+
+/** One case in this process (the child side of `timeInChild`). */
+function runCase(c: Case): number {
+  const x = gaussian(c.samples, 20261211);
+  if (c.kind === 'decimate') {
+    const xo = new Float64Array(4 * COLUMNS);
+    const yo = new Float64Array(4 * COLUMNS);
+    // warm-up on the same data: the kernel is compiled for it before the timed runs
+    return timeIt(() => m4Envelope(x, 1, 0, 0, c.samples, COLUMNS, xo, yo), 5);
+  }
+  return timeIt(() => welch(x, WELCH).psd[1], 2);
+}
+
+function timeInChild(c: Case): number {
+  const r = spawnSync(process.execPath, ['--expose-gc', __filename, '--case', JSON.stringify(c)], {
+    encoding: 'utf8',
+    maxBuffer: 16 * 1024 * 1024
+  });
+  const m = /^CASE_MS (\S+)$/m.exec(r.stdout);
+  if (r.status !== 0 || !m) {
+    throw new Error(`bench case failed: ${r.stderr}`);
+  }
+  return Number(m[1]);
+}
+
+const PY = `
+import json, sys, time
+import numpy as np, scipy
+from scipy import signal
+spec = json.loads(sys.argv[1])
+def med(fn, warm, reps):
+    for _ in range(warm):
+        fn()
+    ts = []
+    for _ in range(reps):
+        t0 = time.perf_counter(); fn(); ts.append((time.perf_counter() - t0) * 1e3)
+    return float(np.median(ts))
+x = np.random.default_rng(20261211).standard_normal(spec['samples'])
+r = x.reshape(spec['columns'], -1)
+minmax = med(lambda: (r.min(axis=1), r.max(axis=1)), 3, spec['repeats'])
+w = med(lambda: signal.welch(x, window='hann', nperseg=spec['nperseg'], noverlap=spec['noverlap'],
+                             detrend='constant'), 1, spec['repeats'])
+print(json.dumps({'env': {'numpy': np.__version__, 'scipy': scipy.__version__},
+                  'numpy_minmax_ms': minmax, 'scipy_welch_ms': w}))
+`;
+
+function runPython(): {
+  env: Record<string, string>;
+  numpy_minmax_ms: number;
+  scipy_welch_ms: number;
+} | null {
+  const py = path.join(ROOT, '.venv', 'bin', 'python');
+  if (!fs.existsSync(py)) {
+    console.error('bench:plots: no .venv/bin/python — NumPy/SciPy baselines left out');
+    return null;
+  }
+  const env: NodeJS.ProcessEnv = { ...process.env, OPENBLAS_NUM_THREADS: '1' };
+  delete env.OPENBLAS_CORETYPE;
+  delete env.OPENBLAS_L2_SIZE;
+  const spec = { samples: 1e7, columns: COLUMNS, repeats: REPEATS, ...WELCH };
+  const r = spawnSync(py, ['-c', PY, JSON.stringify(spec)], { encoding: 'utf8', env });
+  if (r.status !== 0) {
+    console.error(`bench:plots: the NumPy/SciPy baseline failed: ${r.stderr}`);
+    return null;
+  }
+  return JSON.parse(r.stdout);
+}
+
+function main(): void {
+  let commit = 'unknown';
+  try {
+    commit = execSync('git rev-parse --short HEAD', { cwd: ROOT, encoding: 'utf8' }).trim();
+  } catch {
+    // not a git checkout
+  }
+  const py = runPython();
+  const env = {
+    commit,
+    node: process.version,
+    numpy: py?.env.numpy,
+    scipy: py?.env.scipy,
+    cpu: os.cpus()[0]?.model,
+    cores: os.cpus().length,
+    loadavg: os.loadavg().map(v => +v.toFixed(2))
+  };
+  const rows: Record<string, unknown>[] = [];
+  for (const samples of [1e5, 1e6, 1e7]) {
+    const ms = timeInChild({ kind: 'decimate', samples });
+    rows.push({
+      name: 'decimate',
+      samples,
+      columns: COLUMNS,
+      dtype: 'float64',
+      decimate_ms: +ms.toFixed(3),
+      msps: +(samples / ms / 1e3).toFixed(1),
+      repeats: REPEATS
+    });
+  }
+  const dec = rows[2].decimate_ms as number;
+  const vsNumpy: Record<string, unknown> = {
+    name: 'decimate-vs-numpy',
+    samples: 1e7,
+    columns: COLUMNS,
+    dtype: 'float64',
+    perpend_ms: dec
+  };
+  if (py) {
+    vsNumpy.numpy_ms = +py.numpy_minmax_ms.toFixed(3);
+    vsNumpy.ratio = +(py.numpy_minmax_ms / dec).toFixed(2);
+    vsNumpy.target = 'perpend_ms ≤ numpy_ms';
+    vsNumpy.met = dec <= py.numpy_minmax_ms;
+  }
+  vsNumpy.repeats = REPEATS;
+  rows.push(vsNumpy);
+  const wms = timeInChild({ kind: 'welch', samples: 1e7 });
+  const w: Record<string, unknown> = {
+    name: 'welch',
+    samples: 1e7,
+    nperseg: WELCH.nperseg,
+    noverlap: WELCH.noverlap,
+    dtype: 'float64',
+    perpend_ms: +wms.toFixed(1)
+  };
+  if (py) {
+    w.scipy_ms = +py.scipy_welch_ms.toFixed(1);
+    w.ratio = +(wms / py.scipy_welch_ms).toFixed(2);
+    w.target = 'perpend_ms ≤ 3 × scipy_ms';
+    w.met = wms <= 3 * py.scipy_welch_ms;
+  }
+  w.repeats = REPEATS;
+  rows.push(w);
+  // Browser cases (draw_ms, redraw_ms of the plot views) are added here, as rows of the same
+  // form, by the plot views' own driver.
+  if (JSON_OUT) {
+    console.log(JSON.stringify({ env }));
+    for (const r of rows) {
+      console.log(JSON.stringify(r));
+    }
+    return;
+  }
+  console.log(
+    `perpend plots bench — commit ${commit}, Node ${process.version}, numpy ${env.numpy ?? 'n/a'}, ` +
+      `scipy ${env.scipy ?? 'n/a'}, CPU ${env.cpu} ×${env.cores}, load ${env.loadavg.join(' ')}`
+  );
+  console.log(
+    'decimate: M4 envelope into 1000 columns; ratio for decimate-vs-numpy = numpy_ms / perpend_ms ' +
+      '(> 1: Perpend faster); for welch = perpend_ms / scipy_ms'
+  );
+  const head = ['case', 'samples', 'Perpend ms', 'Msamples/s', 'baseline ms', 'ratio', 'target'];
+  const table = [
+    head,
+    ...rows.map(r => [
+      String(r.name),
+      String(r.samples),
+      String(r.decimate_ms ?? r.perpend_ms),
+      r.msps === undefined ? '' : String(r.msps),
+      String(r.numpy_ms ?? r.scipy_ms ?? ''),
+      r.ratio === undefined ? '' : String(r.ratio),
+      r.target === undefined ? '' : `${r.target}: ${r.met ? 'met' : 'MISSED'}`
+    ])
+  ];
+  const wd = head.map((_, c) => Math.max(...table.map(r => r[c].length)));
+  for (const r of table) {
+    console.log(r.map((v, c) => v.padEnd(wd[c])).join('  '));
+  }
+}
+
+const caseArg = process.argv.indexOf('--case');
+if (caseArg >= 0) {
+  console.log(`CASE_MS ${runCase(JSON.parse(process.argv[caseArg + 1]))}`);
+  if (sink === Infinity) {
+    console.log('');
+  }
+} else {
+  main();
+}
+process.exit(0);
