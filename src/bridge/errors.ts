@@ -49,7 +49,18 @@ export type BridgeErrorCode =
   /** The bridge was disposed. */
   | 'disposed'
   /** The kernel ran out of memory. */
-  | 'memory';
+  | 'memory'
+  /**
+   * The value can only be had by running code of the user's classes (a property, a
+   * `__getattr__`, a conversion of a subclass): Perpend does not run it.
+   */
+  | 'user-code'
+  /** A numpy masked array with masked entries: they have no values to read. */
+  | 'masked'
+  /** The variable was re-bound to another shape or dtype since the list was made. */
+  | 'changed'
+  /** A name Perpend never writes to (Python's `__*__` names, IPython's own). */
+  | 'reserved';
 
 /** An error from the kernel bridge with a user-facing message. */
 export class BridgeError extends Error {

@@ -155,3 +155,41 @@ export function pyIntLiteral(argName: string, n: unknown): string {
   }
   return String(n);
 }
+
+/** Names IPython keeps its histories and its own functions in (`InteractiveShell.init_user_ns`). */
+export const IPYTHON_NAMES: ReadonlySet<string> = new Set([
+  'In',
+  'Out',
+  'get_ipython',
+  'exit',
+  'quit',
+  '_ih',
+  '_oh',
+  '_dh',
+  '_',
+  '__',
+  '___',
+  '_i',
+  '_ii',
+  '_iii'
+]);
+
+/**
+ * Why Perpend never writes to `name`, or null. Writing replaces the name rather than
+ * shadowing something, and the replacement breaks the interpreter or IPython:
+ * - `'dunder'`: Python's own `__*__` names ("Python Language Reference" §2.3.2, reserved
+ *   classes of identifiers): `__builtins__` is every builtin of the notebook, `__name__`,
+ *   `__spec__`, `__loader__` and `__package__` drive imports and pickling, `__import__`...
+ * - `'ipython'`: where IPython keeps its output and input history (`Out`, `_`, `_7`, `In`,
+ *   `_i`, `_i7`, ...) and the functions its magics call (`get_ipython`).
+ * The kernel's helper applies the same rule (helper.ts `reserved`).
+ */
+export function reservedName(name: string): 'dunder' | 'ipython' | null {
+  if (name.length > 4 && name.startsWith('__') && name.endsWith('__')) {
+    return 'dunder';
+  }
+  if (IPYTHON_NAMES.has(name) || /^_i?\d+$/.test(name)) {
+    return 'ipython';
+  }
+  return null;
+}

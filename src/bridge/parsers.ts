@@ -6,7 +6,15 @@
  * separators; nothing in it is ever evaluated. Values are exactly what the text shows (a
  * printed float64 has only the digits numpy printed), and `truncated` says when numpy
  * summarised the array with `...`, so the values are incomplete.
+ *
+ * The grammar parsers (`parseNumpyRepr`, `parseJsonArray`, `parseCsv`) describe any text they
+ * can read. The entry points that hand values on ({@link parseArrayText},
+ * {@link parseOutputData}, {@link parsedToArrayData}) apply the rules a read from the kernel
+ * applies, with the same error codes ({@link BridgeError}): an integer beyond ±2^53, which
+ * float64 cannot hold exactly (`int-precision`), more than two dimensions (`ndim`) and no
+ * values (`empty`) are refused, never rounded or passed on.
  */
+import { BridgeError } from './errors';
 
 /** An array recovered from text. */
 export interface ParsedArray {
@@ -25,6 +33,22 @@ export interface ParsedArray {
   format: 'numpy-repr' | 'numpy-str' | 'json' | 'csv';
   /** CSV only: the header row, when the first row was not numeric. */
   columns?: string[];
+  /**
+   * The first value written as an integer beyond ±2^53 (which float64 cannot hold, so `data`
+   * has it rounded): its position among the shown values (C order) and its text; `rounded`
+   * when the value came parsed already (JSON data) and may have been rounded there. Absent or
+   * null when every integer is exact.
+   */
+  inexact?: { index: number; text: string; rounded?: boolean } | null;
+}
+
+/** 2^53: the integers up to it in magnitude are exact in float64 (IEEE 754-2019 §3.3). */
+const EXACT_LIMIT = BigInt(2) ** BigInt(53);
+
+/** True for an integer literal (optional sign, digits only) beyond ±2^53. */
+function beyondExact(token: string): boolean {
+  const digits = token.replace(/^[+-]/, '');
+  return /^\d+$/.test(digits) && digits.length >= 16 && BigInt(digits) > EXACT_LIMIT;
 }
 
 /** Largest text accepted (characters). */
@@ -47,7 +71,16 @@ function toNumber(token: string): number {
 
 type Tok =
   | { k: '[' | ']' | ',' | '...'; pos: number }
-  | { k: 'n'; re: number; im: number; cplx: boolean; bool: boolean; pos: number };
+  | {
+      k: 'n';
+      re: number;
+      im: number;
+      cplx: boolean;
+      bool: boolean;
+      pos: number;
+      /** The text of an integer part beyond ±2^53 (rounded in re/im). */
+      big?: string;
+    };
 
 function describePos(text: string, pos: number): string {
   const before = text.slice(0, pos);
@@ -94,6 +127,7 @@ function scanNumber(s: string, i: number): { tok: Tok; end: number } | null {
   let re = toNumber(a);
   let im = 0;
   let cplx = false;
+  let big = beyondExact(a) ? a : undefined;
   if (s[j] === 'j' || s[j] === 'J') {
     im = re;
     re = 0;
@@ -112,6 +146,7 @@ function scanNumber(s: string, i: number): { tok: Tok; end: number } | null {
         im = toNumber(b);
         cplx = true;
         j = k + b.length + 1;
+        big = big ?? (beyondExact(b) ? b : undefined);
       }
     }
   }
@@ -127,7 +162,10 @@ function scanNumber(s: string, i: number): { tok: Tok; end: number } | null {
   if (/[\w.]/.test(s[j] ?? '')) {
     return null;
   }
-  return { tok: { k: 'n', re, im, cplx, bool: false, pos }, end: j };
+  return {
+    tok: { k: 'n', re, im, cplx, bool: false, pos, ...(big !== undefined ? { big } : {}) },
+    end: j
+  };
 }
 
 function tokenize(s: string, start: number, end: number, argName: string): Tok[] {
@@ -331,6 +369,11 @@ function pack(
   return { data, complex };
 }
 
+function firstInexact(values: Flat['values']): ParsedArray['inexact'] {
+  const i = values.findIndex(v => v.big !== undefined);
+  return i < 0 ? null : { index: i, text: values[i].big! };
+}
+
 function checkText(argName: string, text: unknown): string {
   if (typeof text !== 'string') {
     throw new TypeError(`${argName} must be a string, got ${text === null ? 'null' : typeof text}`);
@@ -457,7 +500,8 @@ export function parseNumpyRepr(text: string, argName = 'text'): ParsedArray {
     complex,
     dtype,
     truncated: flat.truncated,
-    format
+    format,
+    inexact: firstInexact(flat.values)
   };
 }
 
@@ -468,8 +512,10 @@ export function parseNumpyRepr(text: string, argName = 'text'): ParsedArray {
  */
 export function parseJsonArray(value: unknown, argName = 'value'): ParsedArray {
   if (typeof value !== 'string') {
-    const text = jsonValueToText(value, argName);
-    return { ...parseJsonArray(text, argName) };
+    const unsafe: { first: ParsedArray['inexact'] } = { first: null };
+    const text = jsonValueToText(value, argName, unsafe);
+    const p = parseJsonArray(text, argName);
+    return { ...p, inexact: p.inexact ?? unsafe.first };
   }
   const s = checkText(argName, value).trim();
   if (!s.startsWith('[')) {
@@ -500,11 +546,16 @@ export function parseJsonArray(value: unknown, argName = 'value'): ParsedArray {
     complex: false,
     dtype: flat.values.length > 0 && flat.values.every(v => v.bool) ? 'bool' : null,
     truncated: false,
-    format: 'json'
+    format: 'json',
+    inexact: firstInexact(flat.values)
   };
 }
 
-function jsonValueToText(value: unknown, argName: string): string {
+function jsonValueToText(
+  value: unknown,
+  argName: string,
+  unsafe: { first: ParsedArray['inexact'] }
+): string {
   // Walk the value rather than JSON.stringify it blindly: only arrays, numbers and booleans
   // are allowed; anything else is refused with its path.
   const parts: string[] = [];
@@ -534,6 +585,17 @@ function jsonValueToText(value: unknown, argName: string): string {
                 ? '-0'
                 : String(v)
       );
+      // Parsed already (by the notebook): an integral value beyond 2^53 − 1 may be the
+      // rounding of another integer (2^53 + 1 parses as 2^53), so it cannot be trusted. Up to
+      // 2^64, the range of int64 and uint64; floats that large and integral are refused too.
+      if (
+        unsafe.first === null &&
+        Number.isInteger(v) &&
+        !Number.isSafeInteger(v) &&
+        Math.abs(v) <= 2 ** 64
+      ) {
+        unsafe.first = { index: count, text: String(v), rounded: true };
+      }
       count++;
     } else if (typeof v === 'boolean') {
       parts.push(v ? 'true' : 'false');
@@ -545,7 +607,6 @@ function jsonValueToText(value: unknown, argName: string): string {
     }
   };
   walk(value, '', 0);
-  void count;
   return parts.join('');
 }
 
@@ -616,6 +677,7 @@ export function parseCsv(text: string, argName = 'text'): ParsedArray {
     dtype: null,
     truncated: false,
     format: 'csv',
+    inexact: firstInexact(rows.flat()),
     ...(columns ? { columns } : {})
   };
 }
@@ -626,6 +688,10 @@ export function parseCsv(text: string, argName = 'text'): ParsedArray {
  * (`application/json` → JSON; `text/csv` → CSV).
  */
 export function parseArrayText(text: unknown, mimeType?: string): ParsedArray {
+  return checkReadable(parseAnyText(text, mimeType), 'text');
+}
+
+function parseAnyText(text: unknown, mimeType?: string): ParsedArray {
   if (mimeType === 'application/json') {
     return parseJsonArray(text);
   }
@@ -658,6 +724,54 @@ export function parseArrayText(text: unknown, mimeType?: string): ParsedArray {
 }
 
 /**
+ * Applies the rules of a read from the kernel to parsed text: refuses (with a
+ * {@link BridgeError} of the kernel path's code) an integer beyond ±2^53, more than two
+ * dimensions, and no values.
+ */
+export function checkReadable(p: ParsedArray, argName = 'text'): ParsedArray {
+  const shape = p.fullShape ?? p.shape;
+  if (shape.length > 2) {
+    throw new BridgeError(
+      'ndim',
+      `${argName} holds an array of shape (${shape.join(', ')}): Perpend reads 1-D and 2-D arrays. Print a slice of it instead.`
+    );
+  }
+  const n = p.data.length / (p.complex ? 2 : 1);
+  if (n === 0 || shape.some(d => d === 0)) {
+    throw new BridgeError(
+      'empty',
+      `${argName} holds an empty array (shape (${shape.join(', ')}${shape.length === 1 ? ',' : ''})): there is nothing to read.`
+    );
+  }
+  if (p.inexact) {
+    const at = p.truncated
+      ? `value ${p.inexact.index + 1} shown`
+      : `[${unravel(p.inexact.index, p.shape).join(', ')}]`;
+    if (p.inexact.rounded) {
+      throw new BridgeError(
+        'int-precision',
+        `${argName}${at} is ${p.inexact.text} as the notebook stored it, beyond ±(2^53 − 1): an integer that large may already have been rounded when the notebook read its JSON, so the array was not read. Read it from the kernel instead.`
+      );
+    }
+    throw new BridgeError(
+      'int-precision',
+      `${argName}${p.truncated ? ` (${at})` : at} is ${p.inexact.text.replace(/^\+/, '')}, beyond ±2^53: float64 cannot hold it exactly, so the array was not read.`
+    );
+  }
+  return p;
+}
+
+function unravel(flat: number, shape: number[]): number[] {
+  const idx = new Array<number>(shape.length).fill(0);
+  let r = flat;
+  for (let d = shape.length - 1; d >= 0; d--) {
+    idx[d] = r % shape[d];
+    r = Math.floor(r / shape[d]);
+  }
+  return idx;
+}
+
+/**
  * Parses an output's MIME bundle as stored in a notebook (`text/plain` may be a string or
  * nbformat's list of lines): `application/json` first, then `text/csv`, then `text/plain`
  * (numpy repr/str, JSON, CSV). HTML and other rich types are never looked at. Throws a
@@ -677,27 +791,41 @@ export function parseOutputData(bundle: unknown): ParsedArray {
         ? v.join('')
         : null;
   const errors: string[] = [];
+  // The first form that parses decides; a refusal by the kernel's rules is final (another
+  // form of the same output holds the same array).
   if (b['application/json'] !== undefined) {
+    let p: ParsedArray | null = null;
     try {
-      return parseJsonArray(b['application/json'], 'application/json');
+      p = parseJsonArray(b['application/json'], 'application/json');
     } catch (e) {
       errors.push((e as Error).message);
+    }
+    if (p) {
+      return checkReadable(p, 'application/json');
     }
   }
   const csv = text(b['text/csv']);
   if (csv !== null) {
+    let p: ParsedArray | null = null;
     try {
-      return parseCsv(csv, 'text/csv');
+      p = parseCsv(csv, 'text/csv');
     } catch (e) {
       errors.push((e as Error).message);
+    }
+    if (p) {
+      return checkReadable(p, 'text/csv');
     }
   }
   const plain = text(b['text/plain']);
   if (plain !== null) {
+    let p: ParsedArray | null = null;
     try {
-      return parseArrayText(plain);
+      p = parseAnyText(plain);
     } catch (e) {
       errors.push((e as Error).message);
+    }
+    if (p) {
+      return checkReadable(p, 'text/plain');
     }
   }
   throw new RangeError(
@@ -710,7 +838,9 @@ export function parseOutputData(bundle: unknown): ParsedArray {
 /**
  * The {@link ParsedArray} as the bridge's ArrayData shape (C order, complex interleaved),
  * for the panel. Refuses truncated text (its values are incomplete) with a RangeError that
- * says so; pass `allowTruncated` to take the shown values anyway.
+ * says so; pass `allowTruncated` to take the shown values anyway. Refuses, as a read from the
+ * kernel does, integers beyond ±2^53, more than two dimensions and no values
+ * ({@link checkReadable}).
  */
 export function parsedToArrayData(
   p: ParsedArray,
@@ -721,6 +851,7 @@ export function parsedToArrayData(
       `the printed array was truncated by numpy ("..."${p.fullShape ? `, full shape (${p.fullShape.join(', ')})` : ''}): its values are incomplete; read it from the kernel, or print it with np.set_printoptions(threshold=sys.maxsize)`
     );
   }
+  checkReadable(p);
   return {
     data: p.data,
     shape: p.shape.slice(),

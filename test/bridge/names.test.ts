@@ -10,7 +10,8 @@ import {
   checkIdentifier,
   normalizeIdentifier,
   pyIntLiteral,
-  pyStringLiteral
+  pyStringLiteral,
+  reservedName
 } from '../../src/bridge/names';
 
 const PYTHON = path.resolve(__dirname, '../../.venv/bin/python');
@@ -172,5 +173,40 @@ describe('pyStringLiteral', () => {
     );
     expect(() => pyIntLiteral('n', '1; import os')).toThrow(TypeError);
     expect(() => pyIntLiteral('n', 2 ** 60)).toThrow(TypeError);
+  });
+});
+
+describe('reservedName', () => {
+  it("refuses Python's __*__ names (Python Language Reference §2.3.2) and IPython's own", () => {
+    for (const n of ['__builtins__', '__import__', '__name__', '__spec__', '__loader__', '__x__']) {
+      expect(reservedName(n)).toBe('dunder');
+    }
+    for (const n of ['In', 'Out', 'get_ipython', 'exit', 'quit', '_', '__', '___', '_i', '_ii']) {
+      expect(reservedName(n)).toBe('ipython');
+    }
+    for (const n of ['_1', '_42', '_i1', '_i42', '_ih', '_oh', '_dh']) {
+      expect(reservedName(n)).toBe('ipython');
+    }
+  });
+
+  it('leaves their neighbours alone: builtins, private and near-dunder names', () => {
+    for (const n of [
+      'sum',
+      'print',
+      'np',
+      'x',
+      '_x',
+      '__x',
+      'x__',
+      '____',
+      '_i1a',
+      '_1a',
+      'in_',
+      'out',
+      'In2',
+      '__init'
+    ]) {
+      expect(reservedName(n)).toBeNull();
+    }
   });
 });
