@@ -84,9 +84,11 @@ describe('integers beyond ±2^53', () => {
   });
 
   it('are refused from JSON already parsed by the notebook (the value was rounded there)', () => {
-    // JSON.parse("[9007199254740993]") gives 9007199254740992 + 0: the digits are lost, and an
-    // integral value beyond 2^53 cannot be trusted.
-    const e = refusal(() => parseOutputData({ 'application/json': [1, 9007199254740993] }));
+    // JSON.parse gives 9007199254740992 for 9007199254740993 (ECMA-262 §21.1.3: the nearest
+    // Number value): the digits are lost, and an integral value beyond 2^53 cannot be trusted.
+    const stored = JSON.parse('[1, 9007199254740993]') as number[];
+    expect(stored[1]).toBe(2 ** 53);
+    const e = refusal(() => parseOutputData({ 'application/json': stored }));
     expect(e.code).toBe('int-precision');
     expect(e.message).toContain(
       'application/json[1] is 9007199254740992 as the notebook stored it'

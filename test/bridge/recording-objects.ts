@@ -135,4 +135,3 @@ masked = np.ma.array([1.0, -999.0, 3.0], mask=[False, True, False])
 unmasked = np.ma.array([1.0, 2.0])
 calls.clear()
 `;
-
