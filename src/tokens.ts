@@ -28,3 +28,15 @@ export interface IPerpend {
 }
 
 export const IPerpend = new Token<IPerpend>('perpend:IPerpend', 'The Perpend workbench.');
+
+/** Perpend's command ids (menus and shortcuts refer to them in schema/plugin.json). */
+export namespace CommandIDs {
+  /** Show the side panel. */
+  export const open = 'perpend:open';
+  /** List the active notebook's arrays again. */
+  export const refresh = 'perpend:refresh-arrays';
+  /** Bring in the output under the context menu. */
+  export const sendOutput = 'perpend:send-output';
+  /** Bring in the array output of the notebook's active cell (keyboard). */
+  export const sendCellOutput = 'perpend:send-cell-output';
+}

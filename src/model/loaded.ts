@@ -7,7 +7,10 @@ import {
   type ArraySource,
   type WriteResult
 } from '../bridge';
+import type { TranslationBundle } from '@jupyterlab/translation';
+import { englishBundle } from './english';
 import type { SourcesModel } from './sources';
+import { planOutputRead, type IOutputSnapshot } from './output-source';
 
 /** One array held by the panel: read from the kernel, parsed from an output, or a result. */
 export interface ILoadedArray {
@@ -41,6 +44,7 @@ export interface IHumOptions {
 export class LoadedArraysModel {
   constructor(options: LoadedArraysModel.IOptions) {
     this._bridge = options.bridge;
+    this._trans = options.trans ?? englishBundle();
   }
 
   get changed(): ISignal<this, void> {
@@ -67,11 +71,11 @@ export class LoadedArraysModel {
   ): Promise<ILoadedArray | null> {
     const bridge = this._bridge();
     if (!bridge) {
-      this._fail('There is no kernel to read from.');
+      this._fail(this._trans.__('There is no kernel to read from.'));
       return null;
     }
     try {
-      const array = await this._track(bridge, `reading ${info.label}`, () =>
+      const array = await this._track(bridge, 'read', info.label, () =>
         bridge.readArray(info.source)
       );
       const name =
@@ -86,9 +90,43 @@ export class LoadedArraysModel {
         suggestedName: `${name}_copy`
       });
     } catch (reason) {
-      this._fail(`Could not read ${info.label}: ${Private.text(reason)}`);
+      this._fail(this._trans.__('Could not read %1: %2', info.label, Private.text(reason)));
       return null;
     }
+  }
+
+  /**
+   * Brings in the array a cell output shows: from the kernel's output cache at full precision
+   * when this kernel session produced it, otherwise parsed from the output's text. Null (with
+   * the reason as the message) when neither works or the output cannot hold an array.
+   */
+  async loadOutput(
+    output: IOutputSnapshot,
+    trusts: (cellId: string, count: number) => boolean
+  ): Promise<ILoadedArray | null> {
+    const plans = planOutputRead(output, {
+      trusts,
+      hasKernel: this._bridge() !== null,
+      trans: this._trans
+    });
+    if (plans.length === 0) {
+      this._fail(
+        this._trans.__(
+          'This output cannot hold an array (only results and displays with text or JSON can).'
+        )
+      );
+      return null;
+    }
+    for (const plan of plans) {
+      const item =
+        plan.kind === 'kernel'
+          ? await this.loadFromKernel({ source: plan.source, label: plan.label })
+          : this.loadFromText(plan.label, plan.text, plan.mimeType, plan.notes);
+      if (item) {
+        return item;
+      }
+    }
+    return null;
   }
 
   /**
@@ -102,17 +140,29 @@ export class LoadedArraysModel {
     mimeType?: string,
     extraNotes: ReadonlyArray<string> = []
   ): ILoadedArray | null {
+    const trans = this._trans;
     try {
       const parsed = parseArrayText(text, mimeType);
       const notes = [
-        `Parsed from the output's text (${parsed.format}): values have only the printed digits.`,
+        trans.__(
+          "Parsed from the output's text (%1): values have only the printed digits.",
+          parsed.format
+        ),
         ...extraNotes
       ];
       if (parsed.truncated) {
+        const shown = parsed.data.length / (parsed.complex ? 2 : 1);
         notes.push(
-          `The text was truncated ("..."): only ${parsed.data.length / (parsed.complex ? 2 : 1)} values are shown` +
-            (parsed.fullShape ? ` of an array of shape (${parsed.fullShape.join(', ')}).` : '.') +
-            ' Read the variable from the kernel for all of them.'
+          parsed.fullShape
+            ? trans.__(
+                'The text was truncated ("..."): only %1 values are shown of an array of shape (%2). Read the variable from the kernel for all of them.',
+                shown,
+                parsed.fullShape.join(', ')
+              )
+            : trans.__(
+                'The text was truncated ("..."): only %1 values are shown. Read the variable from the kernel for all of them.',
+                shown
+              )
         );
       }
       return this._add({
@@ -130,7 +180,7 @@ export class LoadedArraysModel {
         suggestedName: 'parsed_output'
       });
     } catch (reason) {
-      this._fail(`Could not read an array from ${label}: ${Private.text(reason)}`);
+      this._fail(trans.__('Could not read an array from %1: %2', label, Private.text(reason)));
       return null;
     }
   }
@@ -141,16 +191,16 @@ export class LoadedArraysModel {
    * new entry; its notes give the suppression in dB, in total and per harmonic.
    */
   removeHum(id: string, options: IHumOptions): ILoadedArray | null {
+    const trans = this._trans;
     const item = this.get(id);
     if (!item) {
-      this._fail(`No loaded array has id ${JSON.stringify(id)}.`);
+      this._fail(trans.__('No loaded array has id %1.', JSON.stringify(id)));
       return null;
     }
     try {
-      if (item.array.complex) {
-        throw new TypeError(
-          `${item.label} is complex; hum removal with real harmonics needs a real signal`
-        );
+      const unavailable = humUnavailable(item, trans);
+      if (unavailable) {
+        throw new TypeError(unavailable);
       }
       const shape = item.array.shape;
       const rows = shape.length === 2 ? shape[0] : 1;
@@ -163,26 +213,41 @@ export class LoadedArraysModel {
       for (let k = 0; k < options.harmonics; k++) {
         const share = e.directionEnergy[2 * k] + e.directionEnergy[2 * k + 1];
         perHarmonic.push(
-          `${((k + 1) * options.f0).toPrecision(4)} Hz: ${Private.db(share / e.inputEnergy)} dB`
+          trans.__(
+            '%1 Hz: %2 dB',
+            ((k + 1) * options.f0).toPrecision(4),
+            Private.db(share / e.inputEnergy)
+          )
         );
       }
       const y = result.output;
       const out = y.isCContiguous() && y.offset === 0 ? y.data : y.copy('C').data;
       return this._add({
-        label: `${item.label} − hum`,
+        label: trans.__('%1 − hum', item.label),
         origin: 'result',
         source: null,
         array: { data: out, shape: shape.slice(), complex: false, dtype: 'float64' },
         notes: [
-          `Projected off ${result.rank} harmonic directions (f₀ = ${options.f0} Hz, ${options.harmonics} harmonics, fs = ${options.fs} Hz).`,
-          `Suppression ${e.suppressionDb.toFixed(1)} dB; residual energy ${e.residualEnergy.toPrecision(4)} of ${e.inputEnergy.toPrecision(4)}.`,
-          `Share of the input per harmonic: ${perHarmonic.join(', ')}.`
+          trans.__(
+            'Projected off %1 harmonic directions (f₀ = %2 Hz, %3 harmonics, fs = %4 Hz).',
+            result.rank,
+            options.f0,
+            options.harmonics,
+            options.fs
+          ),
+          trans.__(
+            'Suppression %1 dB; residual energy %2 of %3 (sum of squares, in the squared unit of the signal).',
+            e.suppressionDb.toFixed(1),
+            e.residualEnergy.toPrecision(4),
+            e.inputEnergy.toPrecision(4)
+          ),
+          trans.__('Share of the input energy per harmonic: %1.', perHarmonic.join(', '))
         ],
         truncated: item.truncated,
         suggestedName: `${Private.pyBase(item.suggestedName)}_dehum`
       });
     } catch (reason) {
-      this._fail(`Hum removal on ${item.label} failed: ${Private.text(reason)}`);
+      this._fail(trans.__('Hum removal on %1 failed: %2', item.label, Private.text(reason)));
       return null;
     }
   }
@@ -194,23 +259,28 @@ export class LoadedArraysModel {
   async writeBack(id: string, name: string, overwrite = false): Promise<WriteResult | null> {
     const item = this.get(id);
     const bridge = this._bridge();
+    const trans = this._trans;
     if (!item || !bridge) {
       this._fail(
-        item ? 'There is no kernel to write to.' : `No loaded array has id ${JSON.stringify(id)}.`
+        item
+          ? trans.__('There is no kernel to write to.')
+          : trans.__('No loaded array has id %1.', JSON.stringify(id))
       );
       return null;
     }
     try {
-      const result = await this._track(bridge, `writing ${name}`, () =>
+      const result = await this._track(bridge, 'write', name, () =>
         bridge.writeArray(name, item.array, { overwrite })
       );
       this._setStatus(
         'idle',
-        result.status === 'written' ? `Saved ${item.label} to the kernel as ${result.name}.` : ''
+        result.status === 'written'
+          ? trans.__('Saved %1 to the kernel as %2.', item.label, result.name)
+          : ''
       );
       return result;
     } catch (reason) {
-      this._fail(`Could not write ${name}: ${Private.text(reason)}`);
+      this._fail(trans.__('Could not write %1: %2', name, Private.text(reason)));
       return null;
     }
   }
@@ -230,7 +300,7 @@ export class LoadedArraysModel {
       summary: summarize(entry.array.data, entry.array.complex)
     };
     this._items = [...this._items, item];
-    this._setStatus('idle', `Loaded ${item.label}.`, true);
+    this._setStatus('idle', this._trans.__('Loaded %1.', item.label), true);
     return item;
   }
 
@@ -240,17 +310,24 @@ export class LoadedArraysModel {
    */
   private async _track<T>(
     bridge: SourcesModel.IBridge,
-    what: string,
+    what: 'read' | 'write',
+    name: string,
     run: () => Promise<T>
   ): Promise<T> {
+    const trans = this._trans;
     const show = (): void => {
       const waiting = bridge.activity.state === 'waiting';
-      this._setStatus(
-        'busy',
-        waiting
-          ? `Waiting for the kernel to finish the running cell before ${what}…`
-          : `${what[0].toUpperCase()}${what.slice(1)}…`
-      );
+      let text: string;
+      if (what === 'read') {
+        text = waiting
+          ? trans.__('Waiting for the kernel to finish the running cell before reading %1…', name)
+          : trans.__('Reading %1…', name);
+      } else {
+        text = waiting
+          ? trans.__('Waiting for the kernel to finish the running cell before writing %1…', name)
+          : trans.__('Writing %1…', name);
+      }
+      this._setStatus('busy', text);
     };
     bridge.activityChanged.connect(show);
     show();
@@ -276,6 +353,7 @@ export class LoadedArraysModel {
   }
 
   private readonly _bridge: () => SourcesModel.IBridge | null;
+  private readonly _trans: TranslationBundle;
   private _items: ILoadedArray[] = [];
   private _status: 'idle' | 'busy' | 'error' = 'idle';
   private _message = '';
@@ -287,7 +365,31 @@ export namespace LoadedArraysModel {
   export interface IOptions {
     /** The bridge to the active notebook's kernel, or null (SourcesModel.bridge). */
     bridge: () => SourcesModel.IBridge | null;
+    /** Translates what the model says to the user; English when absent. */
+    trans?: TranslationBundle;
   }
+}
+
+/** The dtype Perpend computes in: float64, or complex128 for a complex array. */
+export function workingDtype(array: Pick<ArrayData, 'complex'>): string {
+  return array.complex ? 'complex128' : 'float64';
+}
+
+/**
+ * Why hum removal cannot run on an entry, as a sentence for the user, or null when it can:
+ * the harmonic basis is real, so the signal must be real.
+ */
+export function humUnavailable(
+  item: Pick<ILoadedArray, 'label' | 'array'>,
+  trans: TranslationBundle = englishBundle()
+): string | null {
+  if (item.array.complex) {
+    return trans.__(
+      '%1 is complex; hum removal with real harmonics needs a real signal.',
+      item.label
+    );
+  }
+  return null;
 }
 
 namespace Private {

@@ -1,6 +1,8 @@
 import { Signal, type ISignal } from '@lumino/signaling';
 import type { IDisposable } from '@lumino/disposable';
 import type { Kernel } from '@jupyterlab/services';
+import type { TranslationBundle } from '@jupyterlab/translation';
+import { englishBundle } from './english';
 import { KernelBridge, type ArrayInfo, type SessionLedger } from '../bridge';
 
 /**
@@ -32,6 +34,8 @@ export class SourcesModel implements IDisposable {
   constructor(options: SourcesModel.IOptions = {}) {
     this._bridgeOptions = options.bridgeOptions ?? {};
     this._createBridge = options.createBridge ?? (o => new KernelBridge(o));
+    this._trans = options.trans ?? englishBundle();
+    this._message = this._trans.__('No notebook is active.');
   }
 
   /** Emitted when anything shown changes. */
@@ -94,7 +98,10 @@ export class SourcesModel implements IDisposable {
     this._bridge?.dispose();
     this._bridge = null;
     this._bridgeKernel = null;
-    this._setStatus(target ? 'idle' : 'none', target ? '' : 'No notebook is active.');
+    this._setStatus(
+      target ? 'idle' : 'none',
+      target ? '' : this._trans.__('No notebook is active.')
+    );
     this._changed.emit();
     if (target) {
       void this.refresh();
@@ -141,11 +148,14 @@ export class SourcesModel implements IDisposable {
     }
     const kernel = target.kernel;
     if (!kernel) {
-      this._setStatus('no-kernel', 'The notebook has no running kernel.');
+      this._setStatus('no-kernel', this._trans.__('The notebook has no running kernel.'));
       return;
     }
     if (kernel.status === 'busy') {
-      this._setStatus('waiting', 'Waiting for the kernel to finish the running cell…');
+      this._setStatus(
+        'waiting',
+        this._trans.__('Waiting for the kernel to finish the running cell…')
+      );
       await Private.untilNotBusy(kernel);
       if (this._target !== target || this._isDisposed) {
         return;
@@ -155,7 +165,7 @@ export class SourcesModel implements IDisposable {
     if (!bridge) {
       return;
     }
-    this._setStatus('refreshing', 'Reading the list of arrays from the kernel…');
+    this._setStatus('refreshing', this._trans.__('Reading the list of arrays from the kernel…'));
     try {
       const cells = target
         .cells()
@@ -182,7 +192,7 @@ export class SourcesModel implements IDisposable {
       }
       const text = reason instanceof Error ? reason.message : String(reason);
       console.error('Perpend: listing the arrays failed', reason);
-      this._setStatus('error', `Could not list the arrays: ${text}`);
+      this._setStatus('error', this._trans.__('Could not list the arrays: %1', text));
     }
   }
 
@@ -203,7 +213,8 @@ export class SourcesModel implements IDisposable {
   private _cellResults: ArrayInfo[] = [];
   private _variables: ArrayInfo[] = [];
   private _status: SourcesModel.Status = 'none';
-  private _message = 'No notebook is active.';
+  private _message: string;
+  private readonly _trans: TranslationBundle;
   private _running: Promise<void> | null = null;
   private _again = false;
   private _isDisposed = false;
@@ -237,6 +248,8 @@ export namespace SourcesModel {
     bridgeOptions?: Partial<KernelBridge.IOptions>;
     /** Makes the bridge for a kernel; defaults to `new KernelBridge(options)`. */
     createBridge?: (options: KernelBridge.IOptions) => IBridge;
+    /** Translates what the model says to the user; English when absent. */
+    trans?: TranslationBundle;
   }
 }
 

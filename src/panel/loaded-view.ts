@@ -1,7 +1,12 @@
 import { RenderWidget } from './render-widget';
 import { closeIcon } from '@jupyterlab/ui-components';
 import type { TranslationBundle } from '@jupyterlab/translation';
-import type { ILoadedArray, LoadedArraysModel } from '../model/loaded';
+import {
+  humUnavailable,
+  workingDtype,
+  type ILoadedArray,
+  type LoadedArraysModel
+} from '../model/loaded';
 import { formatShape, formatValue } from './format';
 
 /**
@@ -65,7 +70,22 @@ export class LoadedView extends RenderWidget {
     label.title = item.label;
     const meta = document.createElement('span');
     meta.className = 'pp-LoadedItem-meta';
-    meta.textContent = `${formatShape(item.array.shape)} ${item.array.complex ? 'complex128' : 'float64'}`;
+    // The dtype Perpend computes in, and beside it the one the array had where it came from.
+    const working = workingDtype(item.array);
+    const source = item.array.dtype;
+    meta.textContent = `${formatShape(item.array.shape)} ${working}`;
+    if (source && source !== working) {
+      const from = document.createElement('span');
+      from.className = 'pp-LoadedItem-source';
+      from.textContent = trans.__('from %1', source);
+      from.title = trans.__(
+        'The array was %1 where it came from; Perpend computes in %2.',
+        source,
+        working
+      );
+      card.dataset.sourceDtype = source;
+      meta.append(' ', from);
+    }
     const remove = Private.button(trans.__('Remove from Perpend'), 'pp-LoadedItem-remove', () =>
       this._model.remove(item.id)
     );
@@ -75,7 +95,12 @@ export class LoadedView extends RenderWidget {
     stats.className = 'pp-LoadedItem-stats';
     const s = item.summary;
     stats.textContent = `N ${s.count} · RMS ${formatValue(s.rms)} · peak ${formatValue(s.peak)}`;
-    stats.title = `mean ${formatValue(s.mean)}${item.array.complex ? ` + ${formatValue(s.meanImag)}j` : ''}, min ${formatValue(s.min)}, max ${formatValue(s.max)} (real parts)`;
+    stats.title = trans.__(
+      'N: number of elements; RMS and peak |x| in the unit of the data. Mean %1, min %2, max %3 (real parts).',
+      `${formatValue(s.mean)}${item.array.complex ? ` + ${formatValue(s.meanImag)}j` : ''}`,
+      formatValue(s.min),
+      formatValue(s.max)
+    );
     card.append(head, stats);
     if (item.notes.length) {
       const notes = document.createElement('ul');
@@ -89,14 +114,23 @@ export class LoadedView extends RenderWidget {
     }
     const actions = document.createElement('div');
     actions.className = 'pp-LoadedItem-actions';
-    if (!item.array.complex) {
-      const hum = Private.button(
-        trans.__('Project off the mains-hum harmonics'),
-        'pp-LoadedItem-hum',
-        () => this._actions.removeHum(item)
-      );
-      hum.textContent = trans.__('Remove hum…');
-      actions.append(hum);
+    const hum = Private.button(
+      trans.__('Project off the mains-hum harmonics'),
+      'pp-LoadedItem-hum',
+      () => this._actions.removeHum(item)
+    );
+    hum.textContent = trans.__('Remove hum…');
+    actions.append(hum);
+    const why = humUnavailable(item, trans);
+    if (why) {
+      // Shown, not hidden: the button says it exists and the line below says why not here.
+      hum.disabled = true;
+      const reason = document.createElement('div');
+      reason.className = 'pp-LoadedItem-unavailable';
+      reason.id = `pp-why-hum-${item.id}`;
+      reason.textContent = why;
+      hum.setAttribute('aria-describedby', reason.id);
+      card.append(actions, reason);
     }
     const save = Private.button(
       trans.__('Save as a numpy array in the kernel'),
@@ -105,7 +139,9 @@ export class LoadedView extends RenderWidget {
     );
     save.textContent = trans.__('Save to kernel…');
     actions.append(save);
-    card.append(actions);
+    if (!why) {
+      card.append(actions);
+    }
     return card;
   }
 

@@ -1,5 +1,7 @@
+import { CommandToolbarButton, SidePanel } from '@jupyterlab/ui-components';
+import type { ITranslator, TranslationBundle } from '@jupyterlab/translation';
+import type { CommandRegistry } from '@lumino/commands';
 import { Panel, Widget } from '@lumino/widgets';
-import type { TranslationBundle } from '@jupyterlab/translation';
 import type { LoadedArraysModel } from '../model/loaded';
 import type { SourcesModel } from '../model/sources';
 import { PanelActions } from './actions';
@@ -7,38 +9,50 @@ import { perpendIcon } from './icons';
 import { LoadedView } from './loaded-view';
 import { SourcesView } from './sources-view';
 
-/** The Perpend side panel: a heading and the views of the workbench, stacked. */
-export class PerpendSidebar extends Panel {
+/**
+ * The Perpend side panel, a JupyterLab SidePanel: its title in the header, the commands that act
+ * on the whole panel in its toolbar (bound to the same commands as the palette and menus), and
+ * the views of the workbench stacked in its content.
+ */
+export class PerpendSidebar extends SidePanel {
   constructor(options: PerpendSidebar.IOptions) {
-    super();
+    super({ content: new Panel(), translator: options.translator });
+    const trans = options.trans;
     this.id = 'perpend-sidebar';
     this.addClass('pp-Sidebar');
     this.title.icon = perpendIcon;
-    this.title.caption = options.trans.__('Perpend: subspaces and adaptive filters');
-    const heading = new Widget();
-    heading.addClass('pp-Sidebar-heading');
-    const h2 = document.createElement('h2');
-    h2.textContent = options.trans.__('Perpend');
-    heading.node.append(h2);
-    const actions = new PanelActions(options.loaded, options.sources, options.trans);
+    this.title.caption = trans.__('Perpend: subspaces and adaptive filters');
+
+    const heading = new Widget({ node: document.createElement('h2') });
+    heading.addClass('pp-Sidebar-title');
+    heading.node.textContent = trans.__('Perpend');
+    this.header.addWidget(heading);
+    for (const id of options.toolbarCommands ?? []) {
+      this.toolbar.addItem(
+        id,
+        new CommandToolbarButton({ commands: options.commands, id, label: '' })
+      );
+    }
+
+    this.actions = new PanelActions(options.loaded, options.sources, trans);
     this.sources = new SourcesView({
       model: options.sources,
-      trans: options.trans,
-      onActivate: info => void options.loaded.loadFromKernel(info)
+      trans,
+      onActivate: info => void this.actions.load(info)
     });
     this.loaded = new LoadedView({
       model: options.loaded,
-      trans: options.trans,
+      trans,
       actions: {
-        save: item => void actions.save(item),
-        removeHum: item => void actions.removeHum(item)
+        save: item => void this.actions.save(item),
+        removeHum: item => void this.actions.removeHum(item)
       }
     });
-    this.addWidget(heading);
-    this.addWidget(this.sources);
-    this.addWidget(this.loaded);
+    this.content.addWidget(this.sources);
+    this.content.addWidget(this.loaded);
   }
 
+  readonly actions: PanelActions;
   readonly sources: SourcesView;
   readonly loaded: LoadedView;
 }
@@ -48,5 +62,9 @@ export namespace PerpendSidebar {
     sources: SourcesModel;
     loaded: LoadedArraysModel;
     trans: TranslationBundle;
+    translator?: ITranslator;
+    commands: CommandRegistry;
+    /** Commands shown as buttons in the panel's toolbar (icon and caption from the command). */
+    toolbarCommands?: ReadonlyArray<string>;
   }
 }

@@ -1,5 +1,4 @@
 import { RenderWidget } from './render-widget';
-import { refreshIcon } from '@jupyterlab/ui-components';
 import type { TranslationBundle } from '@jupyterlab/translation';
 import type { ArrayInfo } from '../bridge';
 import type { SourcesModel } from '../model/sources';
@@ -20,15 +19,7 @@ export class SourcesView extends RenderWidget {
     header.className = 'pp-SourcesView-header';
     this._title = document.createElement('span');
     this._title.className = 'pp-SourcesView-notebook';
-    const refresh = document.createElement('button');
-    refresh.className = 'pp-Button pp-SourcesView-refresh jp-Button';
-    refresh.title = this._trans.__('List the arrays again');
-    refresh.setAttribute('aria-label', refresh.title);
-    refreshIcon.element({ container: refresh, tag: 'span' });
-    refresh.addEventListener('click', () => {
-      void this._model?.refresh();
-    });
-    header.append(this._title, refresh);
+    header.append(this._title);
     this._status = document.createElement('div');
     this._status.className = 'pp-SourcesView-status';
     this._status.setAttribute('role', 'status');
@@ -55,6 +46,7 @@ export class SourcesView extends RenderWidget {
     const model = this._model;
     const trans = this._trans;
     this._title.textContent = model?.target?.name ?? trans.__('No notebook');
+    this._title.title = this._title.textContent;
     this._status.textContent = model?.message ?? '';
     this._status.dataset.status = model?.status ?? 'none';
     this._body.replaceChildren();
@@ -134,6 +126,15 @@ namespace Private {
       section.append(hint(empty));
       return section;
     }
+    // A note every row carries (the output-cache caveat) is said once, under the heading.
+    const shared = infos[0].notes.filter(n => infos.every(i => i.notes.includes(n)));
+    if (infos.length > 1) {
+      for (const n of shared) {
+        const p = hint(n);
+        p.classList.add('pp-SourcesView-note');
+        section.append(p);
+      }
+    }
     const table = document.createElement('table');
     table.className = 'pp-ArrayTable';
     const head = table.createTHead().insertRow();
@@ -152,22 +153,35 @@ namespace Private {
       const row = body.insertRow();
       row.className = 'pp-ArrayTable-row';
       row.dataset.label = info.label;
-      row.title = [
-        `${info.label}: ${formatShape(info.shape)} ${info.dtype}, ${formatBytes(info.bytes)}`,
-        ...info.notes
-      ].join('\n');
-      if (onActivate && info.readable !== false) {
+      const shape = formatShape(info.shape);
+      const size = formatBytes(info.bytes);
+      const notes = infos.length > 1 ? info.notes.filter(n => !shared.includes(n)) : info.notes;
+      const readable = info.readable !== false;
+      if (onActivate && readable) {
         row.tabIndex = 0;
+        row.setAttribute('role', 'button');
         row.classList.add('pp-mod-activatable');
-        row.setAttribute('aria-label', trans.__('Load %1 into Perpend', info.label));
+        row.setAttribute(
+          'aria-label',
+          trans.__('Load %1 into Perpend: shape %2, %3, %4', info.label, shape, info.dtype, size)
+        );
         row.addEventListener('click', () => onActivate(info));
         row.addEventListener('keydown', event => {
-          if (event.key === 'Enter') {
+          if (event.key === 'Enter' || event.key === ' ') {
+            // Space would scroll the panel; Enter must not reach the notebook.
+            event.preventDefault();
+            event.stopPropagation();
             onActivate(info);
           }
         });
+      } else if (!readable) {
+        row.classList.add('pp-mod-unreadable');
+        row.setAttribute(
+          'aria-label',
+          trans.__('%1: shape %2, %3, %4 (cannot be read)', info.label, shape, info.dtype, size)
+        );
       }
-      const cells = [info.label, formatShape(info.shape), info.dtype, formatBytes(info.bytes)];
+      const cells = [info.label, shape, info.dtype, size];
       const classes = [
         'pp-ArrayTable-label',
         'pp-ArrayTable-shape',
@@ -178,9 +192,23 @@ namespace Private {
         const td = row.insertCell();
         td.className = classes[i];
         td.textContent = text;
+        td.title = text;
       });
+      if (notes.length) {
+        // The row's own notes (same object as a variable, why it cannot be read) stay visible.
+        const noteRow = body.insertRow();
+        noteRow.className = 'pp-ArrayTable-notes';
+        const td = noteRow.insertCell();
+        td.colSpan = 4;
+        td.textContent = notes.join(' ');
+        const id = `pp-notes-${nextId++}`;
+        td.id = id;
+        row.setAttribute('aria-describedby', id);
+      }
     }
     section.append(table);
     return section;
   }
+
+  export let nextId = 0;
 }

@@ -5,7 +5,8 @@
  */
 import { spawnSync } from 'node:child_process';
 import path from 'node:path';
-import { LoadedArraysModel } from '../../src/model/loaded';
+import { humUnavailable, LoadedArraysModel } from '../../src/model/loaded';
+import type { SourcesModel } from '../../src/model/sources';
 
 // The model reports background failures with console.error; keep the test output readable.
 beforeEach(() => {
@@ -86,4 +87,82 @@ test('notes given with parsed text are kept (e.g. that the output is not in the 
   const item = model.loadFromText('cell 3 output', '[1.5, 2.5]', undefined, ['pick the variable']);
   expect(item?.notes).toContain('pick the variable');
   expect(Array.from(item!.array.data)).toEqual([1.5, 2.5]);
+});
+
+/** A bridge stand-in that serves one cell result, or fails to (the real bridge: integration). */
+function fakeBridge(read: () => Promise<Float64Array>) {
+  return {
+    activity: { state: 'idle' },
+    activityChanged: { connect: () => true, disconnect: () => true },
+    readArray: async () => ({ data: await read(), shape: [3], complex: false, dtype: 'float32' })
+  } as unknown as SourcesModel.IBridge;
+}
+
+test('an output of this session is read from the kernel at full precision', async () => {
+  const bridge = fakeBridge(async () => new Float64Array([0.1, 0.2, 0.30000001192092896]));
+  const model = new LoadedArraysModel({ bridge: () => bridge });
+  const item = await model.loadOutput(
+    {
+      cellId: 'c',
+      cellIndex: 2,
+      type: 'execute_result',
+      executionCount: 5,
+      data: { 'text/plain': 'array([0.1, 0.2, 0.3], dtype=float32)' }
+    },
+    () => true
+  );
+  expect(item?.origin).toBe('kernel');
+  expect(item?.label).toBe('Out[5]');
+  expect(item?.array.dtype).toBe('float32'); // the source dtype is kept for display
+  expect(item?.array.data[2]).toBe(0.30000001192092896);
+});
+
+test('when the kernel read fails the output is parsed from its text, and says so', async () => {
+  const bridge = fakeBridge(async () => {
+    throw new Error('stale count');
+  });
+  const model = new LoadedArraysModel({ bridge: () => bridge });
+  const item = await model.loadOutput(
+    {
+      cellId: 'c',
+      cellIndex: 2,
+      type: 'execute_result',
+      executionCount: 5,
+      data: { 'text/plain': 'array([1.5, 2.5])' }
+    },
+    () => true
+  );
+  expect(item?.origin).toBe('output-text');
+  expect(item?.label).toBe('Out[5] (text)');
+  expect(item?.notes.join(' ')).toMatch(/Parsed from the output's text/);
+});
+
+test('a stream output is refused with a reason and nothing is added', async () => {
+  const model = new LoadedArraysModel({ bridge: () => null });
+  const item = await model.loadOutput(
+    {
+      cellId: 'c',
+      cellIndex: 1,
+      type: 'stream',
+      executionCount: null,
+      data: { 'text/plain': '[1]' }
+    },
+    () => true
+  );
+  expect(item).toBeNull();
+  expect(model.message).toMatch(/cannot hold an array/);
+  expect(model.items).toHaveLength(0);
+});
+
+test('a complex array says why hum removal is unavailable for it', () => {
+  const model = new LoadedArraysModel({ bridge: () => null });
+  const real = model.loadFromText('r', '[1.0, 2.0]')!;
+  const cplx = model.loadFromText('z', 'array([1.+2.j, 3.-1.j])')!;
+  expect(cplx.array.complex).toBe(true);
+  expect(humUnavailable(real)).toBeNull();
+  expect(humUnavailable(cplx)).toMatch(
+    /z is complex; hum removal with real harmonics needs a real signal/
+  );
+  expect(model.removeHum(cplx.id, { f0: 50, fs: 1000, harmonics: 2 })).toBeNull();
+  expect(model.message).toMatch(/needs a real signal/);
 });
