@@ -64,7 +64,9 @@ export class PanelActions {
       return;
     }
     if (result.status === 'written') {
-      Notification.success(trans.__('Saved %1 to the kernel as %2.', item.label, result.name));
+      Notification.success(trans.__('Saved %1 to the kernel as %2.', item.label, result.name), {
+        autoClose: Private.SUCCESS_MS
+      });
       void this._sources.refresh();
       if (result.warnings.length) {
         Notification.warning(result.warnings.join(' '), { autoClose: 8000 });
@@ -101,7 +103,9 @@ export class PanelActions {
       Notification.error(this._loaded.message, { autoClose: false });
       return;
     }
-    Notification.success(trans.__('Added %1: %2', result.label, result.notes[1] ?? ''));
+    Notification.success(trans.__('Added %1: %2', result.label, result.notes[1] ?? ''), {
+      autoClose: Private.SUCCESS_MS
+    });
   }
 
   private async _notifyLoad(
@@ -121,7 +125,7 @@ export class PanelActions {
     );
     Notification.promise(summary, {
       pending: { message: trans.__('Reading %1…', what), options: { autoClose: false } },
-      success: { message: text => String(text), options: { autoClose: 4000 } },
+      success: { message: text => String(text), options: { autoClose: Private.SUCCESS_MS } },
       error: {
         message: reason => (reason instanceof Error ? reason.message : String(reason)),
         options: { autoClose: false }
@@ -146,4 +150,12 @@ export async function confirmReplace(
     buttons: [Dialog.cancelButton(), Dialog.warnButton({ label: trans.__('Replace') })]
   });
   return answer.button.accept;
+}
+
+namespace Private {
+  /**
+   * How long a success stays on screen, in ms. A notification without autoClose is silent (it
+   * goes to the notification centre only), so every outcome sets one.
+   */
+  export const SUCCESS_MS = 5000;
 }
