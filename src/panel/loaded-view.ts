@@ -94,7 +94,12 @@ export class LoadedView extends RenderWidget {
     const stats = document.createElement('div');
     stats.className = 'pp-LoadedItem-stats';
     const s = item.summary;
-    stats.textContent = `N ${s.count} · RMS ${formatValue(s.rms)} · peak ${formatValue(s.peak)}`;
+    stats.textContent = trans.__(
+      'N %1 · RMS %2 · peak %3',
+      s.count,
+      formatValue(s.rms),
+      formatValue(s.peak)
+    );
     stats.title = trans.__(
       'N: number of elements; RMS and peak |x| in the unit of the data. Mean %1, min %2, max %3 (real parts).',
       `${formatValue(s.mean)}${item.array.complex ? ` + ${formatValue(s.meanImag)}j` : ''}`,

@@ -138,6 +138,28 @@ test('the output context-menu item is offered only on outputs that can hold an a
 test("the shortcut sends the active cell's array output to the panel", async () => {
   const page = lab.page;
   const sidebar = page.locator(SIDEBAR);
+  // The schema's menu entries and shortcuts: View ▸ Perpend lists the commands with their keys.
+  await page.locator('.lm-MenuBar-itemLabel', { hasText: /^View$/ }).click();
+  await page.locator('.lm-Menu:visible .lm-Menu-itemLabel', { hasText: /^Perpend$/ }).hover();
+  const submenu = page.locator('.lm-Menu:visible', { hasText: 'Open Perpend Panel' }).last();
+  await submenu.waitFor();
+  const entries = await submenu
+    .locator('.lm-Menu-item')
+    .evaluateAll(items =>
+      items.map(i =>
+        [
+          i.querySelector('.lm-Menu-itemLabel')?.textContent ?? '',
+          i.querySelector('.lm-Menu-itemShortcut')?.textContent ?? ''
+        ].join(' | ')
+      )
+    );
+  expect(entries).toEqual([
+    'Open Perpend Panel | ',
+    'List Notebook Arrays Again | Ctrl+Alt+R',
+    'Send Cell Output to Perpend | Ctrl+Alt+P'
+  ]);
+  await page.keyboard.press('Escape');
+  await page.keyboard.press('Escape');
   await cell(page, 'baseband = (primary').locator('.jp-InputPrompt').click();
   await page.keyboard.press('Escape');
   await page.keyboard.press('Control+Alt+p');
