@@ -43,7 +43,8 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
   ): IPerpend => {
     translator ??= nullTranslator;
     const trans = translator.load('perpend');
-    const sources = new SourcesModel({ trans });
+    // The bridge says its own sentences (errors, notes, the replace question) in the same language.
+    const sources = new SourcesModel({ trans, bridgeOptions: { translator } });
     const loaded = new LoadedArraysModel({ bridge: () => sources.bridge, trans });
     const follower = new NotebookFollower<NotebookPanel>({
       sources,

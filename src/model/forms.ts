@@ -126,7 +126,7 @@ export function checkVariableName(
   text: string,
   trans: TranslationBundle = englishBundle()
 ): FormCheck<string, 'name'> {
-  const check = normalizeIdentifier(text.trim());
+  const check = normalizeIdentifier(text.trim(), trans);
   if (!check.ok) {
     return {
       ok: false,

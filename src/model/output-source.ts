@@ -4,7 +4,7 @@
  * on a plain description of the output, so it runs (and is tested) without a notebook.
  */
 import type { TranslationBundle } from '@jupyterlab/translation';
-import { CACHE_NOTES, type ArraySource } from '../bridge';
+import { cacheNotes, type ArraySource } from '../bridge';
 
 /** A cell output as the notebook's model holds it. */
 export interface IOutputSnapshot {
@@ -89,7 +89,7 @@ export function planOutputRead(
         : trans.__('cell %1 output', output.cellIndex),
     text: json !== undefined ? json : (output.data['text/plain'] ?? ''),
     mimeType: json !== undefined ? 'application/json' : undefined,
-    notes: output.type === 'execute_result' ? [] : [trans.__(CACHE_NOTES.notCached)]
+    notes: output.type === 'execute_result' ? [] : [cacheNotes(trans).notCached]
   });
   return plans;
 }
