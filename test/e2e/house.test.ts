@@ -63,7 +63,7 @@ async function dismissToasts(page: Page): Promise<void> {
   }
   try {
     await page.locator('.Toastify__toast').first().waitFor({ state: 'detached', timeout: 10000 });
-  } catch (e) {
+  } catch {
     const left = await page.locator('#react-toastify-container').innerHTML();
     throw new Error(`notifications still shown: ${JSON.stringify(left)}`);
   }
