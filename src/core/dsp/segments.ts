@@ -258,6 +258,25 @@ export function fillSegment(
   }
 }
 
+// fft.js objects (twiddle and bit-reversal tables) by size, kept between calls: building one
+// costs a pass of cos/sin, and V8 drops optimised code that refers to objects that die, so a
+// fresh FFT per call would leave every call's first segments running unoptimised.
+const FFT_CACHE = new Map<number, FFT>();
+const FFT_CACHE_SIZES = 8;
+
+/** The fft.js transform of size n (a power of two ≥ 2), from the cache. */
+export function fftOf(n: number): FFT {
+  let f = FFT_CACHE.get(n);
+  if (f === undefined) {
+    f = new FFT(n);
+    if (FFT_CACHE.size >= FFT_CACHE_SIZES) {
+      FFT_CACHE.delete(FFT_CACHE.keys().next().value as number);
+    }
+    FFT_CACHE.set(n, f);
+  }
+  return f;
+}
+
 /** The FFT and its work buffers for one plan (allocated once, reused for every segment). */
 export class SegmentFFT {
   readonly fft: FFT;
@@ -266,7 +285,7 @@ export class SegmentFFT {
   /** Complex output, interleaved, 2·nfft. */
   readonly Z: Float64Array;
   constructor(readonly plan: Plan) {
-    this.fft = new FFT(plan.nfft);
+    this.fft = fftOf(plan.nfft);
     this.z = new Float64Array(2 * plan.nfft);
     this.Z = new Float64Array(2 * plan.nfft);
   }
