@@ -1,2 +1,3 @@
 export * from './learning';
 export * from './ensemble';
+export * from './display';
