@@ -31,7 +31,7 @@ test('the demo arrays are listed in the Perpend panel with their shapes and dtyp
   await page.waitForFunction(
     () =>
       document.querySelectorAll('#perpend-sidebar [data-kind="cells"] .pp-ArrayTable-row').length >=
-      4,
+      7,
     undefined,
     { timeout: 60000 }
   );
@@ -42,13 +42,23 @@ test('the demo arrays are listed in the Perpend panel with their shapes and dtyp
       dtype: tr.querySelector('.pp-ArrayTable-dtype')?.textContent ?? ''
     }))
   );
-  // The shapes and dtypes numpy reports for the demo (demo/build_demo_notebook.py).
+  // The shapes and dtypes numpy reports for the demo (demo/build_demo_notebook.py): reference,
+  // primary, rail, baseband, received, and the shape tuples of sensors (2,) and long_primary
+  // (1,), which are lists of numbers.
   const pairs = listed.map(r => `${r.shape.replace(/\u202f/g, ' ')} ${r.dtype}`).sort();
   expect(pairs).toEqual(
-    ['32000 float64', '32000 float64', '4 × 32000 float64', '4000 complex128'].sort()
+    [
+      '32000 float64',
+      '32000 float64',
+      '4 × 32000 float64',
+      '4000 complex128',
+      '4000 complex128',
+      '2 int64',
+      '1 int64'
+    ].sort()
   );
   // The summary cell returns a dict, not an array: it must not be listed.
-  expect(listed.length).toBe(4);
+  expect(listed.length).toBe(7);
 
   const variables = sidebar.locator(
     '.pp-SourcesView-section[data-kind="variables"] .pp-ArrayTable-row'
