@@ -1,2 +1,3 @@
 import './base.css';
 import './workbench.css';
+import './plots.css';

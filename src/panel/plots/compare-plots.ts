@@ -1,0 +1,271 @@
+/**
+ * Runs side by side: their learning curves overlaid (the legend names each run) and beside it a
+ * table of convergence time, steady-state MSE, misadjustment and run time, sorted by a click on
+ * a column's header and saved as CSV.
+ */
+import type { Message } from '@lumino/messaging';
+import type { ISignal } from '@lumino/signaling';
+import { Widget } from '@lumino/widgets';
+import type { Trans } from '../../model/workbench/rules';
+import type { Run } from '../../model/workbench/runs';
+import type { WorkbenchModel } from '../../model/workbench/workbench';
+import {
+  cellText,
+  compareColumns,
+  compareCsv,
+  compareRows,
+  compareSpec,
+  sortRows,
+  type CompareKey
+} from './compare';
+import { downloadText, PlotPane } from './plot-pane';
+import { loadPlotlyDist, type LoadPlotly } from './plotly';
+import { DEFAULT_PLOT_SETTINGS, type PlotSettings } from './settings';
+
+export class ComparePlots extends Widget {
+  constructor(options: ComparePlots.IOptions) {
+    super();
+    this.addClass('pp-ComparePlots');
+    this._trans = options.trans;
+    this._model = options.model;
+    this._settings = { ...DEFAULT_PLOT_SETTINGS, ...options.settings };
+    this._bar = document.createElement('div');
+    this._bar.className = 'pp-Plots-bar';
+    this._hint = document.createElement('p');
+    this._hint.className = 'pp-Plots-hint';
+    this._pane = new PlotPane({
+      owner: this,
+      trans: this._trans,
+      loadPlotly: options.loadPlotly ?? loadPlotlyDist,
+      settings: this._settings,
+      themeChanged: options.themeChanged
+    });
+    this._table = document.createElement('div');
+    this._table.className = 'pp-ComparePlots-table';
+    const body = document.createElement('div');
+    body.className = 'pp-ComparePlots-body';
+    body.append(this._pane.node, this._table);
+    this.node.append(this._bar, this._hint, body);
+    this._model.runChanged.connect(this._onRun, this);
+    this.update();
+  }
+
+  /** The runs compared (their ids; runs that are gone or have no learning curve are left out). */
+  get runIds(): ReadonlyArray<string> {
+    return this._runIds;
+  }
+  set runIds(ids: ReadonlyArray<string>) {
+    this._runIds = [...ids];
+    this._plotKey = null;
+    this.update();
+  }
+
+  /** The sort of the table. */
+  get sort(): { key: CompareKey; direction: 'ascending' | 'descending' } {
+    return this._sort;
+  }
+  set sort(s: { key: CompareKey; direction: 'ascending' | 'descending' }) {
+    this._sort = s;
+    this.update();
+  }
+
+  set settings(s: Partial<PlotSettings>) {
+    this._settings = { ...this._settings, ...s };
+    this._pane.driver.settings = this._settings;
+    this._plotKey = null;
+    this.update();
+  }
+
+  dispose(): void {
+    if (this.isDisposed) {
+      return;
+    }
+    this._model.runChanged.disconnect(this._onRun, this);
+    this._pane.dispose();
+    super.dispose();
+  }
+
+  protected onUpdateRequest(_msg: Message): void {
+    if (!this.isVisible) {
+      this._stale = true;
+      return;
+    }
+    this._stale = false;
+    this._render();
+  }
+
+  protected onAfterShow(_msg: Message): void {
+    if (this._stale) {
+      this.update();
+    }
+    this._pane.onShown();
+  }
+
+  protected onResize(_msg: Widget.ResizeMessage): void {
+    this._pane.redraw();
+  }
+
+  private _runs(): Run[] {
+    const byId = new Map(this._model.runs.map(r => [r.id, r]));
+    return this._runIds.map(id => byId.get(id)).filter((r): r is Run => r !== undefined);
+  }
+
+  private _onRun(_: WorkbenchModel, run: Run): void {
+    if (this._runIds.includes(run.id)) {
+      this.update();
+    }
+  }
+
+  private _render(): void {
+    const trans = this._trans;
+    const runs = this._runs();
+    const rows = sortRows(compareRows(runs), this._sort.key, this._sort.direction);
+    if (rows.length === 0) {
+      this._hint.textContent = trans.__(
+        'Choose adaptive-filter runs to compare their learning curves and figures.'
+      );
+      this._hint.hidden = false;
+      this._bar.replaceChildren();
+      this._table.replaceChildren();
+      this._plotKey = null;
+      this._pane.show(null);
+      return;
+    }
+    this._hint.hidden = true;
+    this._renderBar(rows.length);
+    this._renderTable(rows);
+    const shown = runs.filter(r => rows.some(row => row.id === r.id));
+    const key = shown.map(r => r.arrays.learningCurve).concat([this._smoothing as never]);
+    if (
+      this._plotKey &&
+      this._plotKey.length === key.length &&
+      this._plotKey.every((k, i) => k === key[i])
+    ) {
+      return;
+    }
+    this._plotKey = key;
+    this._pane.show(compareSpec(trans, shown, this._smoothing));
+  }
+
+  private _renderBar(count: number): void {
+    const trans = this._trans;
+    const label = document.createElement('label');
+    label.className = 'pp-Plots-control';
+    label.append(trans.__('Smoothing (samples)') + ' ');
+    const input = document.createElement('input');
+    input.type = 'number';
+    input.min = '1';
+    input.step = '1';
+    input.className = 'jp-mod-styled pp-Plots-number';
+    input.placeholder = trans.__('auto');
+    input.value = this._smoothing === null ? '' : String(this._smoothing);
+    input.addEventListener('change', () => {
+      if (input.value.trim() === '') {
+        this._smoothing = null;
+        this.update();
+        return;
+      }
+      const v = Number(input.value);
+      if (!Number.isSafeInteger(v) || v < 1) {
+        this._pane.showError(trans.__('Smoothing must be a whole number of samples, 1 or more.'));
+        return;
+      }
+      this._smoothing = v;
+      this.update();
+    });
+    label.append(input);
+    const title = document.createElement('span');
+    title.className = 'pp-Plots-title';
+    title.textContent = trans.__('Runs compared: %1', count);
+    const csv = document.createElement('button');
+    csv.type = 'button';
+    csv.className = 'jp-mod-styled pp-PlotPane-export';
+    csv.textContent = trans.__('Table as CSV');
+    csv.title = trans.__('Save the table, in its current order, as CSV');
+    csv.addEventListener('click', () => {
+      const rows = sortRows(compareRows(this._runs()), this._sort.key, this._sort.direction);
+      downloadText(compareCsv(trans, rows), 'run-comparison.csv');
+    });
+    const controls = document.createElement('div');
+    controls.className = 'pp-Plots-controls';
+    controls.append(
+      label,
+      this._pane.exportButtons(() => 'learning-curves'),
+      csv
+    );
+    this._bar.replaceChildren(title, controls);
+  }
+
+  private _renderTable(rows: ReturnType<typeof compareRows>): void {
+    const trans = this._trans;
+    const table = document.createElement('table');
+    table.className = 'pp-ComparePlots-grid';
+    const head = document.createElement('tr');
+    for (const c of compareColumns(trans)) {
+      const th = document.createElement('th');
+      th.scope = 'col';
+      const sorted = this._sort.key === c.key;
+      th.setAttribute('aria-sort', sorted ? this._sort.direction : 'none');
+      const b = document.createElement('button');
+      b.type = 'button';
+      b.className = 'pp-ComparePlots-sort';
+      b.dataset.key = c.key;
+      b.textContent = c.unit ? `${c.name} (${c.unit})` : c.name;
+      b.title = trans.__('Sort by this column');
+      b.addEventListener('click', () => {
+        this.sort = {
+          key: c.key,
+          direction: sorted && this._sort.direction === 'ascending' ? 'descending' : 'ascending'
+        };
+      });
+      th.append(b);
+      head.append(th);
+    }
+    const thead = document.createElement('thead');
+    thead.append(head);
+    const tbody = document.createElement('tbody');
+    for (const r of rows) {
+      const tr = document.createElement('tr');
+      tr.dataset.runId = r.id;
+      for (const c of compareColumns(trans)) {
+        const td = document.createElement('td');
+        td.textContent = cellText(r[c.key]);
+        if (c.key !== 'label') {
+          td.className = 'pp-ComparePlots-num';
+        }
+        tr.append(td);
+      }
+      tbody.append(tr);
+    }
+    table.append(thead, tbody);
+    this._table.replaceChildren(table);
+  }
+
+  private readonly _trans: Trans;
+  private readonly _model: WorkbenchModel;
+  private readonly _bar: HTMLDivElement;
+  private readonly _hint: HTMLParagraphElement;
+  private readonly _table: HTMLDivElement;
+  private readonly _pane: PlotPane;
+  private _settings: PlotSettings;
+  private _runIds: string[] = [];
+  private _sort: { key: CompareKey; direction: 'ascending' | 'descending' } = {
+    key: 'steadyStateMseDb',
+    direction: 'ascending'
+  };
+  private _smoothing: number | null = null;
+  private _plotKey: unknown[] | null = null;
+  private _stale = false;
+}
+
+export namespace ComparePlots {
+  export interface IOptions {
+    trans: Trans;
+    model: WorkbenchModel;
+    /** Gives plotly (default: the lazily imported plotly.js-dist-min); tests pass a fake. */
+    loadPlotly?: LoadPlotly;
+    settings?: Partial<PlotSettings>;
+    /** IThemeManager.themeChanged, when available; otherwise the body's theme name is watched. */
+    themeChanged?: ISignal<unknown, unknown>;
+  }
+}

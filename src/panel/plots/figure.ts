@@ -1,0 +1,260 @@
+/**
+ * A plot spec as plotly's data and layout for a visible x-range and a number of pixel columns,
+ * and the CSV of what a range shows. Long series go through the core's envelope here; SVG
+ * `scatter` only (never `scattergl`, which takes seconds per frame without a GPU).
+ */
+import { csvText, withUnit, type CsvColumn } from './csv';
+import { fullPoints, indexRange, linePoints, type LineSource, type XRange } from './lines';
+import type { PlotObject } from './plotly';
+import type { PlotSpec, StaticTrace } from './spec';
+import { seriesColor, themeLayout, type PlotTheme } from './theme';
+
+export interface Figure {
+  data: PlotObject[];
+  layout: PlotObject;
+}
+
+/** Space around the plot area (px). */
+export const MARGIN = { l: 64, r: 16, t: 36, b: 48 };
+
+/** Width of the plot area inside a graph of `width` px. */
+export function plotAreaWidth(width: number): number {
+  return Math.max(1, width - MARGIN.l - MARGIN.r);
+}
+
+function lineTrace(src: LineSource, theme: PlotTheme, range: XRange, columns: number): PlotObject {
+  const [i0, i1] = indexRange(src, range);
+  const p = linePoints(src, i0, i1, columns);
+  const color = seriesColor(theme, src.color);
+  const t: PlotObject = {
+    type: 'scatter',
+    mode: 'lines',
+    name: src.name,
+    x: p.x,
+    y: p.y,
+    line: { color, width: src.faint ? 0.5 : 1.25, dash: src.dash ?? 'solid' },
+    showlegend: !src.noLegend,
+    hoverinfo: 'x+y+name'
+  };
+  if (src.fill) {
+    t.fill = 'tonexty';
+    t.fillcolor = withAlpha(color, 0.18);
+  }
+  if (src.faint) {
+    t.opacity = 0.6;
+  }
+  if (src.lower) {
+    t.yaxis = 'y2';
+  }
+  return t;
+}
+
+function staticTrace(s: StaticTrace, theme: PlotTheme): PlotObject {
+  const color = seriesColor(theme, s.color);
+  const base: PlotObject = { name: s.name, x: s.x, y: s.y };
+  if (s.lower) {
+    base.yaxis = 'y2';
+  }
+  switch (s.kind) {
+    case 'bar':
+      return { ...base, type: 'bar', marker: { color } };
+    case 'markers':
+      return {
+        ...base,
+        type: 'scatter',
+        mode: 'markers',
+        marker: { color, size: 4, opacity: 0.7 }
+      };
+    case 'line':
+      return {
+        ...base,
+        type: 'scatter',
+        mode: 'lines',
+        line: { color, width: 1.25, dash: s.dash ?? 'solid' }
+      };
+  }
+}
+
+/** A CSS colour with an alpha, for band fills (hex and rgb() forms; others as they are). */
+export function withAlpha(color: string, alpha: number): string {
+  const c = color.trim();
+  const hex = /^#([0-9a-f]{3}|[0-9a-f]{6})$/i.exec(c);
+  if (hex) {
+    const h = hex[1].length === 3 ? hex[1].replace(/./g, ch => ch + ch) : hex[1];
+    const v = parseInt(h, 16);
+    return `rgba(${(v >> 16) & 255},${(v >> 8) & 255},${v & 255},${alpha})`;
+  }
+  const rgb = /^rgba?\(\s*([\d.]+)[ ,]+([\d.]+)[ ,]+([\d.]+)/i.exec(c);
+  if (rgb) {
+    return `rgba(${rgb[1]},${rgb[2]},${rgb[3]},${alpha})`;
+  }
+  return c;
+}
+
+/** plotly data and layout of a spec. `range` is the visible x-range (null: all). */
+export function buildFigure(
+  spec: PlotSpec,
+  theme: PlotTheme,
+  range: XRange,
+  columns: number,
+  size: { width: number; height: number }
+): Figure {
+  const data: PlotObject[] = [
+    ...spec.lines.map(l => lineTrace(l, theme, range, columns)),
+    ...spec.traces.map(t => staticTrace(t, theme))
+  ];
+  const base = themeLayout(theme);
+  const two = spec.y2Title !== undefined;
+  const xaxis: PlotObject = {
+    ...(base.xaxis as PlotObject),
+    title: { text: spec.xTitle },
+    anchor: two ? 'y2' : 'y'
+  };
+  if (range) {
+    xaxis.range = [range[0], range[1]];
+    xaxis.autorange = false;
+  } else {
+    xaxis.autorange = true;
+  }
+  const yaxis: PlotObject = {
+    ...(base.yaxis as PlotObject),
+    title: { text: spec.yTitle },
+    autorange: true,
+    domain: two ? [0.45, 1] : [0, 1]
+  };
+  if (spec.equalAxes) {
+    yaxis.scaleanchor = 'x';
+    yaxis.scaleratio = 1;
+  }
+  const layout: PlotObject = {
+    ...base,
+    width: size.width,
+    height: size.height,
+    margin: { ...MARGIN, t: MARGIN.t + (spec.lines.length + spec.traces.length > 1 ? 8 : 0) },
+    title: { text: spec.title, x: 0, xanchor: 'left', font: { size: theme.fontSize + 1 } },
+    showlegend: data.some(t => t.showlegend !== false) && data.length > 1,
+    legend: { ...(base.legend as PlotObject), orientation: 'h', x: 0, y: 1.0, yanchor: 'bottom' },
+    hovermode: 'closest',
+    xaxis,
+    yaxis
+  };
+  if (two) {
+    layout.yaxis2 = {
+      ...(base.yaxis2 as PlotObject),
+      title: { text: spec.y2Title },
+      autorange: true,
+      domain: [0, 0.38],
+      anchor: 'x'
+    };
+  }
+  const shapes: PlotObject[] = [];
+  const annotations: PlotObject[] = [];
+  for (const m of spec.markers) {
+    const color = seriesColor(theme, m.color);
+    const yref = m.lower ? 'y2' : 'y';
+    if (m.orientation === 'h') {
+      shapes.push({
+        type: 'line',
+        xref: 'paper',
+        x0: 0,
+        x1: 1,
+        yref,
+        y0: m.value,
+        y1: m.value,
+        line: { color, width: 1, dash: 'dash' }
+      });
+      annotations.push({
+        xref: 'paper',
+        x: 1,
+        xanchor: 'right',
+        yref,
+        y: m.value,
+        yanchor: 'bottom',
+        text: m.label,
+        showarrow: false,
+        font: { color, size: theme.fontSize - 1 }
+      });
+    } else {
+      shapes.push({
+        type: 'line',
+        xref: 'x',
+        x0: m.value,
+        x1: m.value,
+        yref: 'paper',
+        y0: 0,
+        y1: 1,
+        line: { color, width: 1, dash: 'dot' }
+      });
+      annotations.push({
+        xref: 'x',
+        x: m.value,
+        xanchor: 'left',
+        yref: 'paper',
+        y: 1,
+        yanchor: 'top',
+        text: m.label,
+        showarrow: false,
+        font: { color, size: theme.fontSize - 1 }
+      });
+    }
+  }
+  layout.shapes = shapes;
+  layout.annotations = annotations;
+  return { data, layout };
+}
+
+/** Thrown when a CSV export would exceed the row limit; the message says what to do. */
+export class CsvTooLarge extends Error {}
+
+/**
+ * CSV of what the visible x-range shows, at full resolution: every sample of each long series
+ * (not the envelope) and each short trace's points inside the range. Series on one grid share
+ * the x column; otherwise each gets its own x column.
+ */
+export function figureCsv(spec: PlotSpec, range: XRange, maxRows: number): string {
+  const columns: CsvColumn[] = [];
+  const xHeader = withUnit(spec.xTitle.replace(/\s*\([^)]*\)\s*$/, ''), spec.xUnit);
+  const partName = (l: LineSource): string =>
+    l.signal.complex
+      ? `${l.name} ${l.part === 'abs' ? '|·|' : l.part === 'phase' ? 'arg' : l.part === 'imag' ? 'Im' : 'Re'}`
+      : l.name;
+  if (spec.lines.length > 0) {
+    const first = spec.lines[0];
+    const shared = spec.lines.every(
+      l => l.signal.n === first.signal.n && l.dx === first.dx && l.xTable === first.xTable
+    );
+    for (const l of spec.lines) {
+      const [i0, i1] = indexRange(l, range);
+      if (i1 - i0 > maxRows) {
+        throw new CsvTooLarge(
+          `The visible range holds ${i1 - i0} samples of "${l.name}"; a CSV export takes at most ${maxRows} rows. Zoom in first.`
+        );
+      }
+    }
+    spec.lines.forEach((l, i) => {
+      const [i0, i1] = indexRange(l, range);
+      const p = fullPoints(l, i0, i1);
+      if (!shared || i === 0) {
+        columns.push({ header: shared ? xHeader : `${xHeader} · ${partName(l)}`, values: p.x });
+      }
+      columns.push({ header: partName(l) + (l.db ? ' (dB)' : ''), values: p.y });
+    });
+  }
+  const lo = range ? Math.min(range[0], range[1]) : -Infinity;
+  const hi = range ? Math.max(range[0], range[1]) : Infinity;
+  for (const t of spec.traces) {
+    const xs: Array<number | string> = [];
+    const ys: number[] = [];
+    for (let k = 0; k < t.y.length; k++) {
+      const x = t.x[k];
+      if (typeof x === 'number' && (x < lo || x > hi)) {
+        continue;
+      }
+      xs.push(x);
+      ys.push(t.y[k]);
+    }
+    columns.push({ header: `${xHeader} · ${t.name}`, values: xs });
+    columns.push({ header: `${t.name} · ${spec.yTitle}`, values: ys });
+  }
+  return csvText(columns);
+}

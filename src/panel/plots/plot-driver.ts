@@ -1,0 +1,201 @@
+/**
+ * One plotly graph: loads plotly on the first draw, draws with `Plotly.react` only, rebuilds the
+ * envelope of the long series for the visible range after every zoom or pan
+ * (`plotly_relayout`), exports PNG/SVG through plotly and CSV of the visible range, and purges
+ * the graph on dispose. It holds no DOM of its own beyond the node it is given.
+ */
+import type { IDisposable } from '@lumino/disposable';
+import { buildFigure, figureCsv, plotAreaWidth } from './figure';
+import type { XRange } from './lines';
+import type { LoadPlotly, PlotlyGraph, PlotlyLike } from './plotly';
+import { columnsFor, type PlotSettings } from './settings';
+import type { PlotSpec } from './spec';
+import type { PlotTheme } from './theme';
+
+/** The x-range a `plotly_relayout` event sets: a range, null (autorange), or undefined (none). */
+export function relayoutRange(ev: unknown): XRange | undefined {
+  if (!ev || typeof ev !== 'object') {
+    return undefined;
+  }
+  const e = ev as Record<string, unknown>;
+  if (e['xaxis.autorange'] === true) {
+    return null;
+  }
+  const a = e['xaxis.range[0]'];
+  const b = e['xaxis.range[1]'];
+  if (typeof a === 'number' && typeof b === 'number') {
+    return [a, b];
+  }
+  const r = e['xaxis.range'];
+  if (Array.isArray(r) && typeof r[0] === 'number' && typeof r[1] === 'number') {
+    return [r[0], r[1]];
+  }
+  return undefined;
+}
+
+export class PlotDriver implements IDisposable {
+  constructor(options: PlotDriver.IOptions) {
+    this._node = options.node;
+    this._load = options.loadPlotly;
+    this._settings = options.settings;
+    this._onError = options.onError;
+  }
+
+  get isDisposed(): boolean {
+    return this._disposed;
+  }
+
+  /** The spec drawn (null: nothing). A new spec resets the zoom. */
+  get spec(): PlotSpec | null {
+    return this._spec;
+  }
+  set spec(s: PlotSpec | null) {
+    if (s !== this._spec) {
+      this._spec = s;
+      this._range = null;
+    }
+  }
+
+  /** The visible x-range (null: everything). */
+  get range(): XRange {
+    return this._range;
+  }
+
+  set settings(s: PlotSettings) {
+    this._settings = s;
+  }
+
+  /** Number of pixel columns the last draw enveloped into. */
+  get columns(): number {
+    return this._columns;
+  }
+
+  /**
+   * Draws the spec at the node's size in `theme`. Concurrent calls conflate: only the latest
+   * reaches plotly. Resolves when plotly has drawn (or nothing was to draw).
+   */
+  async draw(theme: PlotTheme, size: { width: number; height: number }): Promise<void> {
+    this._theme = theme;
+    this._size = size;
+    const ticket = ++this._ticket;
+    if (!this._plotly) {
+      if (!this._spec) {
+        return;
+      }
+      const plotly = await this._load();
+      if (this._disposed || ticket !== this._ticket) {
+        return;
+      }
+      this._plotly = plotly;
+    }
+    await this._react(ticket);
+  }
+
+  /** Sets the visible x-range and redraws (as a zoom does). */
+  async zoom(range: XRange): Promise<void> {
+    this._range = range;
+    if (this._theme && this._size && this._plotly) {
+      await this._react(++this._ticket);
+    }
+  }
+
+  /** CSV of the visible range at full resolution. Throws CsvTooLarge past the row limit. */
+  csv(): string {
+    if (!this._spec) {
+      throw new Error('nothing is plotted');
+    }
+    return figureCsv(this._spec, this._range, this._settings.csvMaxRows);
+  }
+
+  /** PNG or SVG of the graph through plotly. */
+  async downloadImage(format: 'png' | 'svg', filename: string): Promise<void> {
+    if (!this._plotly || !this._spec) {
+      throw new Error('nothing is plotted yet');
+    }
+    await this._plotly.downloadImage(this._node, {
+      format,
+      filename,
+      width: this._size?.width,
+      height: this._size?.height
+    });
+  }
+
+  dispose(): void {
+    if (this._disposed) {
+      return;
+    }
+    this._disposed = true;
+    const g = this._node as unknown as PlotlyGraph;
+    if (this._listening && g.removeAllListeners) {
+      g.removeAllListeners('plotly_relayout');
+    }
+    if (this._plotly) {
+      this._plotly.purge(this._node);
+    }
+    this._spec = null;
+  }
+
+  private async _react(ticket: number): Promise<void> {
+    const plotly = this._plotly;
+    if (!plotly || this._disposed || !this._theme || !this._size) {
+      return;
+    }
+    if (!this._spec) {
+      plotly.purge(this._node);
+      this._listening = false;
+      return;
+    }
+    this._columns = columnsFor(plotAreaWidth(this._size.width), this._settings.pointsPerPixel);
+    const fig = buildFigure(this._spec, this._theme, this._range, this._columns, this._size);
+    await plotly.react(this._node, fig.data, fig.layout, {
+      displaylogo: false,
+      responsive: false,
+      modeBarButtonsToRemove: ['toImage', 'sendDataToCloud']
+    });
+    if (this._disposed || ticket !== this._ticket) {
+      return;
+    }
+    const g = this._node as unknown as PlotlyGraph;
+    if (!this._listening && g.on) {
+      g.on('plotly_relayout', ev => this._onRelayout(ev));
+      this._listening = true;
+    }
+  }
+
+  private _onRelayout(ev: unknown): void {
+    const r = relayoutRange(ev);
+    if (r === undefined || this._disposed) {
+      return;
+    }
+    this._range = r;
+    // Only long series depend on the range; short traces are already all there.
+    if (this._spec && this._spec.lines.length > 0) {
+      this._react(++this._ticket).catch(err => this._onError(err));
+    }
+  }
+
+  private readonly _node: HTMLElement;
+  private readonly _load: LoadPlotly;
+  private readonly _onError: (err: unknown) => void;
+  private _settings: PlotSettings;
+  private _plotly: PlotlyLike | null = null;
+  private _spec: PlotSpec | null = null;
+  private _range: XRange = null;
+  private _theme: PlotTheme | null = null;
+  private _size: { width: number; height: number } | null = null;
+  private _columns = 0;
+  private _ticket = 0;
+  private _listening = false;
+  private _disposed = false;
+}
+
+export namespace PlotDriver {
+  export interface IOptions {
+    /** The graph's node (plotly draws into it). */
+    node: HTMLElement;
+    loadPlotly: LoadPlotly;
+    settings: PlotSettings;
+    /** Failures of redraws started by plotly's own events. */
+    onError: (err: unknown) => void;
+  }
+}

@@ -1,0 +1,222 @@
+/**
+ * A plot inside a widget: the graph node, its PlotDriver, the export buttons, a note and a
+ * status line. It follows the container's size (ResizeObserver), the JupyterLab theme (a
+ * themeChanged signal when given, otherwise the body's data-jp-theme-name), and does no work
+ * while its widget is hidden: a redraw asked for then is done when it is shown.
+ */
+import type { ISignal } from '@lumino/signaling';
+import type { Widget } from '@lumino/widgets';
+import type { Trans } from '../../model/workbench/rules';
+import { CsvTooLarge } from './figure';
+import { fileStem } from './csv';
+import { PlotDriver } from './plot-driver';
+import type { LoadPlotly } from './plotly';
+import type { PlotSettings } from './settings';
+import type { PlotSpec } from './spec';
+import { readTheme } from './theme';
+
+/** Saves text as a file through the browser's download. */
+export function downloadText(text: string, filename: string, type = 'text/csv'): void {
+  const url = URL.createObjectURL(new Blob([text], { type }));
+  const a = document.createElement('a');
+  a.href = url;
+  a.download = filename;
+  a.style.display = 'none';
+  document.body.append(a);
+  a.click();
+  a.remove();
+  // Revoked after the click has been handled.
+  setTimeout(() => URL.revokeObjectURL(url), 0);
+}
+
+export class PlotPane {
+  constructor(options: PlotPane.IOptions) {
+    this._owner = options.owner;
+    this._trans = options.trans;
+    this.node = document.createElement('div');
+    this.node.className = 'pp-PlotPane';
+    this.graph = document.createElement('div');
+    this.graph.className = 'pp-PlotPane-graph';
+    this.note = document.createElement('p');
+    this.note.className = 'pp-PlotPane-note';
+    this.status = document.createElement('p');
+    this.status.className = 'pp-PlotPane-status';
+    this.status.setAttribute('role', 'status');
+    this.node.append(this.graph, this.note, this.status);
+    this.driver = new PlotDriver({
+      node: this.graph,
+      loadPlotly: options.loadPlotly,
+      settings: options.settings,
+      onError: err => this._fail(err)
+    });
+    this._themeChanged = options.themeChanged ?? null;
+    if (this._themeChanged) {
+      this._themeChanged.connect(this._onTheme, this);
+    } else if (typeof MutationObserver !== 'undefined') {
+      this._themeObserver = new MutationObserver(() => this._onTheme());
+      this._themeObserver.observe(document.body, {
+        attributes: true,
+        attributeFilter: ['data-jp-theme-name']
+      });
+    }
+    if (typeof ResizeObserver !== 'undefined') {
+      this._resizeObserver = new ResizeObserver(() => this.redraw());
+      this._resizeObserver.observe(this.graph);
+    }
+  }
+
+  readonly node: HTMLDivElement;
+  readonly graph: HTMLDivElement;
+  readonly note: HTMLParagraphElement;
+  readonly status: HTMLParagraphElement;
+  readonly driver: PlotDriver;
+
+  /** Sets what is drawn (null: nothing) and redraws. */
+  show(spec: PlotSpec | null): void {
+    this.driver.spec = spec;
+    this.note.textContent = spec?.note ?? '';
+    this.status.textContent = '';
+    this.redraw();
+  }
+
+  /** Shows a failure in the status line (the plot keeps what it had). */
+  showError(message: string): void {
+    this.status.textContent = message;
+    this.status.dataset.kind = 'error';
+  }
+
+  /**
+   * Draws at the graph's size, on the next animation frame (bursts conflate), and only while
+   * the owner widget is visible; otherwise when it is next shown (call `onShown`).
+   */
+  redraw(): void {
+    if (this._disposed) {
+      return;
+    }
+    if (!this._owner.isVisible) {
+      this._stale = true;
+      return;
+    }
+    if (this._frame !== 0) {
+      return;
+    }
+    this._frame = requestAnimationFrame(() => {
+      this._frame = 0;
+      this._drawNow();
+    });
+  }
+
+  /** The owner was shown: draw what was asked for while hidden. */
+  onShown(): void {
+    if (this._stale) {
+      this._stale = false;
+      this.redraw();
+    }
+  }
+
+  /** The export buttons (PNG, SVG, CSV of the visible range). */
+  exportButtons(stem: () => string): HTMLElement {
+    const trans = this._trans;
+    const box = document.createElement('span');
+    box.className = 'pp-PlotPane-exports';
+    const button = (label: string, title: string, act: () => Promise<void> | void): void => {
+      const b = document.createElement('button');
+      b.type = 'button';
+      b.className = 'jp-mod-styled pp-PlotPane-export';
+      b.textContent = label;
+      b.title = title;
+      b.addEventListener('click', () => {
+        Promise.resolve()
+          .then(act)
+          .catch(err => this._fail(err));
+      });
+      box.append(b);
+    };
+    button('PNG', trans.__('Save the plot as a PNG image'), () =>
+      this.driver.downloadImage('png', fileStem(stem()))
+    );
+    button('SVG', trans.__('Save the plot as an SVG image'), () =>
+      this.driver.downloadImage('svg', fileStem(stem()))
+    );
+    button('CSV', trans.__('Save the data of the visible range, every sample, as CSV'), () => {
+      downloadText(this.driver.csv(), `${fileStem(stem())}.csv`);
+    });
+    return box;
+  }
+
+  dispose(): void {
+    if (this._disposed) {
+      return;
+    }
+    this._disposed = true;
+    if (this._frame !== 0) {
+      cancelAnimationFrame(this._frame);
+      this._frame = 0;
+    }
+    this._themeChanged?.disconnect(this._onTheme, this);
+    this._themeObserver?.disconnect();
+    this._resizeObserver?.disconnect();
+    this.driver.dispose();
+  }
+
+  private _drawNow(): void {
+    if (this._disposed || !this._owner.isVisible) {
+      this._stale = !this._disposed;
+      return;
+    }
+    const width = this.graph.clientWidth;
+    const height = this.graph.clientHeight;
+    if (width <= 0 || height <= 0) {
+      // Not laid out yet: the resize observer calls again once it is.
+      return;
+    }
+    if (this.driver.spec && !this._loaded) {
+      this.status.textContent = this._trans.__('Loading the plotting library…');
+      delete this.status.dataset.kind;
+    }
+    this.driver
+      .draw(readTheme(this.graph), { width, height })
+      .then(() => {
+        if (!this._loaded && this.driver.spec) {
+          this._loaded = true;
+          this.status.textContent = '';
+        }
+      })
+      .catch(err => this._fail(err));
+  }
+
+  private _onTheme(): void {
+    this.redraw();
+  }
+
+  private _fail(err: unknown): void {
+    if (err instanceof CsvTooLarge) {
+      this.showError(err.message);
+      return;
+    }
+    const msg = err instanceof Error ? err.message : String(err);
+    console.error('Perpend: plot failed', err);
+    this.showError(this._trans.__('The plot failed: %1', msg));
+  }
+
+  private readonly _owner: Widget;
+  private readonly _trans: Trans;
+  private readonly _themeChanged: ISignal<unknown, unknown> | null;
+  private _themeObserver: MutationObserver | null = null;
+  private _resizeObserver: ResizeObserver | null = null;
+  private _frame = 0;
+  private _stale = false;
+  private _loaded = false;
+  private _disposed = false;
+}
+
+export namespace PlotPane {
+  export interface IOptions {
+    /** The widget the pane sits in (its visibility gates the work). */
+    owner: Widget;
+    trans: Trans;
+    loadPlotly: LoadPlotly;
+    settings: PlotSettings;
+    themeChanged?: ISignal<unknown, unknown>;
+  }
+}

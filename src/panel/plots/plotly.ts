@@ -1,0 +1,44 @@
+/**
+ * The part of plotly.js the plots use, passed in so that tests can substitute it (DESIGN §6),
+ * and the lazy loader of the real bundle: plotly.js-dist-min is 4.6 MB, so it is imported on the
+ * first plot, never at JupyterLab's start-up (DESIGN §5).
+ */
+
+/** A trace or a layout as plotly takes it (plain objects). */
+export type PlotObject = Record<string, unknown>;
+
+/** The graph div after plotly has drawn into it: an event emitter. */
+export interface PlotlyGraph {
+  on?(event: string, handler: (ev: unknown) => void): void;
+  removeAllListeners?(event?: string): void;
+}
+
+/** The functions of plotly.js the plots call. */
+export interface PlotlyLike {
+  react(node: HTMLElement, data: PlotObject[], layout: PlotObject, config?: PlotObject): unknown;
+  purge(node: HTMLElement): void;
+  downloadImage(
+    node: HTMLElement,
+    options: { format: 'png' | 'svg'; filename: string; width?: number; height?: number }
+  ): unknown;
+}
+
+/** Gives the plotly module (loaded once, when first needed). */
+export type LoadPlotly = () => Promise<PlotlyLike>;
+
+let loading: Promise<PlotlyLike> | null = null;
+
+/** Imports plotly.js-dist-min on first use (a separate chunk of the extension). */
+export const loadPlotlyDist: LoadPlotly = () => {
+  if (!loading) {
+    loading = import('plotly.js-dist-min').then(m => {
+      const mod = m as unknown as { default?: PlotlyLike } & PlotlyLike;
+      return mod.default && typeof mod.default.react === 'function' ? mod.default : mod;
+    });
+    // A failed load is not cached: the next plot tries again.
+    loading.catch(() => {
+      loading = null;
+    });
+  }
+  return loading;
+};

@@ -1,0 +1,315 @@
+/**
+ * The plots of one run: a row of view tabs (the views the run has), the view's controls, the
+ * graph with its exports, and a note on what was computed. It renders the model's run; every
+ * number drawn comes from the core (see ./views.ts).
+ */
+import type { Message } from '@lumino/messaging';
+import type { ISignal } from '@lumino/signaling';
+import { Widget } from '@lumino/widgets';
+import type { Trans } from '../../model/workbench/rules';
+import type { Run } from '../../model/workbench/runs';
+import type { WorkbenchModel } from '../../model/workbench/workbench';
+import { PlotPane } from './plot-pane';
+import { loadPlotlyDist, type LoadPlotly } from './plotly';
+import { DEFAULT_PLOT_SETTINGS, type PlotSettings } from './settings';
+import {
+  buildView,
+  DEFAULT_VIEW_OPTIONS,
+  defaultSmoothing,
+  parseTaps,
+  viewLabel,
+  viewsOf,
+  type ComplexAs,
+  type ViewKind,
+  type ViewOptions
+} from './views';
+
+export class RunPlots extends Widget {
+  constructor(options: RunPlots.IOptions) {
+    super();
+    this.addClass('pp-RunPlots');
+    this._trans = options.trans;
+    this._model = options.model;
+    this._settings = { ...DEFAULT_PLOT_SETTINGS, ...options.settings };
+    this._bar = document.createElement('div');
+    this._bar.className = 'pp-Plots-bar';
+    this._hint = document.createElement('p');
+    this._hint.className = 'pp-Plots-hint';
+    this._pane = new PlotPane({
+      owner: this,
+      trans: this._trans,
+      loadPlotly: options.loadPlotly ?? loadPlotlyDist,
+      settings: this._settings,
+      themeChanged: options.themeChanged
+    });
+    this.node.append(this._bar, this._hint, this._pane.node);
+    this._model.runChanged.connect(this._onRun, this);
+    this.update();
+  }
+
+  /** The run shown (null: nothing). */
+  get runId(): string | null {
+    return this._runId;
+  }
+  set runId(id: string | null) {
+    if (id !== this._runId) {
+      this._runId = id;
+      this._shown = null;
+      this.update();
+    }
+  }
+
+  /** The view shown (one of the run's views; the first when the run lacks it). */
+  get view(): ViewKind | null {
+    return this._view;
+  }
+  set view(v: ViewKind | null) {
+    if (v !== this._view) {
+      this._view = v;
+      this._shown = null;
+      this.update();
+    }
+  }
+
+  /** The views the current run has, in tab order. */
+  get views(): ViewKind[] {
+    const r = this._run();
+    return r ? viewsOf(r) : [];
+  }
+
+  /** Settings (point budget, CSV limit, Welch segment, …); the plot is redrawn. */
+  set settings(s: Partial<PlotSettings>) {
+    this._settings = { ...this._settings, ...s };
+    this._pane.driver.settings = this._settings;
+    this._shown = null;
+    this.update();
+  }
+
+  dispose(): void {
+    if (this.isDisposed) {
+      return;
+    }
+    this._model.runChanged.disconnect(this._onRun, this);
+    this._pane.dispose();
+    super.dispose();
+  }
+
+  protected onUpdateRequest(_msg: Message): void {
+    if (!this.isVisible) {
+      this._stale = true;
+      return;
+    }
+    this._stale = false;
+    this._render();
+  }
+
+  protected onAfterShow(_msg: Message): void {
+    if (this._stale) {
+      this.update();
+    }
+    this._pane.onShown();
+  }
+
+  protected onResize(_msg: Widget.ResizeMessage): void {
+    this._pane.redraw();
+  }
+
+  private _run(): Run | null {
+    return this._model.runs.find(r => r.id === this._runId) ?? null;
+  }
+
+  private _onRun(_: WorkbenchModel, run: Run): void {
+    if (run.id === this._runId) {
+      this.update();
+    }
+  }
+
+  private _render(): void {
+    const trans = this._trans;
+    const run = this._run();
+    const views = run ? viewsOf(run) : [];
+    if (!run || views.length === 0) {
+      this._bar.replaceChildren();
+      this._hint.textContent = !run
+        ? trans.__('Choose a run to plot its results.')
+        : run.status === 'reading' || run.status === 'running'
+          ? trans.__('The plots appear when the run has finished.')
+          : trans.__('This run has nothing to plot.');
+      this._hint.hidden = false;
+      this._shown = null;
+      this._pane.show(null);
+      return;
+    }
+    this._hint.hidden = true;
+    const view = this._view && views.includes(this._view) ? this._view : views[0];
+    this._renderBar(run, views, view);
+    // Rebuild the plot only when what it shows changed (a run's progress does not).
+    const key = { arrays: run.arrays, figures: run.figures, view, options: this._options };
+    const s = this._shown;
+    if (
+      s &&
+      s.arrays === key.arrays &&
+      s.figures === key.figures &&
+      s.view === key.view &&
+      s.options === key.options
+    ) {
+      return;
+    }
+    this._shown = key;
+    try {
+      this._pane.show(buildView(trans, run, view, this._options, this._settings));
+    } catch (err) {
+      this._pane.show(null);
+      this._pane.showError(
+        trans.__('This view cannot be drawn: %1', err instanceof Error ? err.message : String(err))
+      );
+    }
+  }
+
+  private _renderBar(run: Run, views: ViewKind[], view: ViewKind): void {
+    const trans = this._trans;
+    const tabs = document.createElement('div');
+    tabs.className = 'pp-Plots-tabs';
+    tabs.setAttribute('role', 'tablist');
+    tabs.setAttribute('aria-label', trans.__('Views of the run'));
+    for (const v of views) {
+      const b = document.createElement('button');
+      b.type = 'button';
+      b.className = 'pp-Plots-tab';
+      b.setAttribute('role', 'tab');
+      b.setAttribute('aria-selected', String(v === view));
+      b.dataset.view = v;
+      b.textContent = viewLabel(trans, v);
+      b.addEventListener('click', () => {
+        this.view = v;
+      });
+      tabs.append(b);
+    }
+    const controls = document.createElement('div');
+    controls.className = 'pp-Plots-controls';
+    const complex =
+      (view === 'signals' && ['output', 'error'].some(k => run.arrays[k]?.complex)) ||
+      (view === 'signals' && Object.values(run.inputs).some(a => a.complex)) ||
+      (view === 'trajectories' && run.arrays.trajectory?.complex === true);
+    if (complex) {
+      controls.append(this._complexControl());
+    }
+    if (view === 'learning') {
+      controls.append(this._smoothingControl(run));
+    }
+    if (view === 'trajectories' && run.arrays.trajectory) {
+      const t = run.arrays.trajectory;
+      controls.append(this._tapsControl(t.shape[t.shape.length - 1]));
+    }
+    controls.append(this._pane.exportButtons(() => `${run.label} ${viewLabel(trans, view)}`));
+    this._bar.replaceChildren(tabs, controls);
+  }
+
+  private _complexControl(): HTMLElement {
+    const trans = this._trans;
+    const label = document.createElement('label');
+    label.className = 'pp-Plots-control';
+    label.append(trans.__('Complex values as') + ' ');
+    const sel = document.createElement('select');
+    sel.className = 'jp-mod-styled';
+    const opts: Array<[ComplexAs, string]> = [
+      ['polar', trans.__('magnitude and phase')],
+      ['cartesian', trans.__('real and imaginary')]
+    ];
+    for (const [v, text] of opts) {
+      const o = document.createElement('option');
+      o.value = v;
+      o.textContent = text;
+      o.selected = v === this._options.complexAs;
+      sel.append(o);
+    }
+    sel.addEventListener('change', () => {
+      this._setOptions({ complexAs: sel.value as ComplexAs });
+    });
+    label.append(sel);
+    return label;
+  }
+
+  private _smoothingControl(run: Run): HTMLElement {
+    const trans = this._trans;
+    const label = document.createElement('label');
+    label.className = 'pp-Plots-control';
+    label.append(trans.__('Smoothing (samples)') + ' ');
+    const input = document.createElement('input');
+    input.type = 'number';
+    input.min = '1';
+    input.step = '1';
+    input.className = 'jp-mod-styled pp-Plots-number';
+    const n = run.arrays.learningCurve?.data.length ?? 1;
+    input.value = String(this._options.smoothing ?? defaultSmoothing(n));
+    input.title = trans.__('Length of the moving average over |e(n)|², in samples');
+    input.addEventListener('change', () => {
+      const v = Number(input.value);
+      if (!Number.isSafeInteger(v) || v < 1 || v > n) {
+        this._pane.showError(
+          trans.__('Smoothing must be a whole number of samples from 1 to %1.', n)
+        );
+        return;
+      }
+      this._setOptions({ smoothing: v });
+    });
+    label.append(input);
+    return label;
+  }
+
+  private _tapsControl(M: number): HTMLElement {
+    const trans = this._trans;
+    const label = document.createElement('label');
+    label.className = 'pp-Plots-control';
+    label.append(trans.__('Taps') + ' ');
+    const input = document.createElement('input');
+    input.type = 'text';
+    input.className = 'jp-mod-styled pp-Plots-taps';
+    input.value = (this._options.taps ?? [0, 1, 2, 3].filter(k => k < M)).join(', ');
+    input.title = trans.__('Tap indices from 0 to %1, separated by commas', M - 1);
+    input.addEventListener('change', () => {
+      const r = parseTaps(input.value, M);
+      if ('error' in r) {
+        this._pane.showError(trans.__('Taps: %1.', r.error));
+        return;
+      }
+      this._setOptions({ taps: r.taps });
+    });
+    label.append(input);
+    return label;
+  }
+
+  private _setOptions(o: Partial<ViewOptions>): void {
+    this._options = { ...this._options, ...o };
+    this.update();
+  }
+
+  private readonly _trans: Trans;
+  private readonly _model: WorkbenchModel;
+  private readonly _bar: HTMLDivElement;
+  private readonly _hint: HTMLParagraphElement;
+  private readonly _pane: PlotPane;
+  private _settings: PlotSettings;
+  private _runId: string | null = null;
+  private _view: ViewKind | null = null;
+  private _options: ViewOptions = DEFAULT_VIEW_OPTIONS;
+  private _shown: {
+    arrays: Run['arrays'];
+    figures: Run['figures'];
+    view: ViewKind;
+    options: ViewOptions;
+  } | null = null;
+  private _stale = false;
+}
+
+export namespace RunPlots {
+  export interface IOptions {
+    trans: Trans;
+    model: WorkbenchModel;
+    /** Gives plotly (default: the lazily imported plotly.js-dist-min); tests pass a fake. */
+    loadPlotly?: LoadPlotly;
+    settings?: Partial<PlotSettings>;
+    /** IThemeManager.themeChanged, when available; otherwise the body's theme name is watched. */
+    themeChanged?: ISignal<unknown, unknown>;
+  }
+}

@@ -1,0 +1,50 @@
+/**
+ * What a plot shows, before it meets plotly: long series (decimated per visible range), short
+ * traces drawn as they are (spectra, responses, bars, constellation points), marker lines with
+ * their labels, and the axes' titles with units.
+ */
+import type { LineSource } from './lines';
+
+/** A short trace, drawn as it is. */
+export interface StaticTrace {
+  name: string;
+  kind: 'line' | 'bar' | 'markers';
+  x: ArrayLike<number> | ReadonlyArray<string>;
+  y: ArrayLike<number>;
+  color: number;
+  dash?: 'dot' | 'dash';
+  /** Second y-axis (lower subplot). */
+  lower?: boolean;
+}
+
+/** A horizontal (y = value) or vertical (x = value) marker line with a label. */
+export interface MarkerLine {
+  orientation: 'h' | 'v';
+  value: number;
+  label: string;
+  color: number;
+  lower?: boolean;
+}
+
+export interface PlotSpec {
+  /** Plot title (what it shows). */
+  title: string;
+  /** x-axis title with its unit. */
+  xTitle: string;
+  /** Unit of the x-axis alone ('s', 'samples', 'Hz', …) for the CSV header. */
+  xUnit: string;
+  yTitle: string;
+  /** Lower subplot's y title, when there is one. */
+  y2Title?: string;
+  lines: LineSource[];
+  traces: StaticTrace[];
+  markers: MarkerLine[];
+  /** Equal scales on x and y (a constellation). */
+  equalAxes?: boolean;
+  /** A sentence under the plot (what was computed and how). */
+  note?: string;
+}
+
+export function emptySpec(title: string, xTitle: string, xUnit: string, yTitle: string): PlotSpec {
+  return { title, xTitle, xUnit, yTitle, lines: [], traces: [], markers: [] };
+}

@@ -1,0 +1,562 @@
+/**
+ * The views of one run, built from its result arrays, its inputs and its figures. Every number
+ * drawn comes from the core: Welch spectra (`welch`), FIR responses (`firResponse`), smoothing
+ * (`movingAverage`), dB (`toDb`) and, per visible range, the M4 envelope (see ./lines.ts).
+ */
+import { firResponse, movingAverage, toDb, welch } from '../../core';
+import type { Trans } from '../../model/workbench/rules';
+import type { ResultArray, Run } from '../../model/workbench/runs';
+import { rowCount, rowOf, type LinePart, type LineSource } from './lines';
+import type { PlotSettings } from './settings';
+import { emptySpec, type MarkerLine, type PlotSpec } from './spec';
+
+/** The views a run can have. */
+export type ViewKind =
+  | 'signals'
+  | 'learning'
+  | 'response'
+  | 'trajectories'
+  | 'spectrum'
+  | 'energy'
+  | 'constellation'
+  | 'angles';
+
+/** How complex values are drawn: magnitude and phase, or real and imaginary parts. */
+export type ComplexAs = 'polar' | 'cartesian';
+
+export interface ViewOptions {
+  complexAs: ComplexAs;
+  /** Learning-curve smoothing window in samples (null: the default for the length). */
+  smoothing: number | null;
+  /** Taps whose trajectories are drawn (null: the first four). */
+  taps: number[] | null;
+}
+
+export const DEFAULT_VIEW_OPTIONS: ViewOptions = {
+  complexAs: 'polar',
+  smoothing: null,
+  taps: null
+};
+
+/** The tab label of a view. */
+export function viewLabel(trans: Trans, v: ViewKind): string {
+  switch (v) {
+    case 'signals':
+      return trans.__('Signals');
+    case 'learning':
+      return trans.__('Learning curve');
+    case 'response':
+      return trans.__('Weights response');
+    case 'trajectories':
+      return trans.__('Tap trajectories');
+    case 'spectrum':
+      return trans.__('Spectrum');
+    case 'energy':
+      return trans.__('Energy per direction');
+    case 'constellation':
+      return trans.__('Constellation');
+    case 'angles':
+      return trans.__('Angles');
+  }
+}
+
+function figure(run: Run, key: string): number | null {
+  const f = run.figures.find(g => g.key === key);
+  return f && Number.isFinite(f.value) ? f.value : null;
+}
+
+/** The views that have something to show for a run (none until it has results). */
+export function viewsOf(run: Run): ViewKind[] {
+  const a = run.arrays;
+  const out: ViewKind[] = [];
+  if (run.params.tool === 'adaptive') {
+    if (a.output || a.error) {
+      out.push('signals');
+    }
+    if (a.learningCurve) {
+      out.push('learning');
+    }
+    if (a.weights) {
+      out.push('response');
+    }
+    if (a.trajectory && a.trajectoryIndex) {
+      out.push('trajectories');
+    }
+    if (a.error && beforeOf(run)) {
+      out.push('spectrum');
+    }
+    if (run.params.use === 'equalization' && a.output && a.output.complex) {
+      out.push('constellation');
+    }
+  } else if (run.params.tool === 'removal') {
+    if (a.output) {
+      out.push('signals', 'spectrum');
+    }
+    if (run.figures.some(f => f.key.startsWith('dir:'))) {
+      out.push('energy');
+    }
+  } else if (run.params.tool === 'angles') {
+    if (run.figures.some(f => /^angle\d+$/.test(f.key))) {
+      out.push('angles');
+    }
+  }
+  return out;
+}
+
+/** The time axis: seconds when the run's sample rate is known, samples otherwise. */
+export function timeAxis(
+  trans: Trans,
+  fs: number | null
+): { dx: number; title: string; unit: string } {
+  return fs !== null && fs > 0
+    ? { dx: 1 / fs, title: trans.__('time (s)'), unit: 's' }
+    : { dx: 1, title: trans.__('sample n'), unit: 'samples' };
+}
+
+/** The frequency axis: Hz when fs is known, cycles per sample otherwise. */
+export function frequencyAxis(
+  trans: Trans,
+  fs: number | null
+): { scale: number; title: string; unit: string } {
+  return fs !== null && fs > 0
+    ? { scale: fs, title: trans.__('frequency (Hz)'), unit: 'Hz' }
+    : { scale: 1, title: trans.__('frequency (cycles/sample)'), unit: 'cycles/sample' };
+}
+
+/** The signal a run started from (desired, primary, the predicted signal, the input) and its name. */
+function beforeOf(run: Run): { array: ResultArray; name: string } | null {
+  const p = run.params;
+  if (p.tool === 'adaptive') {
+    if (p.use === 'prediction') {
+      return run.inputs.x ? { array: run.inputs.x, name: 'x(n)' } : null;
+    }
+    if (p.use === 'equalization') {
+      return run.inputs.x ? { array: run.inputs.x, name: 'received x(n)' } : null;
+    }
+    const d = run.inputs.d;
+    if (!d) {
+      return null;
+    }
+    return { array: d, name: p.use === 'cancellation' ? 'primary d(n)' : 'desired d(n)' };
+  }
+  if (p.tool === 'removal' && run.inputs.signal) {
+    return { array: run.inputs.signal, name: 'input x' };
+  }
+  return null;
+}
+
+function parts(complex: boolean, as: ComplexAs): [LinePart, LinePart | null] {
+  if (!complex) {
+    return ['real', null];
+  }
+  return as === 'polar' ? ['abs', 'phase'] : ['real', 'imag'];
+}
+
+function partTitles(trans: Trans, as: ComplexAs): [string, string] {
+  return as === 'polar'
+    ? [trans.__('magnitude'), trans.__('phase (rad)')]
+    : [trans.__('real part'), trans.__('imaginary part')];
+}
+
+function need(run: Run, key: string): ResultArray {
+  const a = run.arrays[key];
+  if (!a) {
+    throw new Error(`run "${run.label}" has no array '${key}' to plot`);
+  }
+  return a;
+}
+
+/** The default smoothing of a learning curve of N samples: about 1 % of it, at most 1000. */
+export function defaultSmoothing(n: number): number {
+  return Math.max(1, Math.min(1000, Math.round(n / 100)));
+}
+
+function signalsView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
+  const t = timeAxis(trans, run.fs);
+  const series: Array<{ a: ResultArray; name: string }> = [];
+  const before = beforeOf(run);
+  if (before) {
+    series.push({ a: before.array, name: trans.__(before.name) });
+  }
+  if (run.params.tool === 'adaptive') {
+    if (run.arrays.output) {
+      series.push({ a: run.arrays.output, name: trans.__('output y(n)') });
+    }
+    if (run.arrays.error) {
+      series.push({ a: run.arrays.error, name: trans.__('error e(n)') });
+    }
+  } else {
+    series.push({
+      a: need(run, 'output'),
+      name:
+        run.params.tool === 'removal' && run.params.mode === 'onto'
+          ? trans.__('projected onto the subspace')
+          : trans.__('with the subspace removed')
+    });
+  }
+  const complex = series.some(s => s.a.complex);
+  const [upper, lower] = partTitles(trans, o.complexAs);
+  const spec = emptySpec(trans.__('Signals'), t.title, t.unit, complex ? upper : trans.__('value'));
+  if (complex) {
+    spec.y2Title = lower;
+  }
+  series.forEach((s, i) => {
+    const [p1, p2] = parts(s.a.complex, o.complexAs);
+    const signal = rowOf(s.a, 0);
+    spec.lines.push({ name: s.name, signal, part: p1, dx: t.dx, color: i });
+    if (p2) {
+      spec.lines.push({
+        name: s.name,
+        signal,
+        part: p2,
+        dx: t.dx,
+        color: i,
+        lower: true,
+        noLegend: true
+      });
+    } else if (complex) {
+      // A real series beside complex ones: its value is drawn once, on the upper axis.
+    }
+  });
+  if (series.some(s => rowCount(s.a) > 1)) {
+    spec.note = trans.__('Each array has several rows; the first row (trial or channel) is drawn.');
+  }
+  return spec;
+}
+
+function learningView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
+  const t = timeAxis(trans, run.fs);
+  const lc = need(run, 'learningCurve');
+  const w = o.smoothing ?? defaultSmoothing(lc.data.length);
+  const spec = emptySpec(
+    trans.__('Learning curve'),
+    t.title,
+    t.unit,
+    trans.__('squared error (dB)')
+  );
+  const line = (data: Float64Array): LineSource['signal'] => ({
+    data,
+    complex: false,
+    n: data.length,
+    stride: 1,
+    offset: 0
+  });
+  const lo = run.arrays.learningCurveLower;
+  const hi = run.arrays.learningCurveUpper;
+  if (lo && hi) {
+    spec.lines.push({
+      name: trans.__('95 % band'),
+      signal: line(w > 1 ? movingAverage(lo.data, w) : lo.data),
+      part: 'real',
+      db: true,
+      dx: t.dx,
+      color: 0,
+      faint: true,
+      noLegend: true
+    });
+    spec.lines.push({
+      name: trans.__('95 % band of the mean'),
+      signal: line(w > 1 ? movingAverage(hi.data, w) : hi.data),
+      part: 'real',
+      db: true,
+      dx: t.dx,
+      color: 0,
+      faint: true,
+      fill: true
+    });
+  }
+  spec.lines.push({
+    name: trans.__('|e(n)|², smoothed over %1 samples', w),
+    signal: line(w > 1 ? movingAverage(lc.data, w) : lc.data),
+    part: 'real',
+    db: true,
+    dx: t.dx,
+    color: 0
+  });
+  const ss = figure(run, 'steadyStateMseDb');
+  if (ss !== null) {
+    spec.markers.push({
+      orientation: 'h',
+      value: ss,
+      label: trans.__('steady state %1 dB', ss.toFixed(1)),
+      color: 2
+    });
+  }
+  const conv = figure(run, 'convergenceSamples');
+  if (conv !== null) {
+    spec.markers.push({
+      orientation: 'v',
+      value: conv * t.dx,
+      label:
+        t.unit === 's'
+          ? trans.__('converged at %1 s', Number((conv * t.dx).toPrecision(4)))
+          : trans.__('converged at n = %1', conv),
+      color: 1
+    });
+  }
+  if (run.params.tool === 'adaptive' && run.params.minMseDb !== null) {
+    spec.markers.push({
+      orientation: 'h',
+      value: run.params.minMseDb,
+      label: trans.__('minimum MSE %1 dB', run.params.minMseDb),
+      color: 3
+    });
+  }
+  return spec;
+}
+
+function responseView(trans: Trans, run: Run, s: PlotSettings): PlotSpec {
+  const wArr = need(run, 'weights');
+  const M = wArr.shape[wArr.shape.length - 1];
+  const w = wArr.data.subarray(0, (wArr.complex ? 2 : 1) * M);
+  const r = firResponse(w, { complex: wArr.complex, n: s.responsePoints });
+  const f = frequencyAxis(trans, run.fs);
+  const x = new Float64Array(r.frequency.length);
+  for (let k = 0; k < x.length; k++) {
+    x[k] = r.frequency[k] * f.scale;
+  }
+  const spec = emptySpec(
+    trans.__('Response of the final weights'),
+    f.title,
+    f.unit,
+    trans.__('magnitude (dB)')
+  );
+  spec.y2Title = trans.__('phase (rad, unwrapped)');
+  spec.traces.push({ name: trans.__('|H|'), kind: 'line', x, y: r.magnitudeDb, color: 0 });
+  spec.traces.push({ name: trans.__('arg H'), kind: 'line', x, y: r.phase, color: 1, lower: true });
+  if (rowCount(wArr) > 1) {
+    spec.note = trans.__('Weights of the first trial.');
+  }
+  return spec;
+}
+
+function trajectoriesView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
+  const tr = need(run, 'trajectory');
+  const idx = need(run, 'trajectoryIndex');
+  const t = timeAxis(trans, run.fs);
+  const M = tr.shape[tr.shape.length - 1];
+  const rows = idx.data.length;
+  const xTable = new Float64Array(rows);
+  for (let k = 0; k < rows; k++) {
+    xTable[k] = idx.data[k] * t.dx;
+  }
+  const taps = (o.taps ?? [0, 1, 2, 3]).filter(k => Number.isInteger(k) && k >= 0 && k < M);
+  const [upper, lower] = partTitles(trans, o.complexAs);
+  const spec = emptySpec(
+    trans.__('Tap trajectories'),
+    t.title,
+    t.unit,
+    tr.complex ? upper : trans.__('weight value')
+  );
+  if (tr.complex) {
+    spec.y2Title = lower;
+  }
+  const [p1, p2] = parts(tr.complex, o.complexAs);
+  taps.forEach((k, i) => {
+    const signal = { data: tr.data, complex: tr.complex, n: rows, stride: M, offset: k };
+    const name = trans.__('w%1', k);
+    spec.lines.push({ name, signal, part: p1, dx: t.dx, xTable, color: i });
+    if (p2) {
+      spec.lines.push({
+        name,
+        signal,
+        part: p2,
+        dx: t.dx,
+        xTable,
+        color: i,
+        lower: true,
+        noLegend: true
+      });
+    }
+  });
+  return spec;
+}
+
+function spectrumView(trans: Trans, run: Run, s: PlotSettings): PlotSpec {
+  const before = beforeOf(run);
+  const after =
+    run.params.tool === 'adaptive'
+      ? { array: need(run, 'error'), name: trans.__('error e(n)') }
+      : { array: need(run, 'output'), name: trans.__('output') };
+  const fs = run.fs !== null && run.fs > 0 ? run.fs : null;
+  const f = frequencyAxis(trans, fs);
+  const spec = emptySpec(
+    trans.__('Power spectral density (Welch)'),
+    f.title,
+    f.unit,
+    fs !== null ? trans.__('PSD (dB/Hz)') : trans.__('power per bin (dB)')
+  );
+  const list = before ? [{ array: before.array, name: trans.__(before.name) }, after] : [after];
+  let segment = 0;
+  list.forEach((item, i) => {
+    const sig = rowOf(item.array, 0);
+    const nperseg = Math.min(s.welchSegment, sig.n);
+    const psd = welch(
+      { data: sig.data, complex: sig.complex, n: sig.n, stride: sig.stride, offset: sig.offset },
+      {
+        fs: fs ?? 1,
+        nperseg,
+        scaling: fs !== null ? 'density' : 'spectrum',
+        order: 'ascending'
+      }
+    );
+    segment = psd.nperseg;
+    spec.traces.push({
+      name: item.name,
+      kind: 'line',
+      x: psd.frequency,
+      y: toDb(psd.psd),
+      color: i
+    });
+  });
+  const p = run.params;
+  if (p.tool === 'removal' && p.basis.kind === 'harmonics') {
+    for (let k = 1; k <= p.basis.count; k++) {
+      spec.markers.push(harmonicMarker(trans, k * p.basis.f0, f.unit));
+    }
+  }
+  spec.note = trans.__(
+    "Welch's method: Hann window, %1-sample segments, 50 % overlap, mean removed per segment.",
+    segment
+  );
+  return spec;
+}
+
+function harmonicMarker(trans: Trans, freq: number, unit: string): MarkerLine {
+  return {
+    orientation: 'v',
+    value: freq,
+    label: trans.__('%1 %2', Number(freq.toPrecision(6)), unit),
+    color: 3
+  };
+}
+
+function energyView(trans: Trans, run: Run): PlotSpec {
+  const dirs = run.figures.filter(f => f.key.startsWith('dir:'));
+  const spec = emptySpec(
+    trans.__('Energy along each direction'),
+    trans.__('direction'),
+    '',
+    trans.__('share of the input energy (dB)')
+  );
+  spec.traces.push({
+    name: trans.__('energy share'),
+    kind: 'bar',
+    x: dirs.map(d => d.key.slice(4)),
+    y: Float64Array.from(dirs.map(d => d.value)),
+    color: 0
+  });
+  const kept = figure(run, 'keptShare');
+  if (kept !== null) {
+    spec.note = trans.__('Share of the signal kept: %1 %.', Number(kept.toPrecision(4)));
+  }
+  return spec;
+}
+
+function anglesView(trans: Trans, run: Run): PlotSpec {
+  const a = run.figures.filter(f => /^angle\d+$/.test(f.key));
+  const spec = emptySpec(
+    trans.__('Principal angles'),
+    trans.__('angle'),
+    '',
+    trans.__('angle (°)')
+  );
+  spec.traces.push({
+    name: trans.__('principal angle'),
+    kind: 'bar',
+    x: a.map((_, i) => `θ${i + 1}`),
+    y: Float64Array.from(a.map(f => f.value)),
+    color: 0
+  });
+  return spec;
+}
+
+function constellationView(trans: Trans, run: Run, s: PlotSettings): PlotSpec {
+  const y = need(run, 'output');
+  const sig = rowOf(y, 0);
+  const train =
+    run.params.tool === 'adaptive' ? Math.min(sig.n, Math.max(0, run.params.trainingLength)) : 0;
+  const spec = emptySpec(
+    trans.__('Equalizer output'),
+    trans.__('in-phase'),
+    '',
+    trans.__('quadrature')
+  );
+  spec.equalAxes = true;
+  const pick = (from: number, to: number, name: string, color: number): void => {
+    const n = to - from;
+    if (n <= 0) {
+      return;
+    }
+    // Evenly spread samples of the part, the last one included.
+    const m = Math.min(n, s.constellationPoints);
+    const re = new Float64Array(m);
+    const im = new Float64Array(m);
+    for (let k = 0; k < m; k++) {
+      const i = from + (m === 1 ? n - 1 : Math.round((k * (n - 1)) / (m - 1)));
+      const q = 2 * (sig.offset + i * sig.stride);
+      re[k] = sig.data[q];
+      im[k] = sig.data[q + 1];
+    }
+    spec.traces.push({ name, kind: 'markers', x: re, y: im, color });
+  };
+  pick(0, train, trans.__('training (n < %1)', train), 1);
+  pick(train, sig.n, trans.__('decision-directed'), 0);
+  spec.note = trans.__(
+    'At most %1 points of each part, evenly spread over it.',
+    s.constellationPoints
+  );
+  return spec;
+}
+
+/** The plot of one view of a run. Throws with a sentence when the run lacks what it needs. */
+export function buildView(
+  trans: Trans,
+  run: Run,
+  view: ViewKind,
+  options: ViewOptions,
+  settings: PlotSettings
+): PlotSpec {
+  switch (view) {
+    case 'signals':
+      return signalsView(trans, run, options);
+    case 'learning':
+      return learningView(trans, run, options);
+    case 'response':
+      return responseView(trans, run, settings);
+    case 'trajectories':
+      return trajectoriesView(trans, run, options);
+    case 'spectrum':
+      return spectrumView(trans, run, settings);
+    case 'energy':
+      return energyView(trans, run);
+    case 'constellation':
+      return constellationView(trans, run, settings);
+    case 'angles':
+      return anglesView(trans, run);
+  }
+}
+
+/** Parses a list of tap indices ("0, 3, 7"), or says in a sentence why it is not one. */
+export function parseTaps(text: string, taps: number): { taps: number[] } | { error: string } {
+  const parts = text
+    .split(/[\s,]+/)
+    .map(s => s.trim())
+    .filter(s => s.length > 0);
+  const out: number[] = [];
+  for (const p of parts) {
+    const k = Number(p);
+    if (!/^\d+$/.test(p) || !Number.isSafeInteger(k) || k >= taps) {
+      return {
+        error: `"${p}" is not a tap: give whole numbers from 0 to ${taps - 1}, separated by commas`
+      };
+    }
+    if (!out.includes(k)) {
+      out.push(k);
+    }
+  }
+  if (out.length === 0) {
+    return { error: 'give at least one tap' };
+  }
+  return { taps: out };
+}
