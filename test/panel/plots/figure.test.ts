@@ -1,0 +1,143 @@
+// From a plot spec to plotly's data and layout, and the CSV of a visible range (RFC 4180).
+import { csvField, csvText, fileStem, withUnit } from '../../../src/panel/plots/csv';
+import {
+  buildFigure,
+  CsvTooLarge,
+  figureCsv,
+  plotAreaWidth,
+  withAlpha
+} from '../../../src/panel/plots/figure';
+import { columnsFor, DEFAULT_PLOT_SETTINGS } from '../../../src/panel/plots/settings';
+import type { PlotSpec } from '../../../src/panel/plots/spec';
+import { COLOR_VARIABLES, themeFrom } from '../../../src/panel/plots/theme';
+import { buildView, DEFAULT_VIEW_OPTIONS } from '../../../src/panel/plots/views';
+import { cancellationRun, trans } from './fixtures';
+
+const theme = themeFrom(() => '');
+
+describe('CSV (RFC 4180)', () => {
+  test('fields with commas, quotes or line breaks are quoted, quotes doubled', () => {
+    expect(csvField('a,b')).toBe('"a,b"');
+    expect(csvField('say "hi"')).toBe('"say ""hi"""');
+    expect(csvField('two\nlines')).toBe('"two\nlines"');
+    expect(csvField(null)).toBe('');
+    expect(csvField(0.1 + 0.2)).toBe('0.30000000000000004');
+  });
+  test('columns side by side, CRLF line ends, shorter columns left empty', () => {
+    expect(
+      csvText([
+        { header: withUnit('time', 's'), values: [0, 0.5] },
+        { header: 'e', values: [1] }
+      ])
+    ).toBe('time (s),e\r\n0,1\r\n0.5,\r\n');
+  });
+  test('file names keep letters, digits, dot, dash and underscore', () => {
+    expect(fileStem('QR-RLS · M 16 · λ 0.999 Learning curve')).toBe(
+      'QR-RLS-M-16-0.999-Learning-curve'
+    );
+    expect(fileStem('···')).toBe('plot');
+  });
+});
+
+describe('figures', () => {
+  const run = cancellationRun(100_000, 1000);
+  const spec = buildView(trans, run, 'signals', DEFAULT_VIEW_OPTIONS, DEFAULT_PLOT_SETTINGS);
+
+  test('SVG scatter traces (never scattergl), at most 4 points per column', () => {
+    const fig = buildFigure(spec, theme, null, 300, { width: 600, height: 400 });
+    expect(fig.data).toHaveLength(3);
+    for (const t of fig.data) {
+      expect(t.type).toBe('scatter');
+      expect((t.y as Float64Array).length).toBeLessThanOrEqual(1200);
+    }
+    expect(fig.layout).toMatchObject({ width: 600, height: 400 });
+    expect((fig.layout.xaxis as { autorange: boolean }).autorange).toBe(true);
+  });
+
+  test('a visible range is kept on the axis and re-cut from the samples', () => {
+    const fig = buildFigure(spec, theme, [10, 10.2], 300, { width: 600, height: 400 });
+    expect((fig.layout.xaxis as { range: number[] }).range).toEqual([10, 10.2]);
+    // 0.2 s at 1 kHz: ~200 samples < 4·300, so every one is drawn (plus one either side)
+    expect((fig.data[0].y as Float64Array).length).toBe(203);
+  });
+
+  test('marker lines and their labels become shapes and annotations', () => {
+    const l = buildView(trans, run, 'learning', DEFAULT_VIEW_OPTIONS, DEFAULT_PLOT_SETTINGS);
+    const fig = buildFigure(l, theme, null, 300, { width: 600, height: 400 });
+    const shapes = fig.layout.shapes as Array<Record<string, unknown>>;
+    expect(shapes.map(s => [s.xref, s.yref])).toEqual([
+      ['paper', 'y'],
+      ['x', 'paper'],
+      ['paper', 'y']
+    ]);
+    expect((fig.layout.annotations as Array<{ text: string }>).map(a => a.text)).toEqual([
+      'steady state -21.5 dB',
+      'converged at 0.5 s',
+      'minimum MSE -20 dB'
+    ]);
+  });
+
+  test('colours and fonts come from the theme variables', () => {
+    const vars: Record<string, string> = {
+      '--jp-ui-font-color1': '#fafafa',
+      '--jp-layout-color1': '#111111',
+      '--jp-ui-font-family': 'Inter',
+      '--jp-ui-font-size1': '13px',
+      [COLOR_VARIABLES[0]]: '#abcdef'
+    };
+    const dark = themeFrom(n => vars[n] ?? '');
+    const fig = buildFigure(spec, dark, null, 300, { width: 600, height: 400 });
+    expect(fig.layout.paper_bgcolor).toBe('#111111');
+    expect(fig.layout.font).toEqual({ family: 'Inter', size: 13, color: '#fafafa' });
+    expect((fig.data[0].line as { color: string }).color).toBe('#abcdef');
+    expect(withAlpha('#abcdef', 0.5)).toBe('rgba(171,205,239,0.5)');
+    expect(withAlpha('rgb(1, 2, 3)', 0.2)).toBe('rgba(1,2,3,0.2)');
+  });
+
+  test('the point budget: columns of the plot area for a number of points per pixel', () => {
+    expect(plotAreaWidth(600)).toBe(520);
+    expect(columnsFor(520, 4)).toBe(520);
+    expect(columnsFor(520, 2)).toBe(260);
+    expect(columnsFor(10, 4)).toBe(16);
+  });
+});
+
+describe('CSV of the visible range', () => {
+  const run = cancellationRun(100_000, 1000);
+  const spec = buildView(trans, run, 'signals', DEFAULT_VIEW_OPTIONS, DEFAULT_PLOT_SETTINGS);
+
+  test('every sample of the range, one time column shared', () => {
+    const text = figureCsv(spec, [1, 1.01], 1000);
+    const lines = text.trimEnd().split('\r\n');
+    expect(lines[0]).toBe('time (s),primary d(n),output y(n),error e(n)');
+    expect(lines).toHaveLength(1 + 13);
+    const [t, d, y, e] = lines[1].split(',').map(Number);
+    const i = Math.round(t * 1000);
+    expect(i).toBe(999);
+    expect(d).toBe(run.inputs.d.data[i]);
+    expect(y).toBe(run.arrays.output.data[i]);
+    expect(e).toBe(run.arrays.error.data[i]);
+  });
+
+  test('past the row limit it refuses with what to do', () => {
+    expect(() => figureCsv(spec, null, 1000)).toThrow(CsvTooLarge);
+    expect(() => figureCsv(spec, null, 1000)).toThrow(
+      'The visible range holds 100000 samples of "primary d(n)"; a CSV export takes at most 1000 rows. Zoom in first.'
+    );
+  });
+
+  test('short traces: the points inside the range', () => {
+    const s: PlotSpec = {
+      title: 't',
+      xTitle: 'frequency (Hz)',
+      xUnit: 'Hz',
+      yTitle: 'PSD (dB/Hz)',
+      lines: [],
+      markers: [],
+      traces: [{ name: 'after', kind: 'line', x: [0, 10, 20, 30], y: [1, 2, 3, 4], color: 0 }]
+    };
+    expect(figureCsv(s, [5, 25], 10)).toBe(
+      'frequency (Hz) · after,after · PSD (dB/Hz)\r\n10,2\r\n20,3\r\n'
+    );
+  });
+});
