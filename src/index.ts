@@ -121,7 +121,11 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
     app.shell.add(sidebar, 'right', { rank: 650 });
     restorer?.add(sidebar, sidebar.id);
 
-    tracker.currentChanged.connect(() => follower.follow(tracker.currentWidget));
+    tracker.currentChanged.connect(() => {
+      follower.follow(tracker.currentWidget);
+      // The toolbar button shows whether the refresh applies: tell it when that changes.
+      app.commands.notifyCommandChanged(CommandIDs.refresh);
+    });
     // Every notebook gets its ledger as soon as it opens, so executions in notebooks that are not
     // current are recorded too.
     tracker.widgetAdded.connect((_, panel) => void follower.targetOf(panel));

@@ -52,9 +52,12 @@ function cell(page: Page, text: string) {
   return page.locator(`${SHOWN} .jp-CodeCell`, { hasText: text }).first();
 }
 
-/** Closes the notifications, which JupyterLab shows over the bottom of the right sidebar. */
+/**
+ * Closes the notifications, which JupyterLab shows over the bottom of the right sidebar (their
+ * timers pause while the headless window has no focus, so they are closed by their button).
+ */
 async function dismissToasts(page: Page): Promise<void> {
-  const close = page.locator('#react-toastify-container [title="Dismiss notification"]');
+  const close = page.locator('#react-toastify-container .jp-Notification-Toast-Close');
   for (let i = 0; i < 10 && (await close.count()) > 0; i++) {
     await close
       .first()
@@ -93,6 +96,7 @@ test('rows work from the keyboard and name their shape and dtype; a load is a no
   await expect(sidebar.locator('.jp-SidePanel-header h2').textContent()).resolves.toBe('Perpend');
   const refresh = sidebar.locator('.jp-SidePanel-toolbar [data-command="perpend:refresh-arrays"]');
   await refresh.waitFor({ state: 'visible' });
+  expect(await refresh.isEnabled()).toBe(true);
 
   const row = sidebar.locator('[data-kind="variables"] .pp-ArrayTable-row[data-label="small"]');
   await row.waitFor({ timeout: 60000 });
