@@ -1,0 +1,382 @@
+/**
+ * The adaptive-filter job: builds x and d from the configuration (the core's configuration
+ * helpers), runs the core filter chunk by chunk (a checkpoint between chunks: progress, cancel),
+ * K×N sources as K independent trials, and reads the figures off the (ensemble) learning curve
+ * with the core's metrics. Numerical breakdown is a warning with its sample index; caller
+ * mistakes throw where they are found.
+ */
+import {
+  createFilter,
+  equalize,
+  linearPrediction,
+  noiseCancellation,
+  systemIdentification,
+  type FilterOptions
+} from '../../core/filters';
+import {
+  convergenceTime,
+  ensembleAverage,
+  misadjustment,
+  movingAverage,
+  squaredError,
+  steadyStateMse
+} from '../../core/metrics';
+import type {
+  AdaptiveFilterFigures,
+  AdaptiveFilterResult,
+  AdaptiveFilterSpec,
+  ArrayData,
+  JobWarning
+} from '../protocol';
+import { rowOf, signalShape } from './arrays';
+import type { JobContext } from './context';
+
+/** The core filter options of a spec (one place to follow the core's option names). */
+export function filterOptions(spec: AdaptiveFilterSpec, complex: boolean): FilterOptions {
+  return {
+    algorithm: spec.algorithm,
+    order: spec.M,
+    complex,
+    precision: spec.precision,
+    lambda: spec.lambda,
+    delta: spec.delta,
+    mu: spec.mu,
+    epsilon: spec.epsilon,
+    decimation: spec.keepEvery ?? 0
+  };
+}
+
+/** Default samples per chunk: about 2²³ multiply-adds, a few milliseconds on this machine. */
+export function defaultChunk(spec: AdaptiveFilterSpec): number {
+  const M = spec.M;
+  const quadratic = spec.algorithm !== 'lms' && spec.algorithm !== 'nlms';
+  const cost = quadratic ? M * M + 8 * M : 4 * M + 16;
+  return Math.min(1 << 17, Math.max(256, Math.round((1 << 23) / cost)));
+}
+
+/** The trials' x and d rows (interleaved when complex), from the configuration. */
+interface Sources {
+  complex: boolean;
+  K: number;
+  N: number;
+  x: Float64Array[];
+  d: Float64Array[];
+}
+
+function sources(spec: AdaptiveFilterSpec): Sources {
+  const c = spec.configuration;
+  if (c === null || typeof c !== 'object') {
+    throw new TypeError('configuration must be an object with a kind');
+  }
+  const pairOf = (
+    nameA: string,
+    a: ArrayData,
+    nameB: string,
+    b: ArrayData,
+    build: (
+      x: Float64Array,
+      d: Float64Array,
+      complex: boolean
+    ) => { x: Float64Array; d: Float64Array }
+  ): Sources => {
+    const sa = signalShape(nameA, a);
+    const sb = signalShape(nameB, b);
+    if (sa.K !== sb.K || sa.N !== sb.N) {
+      throw new RangeError(
+        `${nameA} has shape [${a.shape.join(', ')}] but ${nameB} has shape [${b.shape.join(', ')}]; they must match`
+      );
+    }
+    const complex = a.complex || b.complex;
+    const x: Float64Array[] = [];
+    const d: Float64Array[] = [];
+    for (let k = 0; k < sa.K; k++) {
+      const p = build(rowOf(a, k, sa.N, complex), rowOf(b, k, sa.N, complex), complex);
+      x.push(p.x);
+      d.push(p.d);
+    }
+    return { complex, K: sa.K, N: sa.N, x, d };
+  };
+  switch (c.kind) {
+    case 'system-identification':
+      return pairOf('input', c.input, 'output', c.output, systemIdentification);
+    case 'noise-cancellation':
+      return pairOf('reference', c.reference, 'primary', c.primary, noiseCancellation);
+    case 'linear-prediction': {
+      const s = signalShape('signal', c.signal);
+      const x: Float64Array[] = [];
+      const d: Float64Array[] = [];
+      for (let k = 0; k < s.K; k++) {
+        const p = linearPrediction(
+          rowOf(c.signal, k, s.N, c.signal.complex),
+          c.delay,
+          c.signal.complex
+        );
+        x.push(p.x);
+        d.push(p.d);
+      }
+      return { complex: c.signal.complex, K: s.K, N: s.N, x, d };
+    }
+    default:
+      throw new RangeError(
+        `configuration.kind must be system-identification, noise-cancellation, linear-prediction ` +
+          `or equalization, got ${JSON.stringify((c as { kind: unknown }).kind)}`
+      );
+  }
+}
+
+/** Runs an adaptive-filter spec. */
+export async function runAdaptiveFilter(
+  spec: AdaptiveFilterSpec,
+  ctx: JobContext
+): Promise<AdaptiveFilterResult> {
+  if (spec.configuration?.kind === 'equalization') {
+    return runEqualizer(spec, ctx);
+  }
+  const src = sources(spec);
+  const { complex, K, N } = src;
+  const M = spec.M;
+  if (Number.isInteger(M) && M > N) {
+    throw new RangeError(`M = ${M} is longer than the signal (${N} samples)`);
+  }
+  const opts = filterOptions(spec, complex);
+  const probe = createFilter(opts); // checks every option before any work
+  const f32 = probe.f32;
+  const W = complex ? 2 : 1;
+  const L = probe.weightLength;
+  const keep = opts.decimation ?? 0;
+  const rows = keep > 0 ? Math.floor(N / keep) : 0;
+  const chunk = spec.chunkSize === undefined ? defaultChunk(spec) : checkChunk(spec.chunkSize);
+  const y = new Float64Array(K * N * W);
+  const e = new Float64Array(K * N * W);
+  const weights = new Float64Array(K * L);
+  const traj = new Float64Array(K * rows * L);
+  const trajIndex = new Float64Array(rows);
+  const trajIndexScratch = new Float64Array(rows); // trials after the first (same indices)
+  const mk = (n: number) => (f32 ? new Float32Array(n) : new Float64Array(n));
+  const cn = Math.min(chunk, N);
+  // scratch for the outputs not returned (and, in float32, for y and e before widening)
+  const ePost = mk(cn * W);
+  const gamma = mk(cn);
+  const y32 = f32 ? mk(cn * W) : null;
+  const e32 = f32 ? mk(cn * W) : null;
+  const warnings: JobWarning[] = [];
+  const total = K * N;
+  let energyD = 0;
+  let energyE = 0;
+  for (let k = 0; k < K; k++) {
+    const filt = k === 0 ? probe : createFilter(opts);
+    const xk = f32 ? Float32Array.from(src.x[k]) : src.x[k];
+    const dk = f32 ? Float32Array.from(src.d[k]) : src.d[k];
+    let trajRow = k * rows;
+    for (let s = 0; s < N; s += chunk) {
+      const n = Math.min(chunk, N - s);
+      const yo = (y32 ?? y.subarray((k * N + s) * W, (k * N + s + n) * W)) as Float64Array;
+      const eo = (e32 ?? e.subarray((k * N + s) * W, (k * N + s + n) * W)) as Float64Array;
+      const r = filt.process(xk.subarray(s * W, (s + n) * W), dk.subarray(s * W, (s + n) * W), {
+        y: yo,
+        e: eo,
+        ePost,
+        gamma,
+        trajectory: traj.subarray(trajRow * L),
+        trajectoryIndex: (k === 0 ? trajIndex : trajIndexScratch).subarray(trajRow - k * rows)
+      });
+      if (y32 && e32) {
+        y.set(y32.subarray(0, n * W), (k * N + s) * W);
+        e.set(e32.subarray(0, n * W), (k * N + s) * W);
+      }
+      trajRow += r.trajectoryIndex.length;
+      await ctx.checkpoint(k * N + s + n, total, K > 1 ? `trial ${k + 1} of ${K}` : 'filtering');
+    }
+    weights.set(filt.weights(), k * L);
+    for (const ev of filt.health().events) {
+      warnings.push({
+        kind: ev.kind,
+        message: ev.message,
+        index: ev.index,
+        ...(K > 1 ? { trial: k } : {})
+      });
+    }
+    const dk64 = src.d[k];
+    for (let i = 0; i < N * W; i++) {
+      energyD += dk64[i] * dk64[i];
+      energyE += e[k * N * W + i] * e[k * N * W + i];
+    }
+  }
+  const curves = squaredError(e, complex); // K·N values, trial-major
+  const band = K > 1 ? ensembleAverage(curves, { K }) : null;
+  const curve = band ? band.mean : curves;
+  const figures = readFigures(spec, curve, N, warnings);
+  figures.errorReductionDb = energyE > 0 ? 10 * Math.log10(energyD / energyE) : null;
+  const shape = (...s: number[]) => (K > 1 ? [K, ...s] : s);
+  return {
+    kind: 'adaptive-filter',
+    status: warnings.length ? 'warning' : 'ok',
+    warnings,
+    algorithm: spec.algorithm,
+    complex,
+    K,
+    N,
+    M,
+    output: { data: y, shape: shape(N), complex },
+    error: { data: e, shape: shape(N), complex },
+    weights: { data: weights, shape: shape(M), complex },
+    trajectory: rows > 0 ? { data: traj, shape: shape(rows, M), complex } : null,
+    trajectoryIndex: rows > 0 ? trajIndex : null,
+    learningCurve: curve,
+    learningCurveLower: band ? band.lower : null,
+    learningCurveUpper: band ? band.upper : null,
+    figures,
+    decisions: null
+  };
+}
+
+function checkChunk(c: unknown): number {
+  if (typeof c !== 'number' || !Number.isInteger(c) || c < 1) {
+    throw new RangeError(`chunkSize must be an integer ≥ 1, got ${String(c)}`);
+  }
+  return c;
+}
+
+/**
+ * Figures read off a learning curve: final MSE (mean over the last `window` samples), steady
+ * state (mean over the tail), convergence time (±marginDb, smoothed by `window`), misadjustment
+ * against a stated J_min (Haykin, Adaptive Filter Theory, 4th ed., §5.4, 𝓜 = J_ex(∞)/J_min).
+ * A figure that cannot be read (a curve with NaN after a breakdown, a zero steady state) is null.
+ */
+export function readFigures(
+  spec: Pick<AdaptiveFilterSpec, 'window' | 'tail' | 'marginDb' | 'fs' | 'minMse'>,
+  curve: Float64Array,
+  N: number,
+  warnings: JobWarning[]
+): AdaptiveFilterFigures {
+  const window = spec.window ?? Math.min(1024, Math.max(1, Math.round(N / 50)));
+  if (!Number.isInteger(window) || window < 1) {
+    throw new RangeError(`window must be an integer ≥ 1, got ${String(spec.window)}`);
+  }
+  const tailIn = spec.tail ?? 0.1;
+  const tail = tailIn > 0 && tailIn < 1 ? Math.max(1, Math.round(tailIn * N)) : tailIn;
+  if (!Number.isInteger(tail) || tail < 1 || tail > N) {
+    throw new RangeError(
+      `tail must be a fraction in (0, 1) or a count in [1, ${N}], got ${String(spec.tail)}`
+    );
+  }
+  const marginDb = spec.marginDb ?? 1;
+  if (!(marginDb > 0) || !Number.isFinite(marginDb)) {
+    throw new RangeError(`marginDb must be > 0, got ${String(spec.marginDb)}`);
+  }
+  if (spec.fs !== undefined && !(spec.fs > 0 && Number.isFinite(spec.fs))) {
+    throw new RangeError(`fs must be a sample rate > 0 in Hz, got ${String(spec.fs)}`);
+  }
+  if (spec.minMse !== undefined && !(spec.minMse > 0 && Number.isFinite(spec.minMse))) {
+    throw new RangeError(`minMse must be > 0, got ${String(spec.minMse)}`);
+  }
+  const db = (v: number) => (Number.isFinite(v) && v >= 0 ? 10 * Math.log10(v) : null);
+  const finite = curve.every(Number.isFinite);
+  let finalMse = NaN;
+  let steady = NaN;
+  let conv: number | null = null;
+  if (finite && N > 0) {
+    const sm = movingAverage(curve, Math.min(window, N));
+    finalMse = sm[N - 1];
+    steady = steadyStateMse(curve, tail);
+    if (steady > 0) {
+      const t = convergenceTime(curve, { marginDb, tail, window: Math.min(window, N) });
+      if (t < 0) {
+        warnings.push({
+          kind: 'not-converged',
+          message: `the smoothed learning curve does not stay within ±${marginDb} dB of its steady state`
+        });
+      } else {
+        conv = t;
+      }
+    }
+  }
+  const fin = (v: number) => (Number.isFinite(v) ? v : null);
+  return {
+    finalMseDb: db(finalMse),
+    steadyStateMseDb: db(steady),
+    convergenceSamples: conv,
+    convergenceSeconds: conv !== null && spec.fs !== undefined ? conv / spec.fs : null,
+    misadjustment:
+      spec.minMse !== undefined && Number.isFinite(steady)
+        ? fin(misadjustment(steady, spec.minMse))
+        : null,
+    errorReductionDb: null,
+    symbolErrorRate: null,
+    window,
+    tail,
+    marginDb
+  };
+}
+
+/** Equalization (1-D sources): the core's equalizer in one call, then the same figures. */
+async function runEqualizer(
+  spec: AdaptiveFilterSpec,
+  ctx: JobContext
+): Promise<AdaptiveFilterResult> {
+  const c = spec.configuration;
+  if (c.kind !== 'equalization') {
+    throw new Error('unreachable');
+  }
+  const sr = signalShape('received', c.received);
+  const st = signalShape('training', c.training);
+  if (sr.K !== 1 || st.K !== 1) {
+    throw new RangeError('equalization takes 1-D received and training sequences');
+  }
+  const complex = c.received.complex || c.training.complex;
+  const N = sr.N;
+  if (Number.isInteger(spec.M) && spec.M > N) {
+    throw new RangeError(`M = ${spec.M} is longer than the signal (${N} samples)`);
+  }
+  let training = rowOf(c.training, 0, st.N, complex);
+  if (c.trainingLength !== undefined) {
+    if (!Number.isInteger(c.trainingLength) || c.trainingLength < 0 || c.trainingLength > st.N) {
+      throw new RangeError(
+        `trainingLength must be an integer in [0, ${st.N}] (the training sequence's length), got ${String(c.trainingLength)}`
+      );
+    }
+    training = training.subarray(0, c.trainingLength * (complex ? 2 : 1));
+  }
+  await ctx.checkpoint(0, N, 'equalizing');
+  const r = equalize(rowOf(c.received, 0, N, complex), training, {
+    ...filterOptions(spec, complex),
+    delay: c.delay,
+    decisionDirected: c.decisionDirected,
+    constellation: c.constellation,
+    symbols: c.symbols
+      ? rowOf(c.symbols, 0, signalShape('symbols', c.symbols).N, complex)
+      : undefined
+  });
+  await ctx.checkpoint(N, N, 'equalizing');
+  const warnings: JobWarning[] = r.health.events.map(ev => ({
+    kind: ev.kind,
+    message: ev.message,
+    index: ev.index
+  }));
+  const e = Float64Array.from(r.e);
+  const curve = squaredError(e, complex);
+  const figures = readFigures(spec, curve, N, warnings);
+  figures.symbolErrorRate = r.symbolErrorRate;
+  const M = spec.M;
+  const rows = r.trajectoryIndex.length;
+  return {
+    kind: 'adaptive-filter',
+    status: warnings.length ? 'warning' : 'ok',
+    warnings,
+    algorithm: spec.algorithm,
+    complex,
+    K: 1,
+    N,
+    M,
+    output: { data: Float64Array.from(r.y), shape: [N], complex },
+    error: { data: e, shape: [N], complex },
+    weights: { data: r.weights, shape: [M], complex },
+    trajectory: rows > 0 ? { data: r.trajectory, shape: [rows, M], complex } : null,
+    trajectoryIndex: rows > 0 ? r.trajectoryIndex : null,
+    learningCurve: curve,
+    learningCurveLower: null,
+    learningCurveUpper: null,
+    figures,
+    decisions: r.decisions
+  };
+}

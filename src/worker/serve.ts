@@ -1,0 +1,106 @@
+/**
+ * The worker side of the protocol, independent of where it runs: a Web Worker (worker.ts) or a
+ * Node worker thread (the tests and the benchmark). It announces `ready`, runs each `run` with a
+ * context whose checkpoint posts progress, yields to the event loop through a MessageChannel
+ * (not setTimeout, which browsers clamp to 4 ms when nested) so that a `cancel` is seen at the
+ * next chunk border, and answers with exactly one of result / failed / cancelled.
+ */
+import {
+  PROTOCOL_VERSION,
+  transferables,
+  type FromWorker,
+  type JobSpec,
+  type ToWorker
+} from './protocol';
+import { JobCancelled, runJob, type JobContext } from './jobs';
+
+/** How the worker talks to its owner. */
+export interface Endpoint {
+  post(message: FromWorker, transfer: ArrayBuffer[]): void;
+  listen(handler: (message: ToWorker) => void): void;
+}
+
+/** Minimum interval between two progress messages of one job, in milliseconds. */
+const PROGRESS_INTERVAL_MS = 25;
+
+/** A yield to the event loop that lets pending messages in (a macrotask, unclamped). */
+export function messageChannelYield(): () => Promise<void> {
+  const channel = new MessageChannel();
+  const waiting: (() => void)[] = [];
+  channel.port1.onmessage = () => {
+    const next = waiting.shift();
+    if (next) {
+      next();
+    }
+  };
+  return () =>
+    new Promise<void>(resolve => {
+      waiting.push(resolve);
+      channel.port2.postMessage(0);
+    });
+}
+
+/** Serves jobs on an endpoint. */
+export function serve(
+  endpoint: Endpoint,
+  yieldNow: () => Promise<void> = messageChannelYield()
+): void {
+  const cancelled = new Set<number>();
+  const running = new Set<number>();
+
+  const run = async (id: number, spec: JobSpec): Promise<void> => {
+    running.add(id);
+    const t0 = performance.now();
+    let lastPost = -Infinity;
+    let lastTotal = 0;
+    const unit = spec?.kind === 'adaptive-filter' ? 'samples' : 'steps';
+    const ctx: JobContext = {
+      checkpoint: async (done, total, stage) => {
+        lastTotal = total;
+        const now = performance.now();
+        if (now - lastPost >= PROGRESS_INTERVAL_MS || done >= total) {
+          lastPost = now;
+          endpoint.post({ type: 'progress', id, done, total, unit, stage }, []);
+        }
+        await yieldNow();
+        if (cancelled.has(id)) {
+          throw new JobCancelled(done);
+        }
+      }
+    };
+    try {
+      const result = await runJob(spec, ctx);
+      const ms = performance.now() - t0;
+      endpoint.post(
+        {
+          type: 'result',
+          id,
+          result,
+          timing: { ms, perSecond: unit === 'samples' && ms > 0 ? lastTotal / (ms / 1000) : null }
+        },
+        transferables(result)
+      );
+    } catch (reason) {
+      if (reason instanceof JobCancelled) {
+        endpoint.post({ type: 'cancelled', id, done: reason.done }, []);
+      } else {
+        const e = reason instanceof Error ? reason : new Error(String(reason));
+        endpoint.post({ type: 'failed', id, error: { name: e.name, message: e.message } }, []);
+      }
+    } finally {
+      running.delete(id);
+      cancelled.delete(id);
+    }
+  };
+
+  endpoint.listen(message => {
+    if (message?.type === 'run') {
+      void run(message.id, message.spec);
+    } else if (message?.type === 'cancel') {
+      if (running.has(message.id)) {
+        cancelled.add(message.id);
+      }
+    }
+  });
+  endpoint.post({ type: 'ready', protocol: PROTOCOL_VERSION }, []);
+}
