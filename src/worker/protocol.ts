@@ -447,8 +447,10 @@ export function transferables(value: unknown): ArrayBuffer[] {
     }
     if (ArrayBuffer.isView(v)) {
       const b = v.buffer;
-      if (b instanceof ArrayBuffer && b.byteLength > 0) {
-        seen.add(b);
+      // by tag, not instanceof: an array made in another realm (a test's vm context, an
+      // iframe) has another ArrayBuffer constructor; a SharedArrayBuffer cannot be transferred
+      if (Object.prototype.toString.call(b) === '[object ArrayBuffer]' && b.byteLength > 0) {
+        seen.add(b as ArrayBuffer);
       }
       return;
     }

@@ -1,9 +1,9 @@
 /**
  * The worker side of the protocol, independent of where it runs: a Web Worker (worker.ts) or a
  * Node worker thread (the tests and the benchmark). It announces `ready`, runs each `run` with a
- * context whose checkpoint posts progress, yields to the event loop through a MessageChannel
- * (not setTimeout, which browsers clamp to 4 ms when nested) so that a `cancel` is seen at the
- * next chunk border, and answers with exactly one of result / failed / cancelled.
+ * context whose checkpoint posts progress, yields to the event loop (a MessageChannel task in a
+ * browser, not setTimeout, which browsers clamp to 4 ms when nested; setImmediate in Node) so
+ * that a `cancel` is seen at the next chunk border, and answers with exactly one of result / failed / cancelled.
  */
 import {
   PROTOCOL_VERSION,
@@ -23,7 +23,23 @@ export interface Endpoint {
 /** Minimum interval between two progress messages of one job, in milliseconds. */
 const PROGRESS_INTERVAL_MS = 25;
 
-/** A yield to the event loop that lets pending messages in (a macrotask, unclamped). */
+/**
+ * A yield to the event loop that lets pending messages in (a macrotask, unclamped). In a browser
+ * every message on a port is a task of its own, queued behind a cancel that arrived earlier. Node
+ * drains a port's queue in one go, running microtasks between messages, so a job that posts its
+ * next yield from there would starve the thread's other port: there, setImmediate (the check
+ * phase, after the poll phase that delivers the owner's messages) is the yield.
+ */
+export function defaultYield(): () => Promise<void> {
+  const g = globalThis as { setImmediate?: (f: () => void) => unknown };
+  if (typeof g.setImmediate === 'function') {
+    const si = g.setImmediate;
+    return () => new Promise<void>(resolve => si(resolve));
+  }
+  return messageChannelYield();
+}
+
+/** A yield through a MessageChannel: one task per yield, not clamped as nested timers are. */
 export function messageChannelYield(): () => Promise<void> {
   const channel = new MessageChannel();
   const waiting: (() => void)[] = [];
@@ -41,10 +57,7 @@ export function messageChannelYield(): () => Promise<void> {
 }
 
 /** Serves jobs on an endpoint. */
-export function serve(
-  endpoint: Endpoint,
-  yieldNow: () => Promise<void> = messageChannelYield()
-): void {
+export function serve(endpoint: Endpoint, yieldNow: () => Promise<void> = defaultYield()): void {
   const cancelled = new Set<number>();
   const running = new Set<number>();
 

@@ -1,0 +1,322 @@
+/**
+ * The pool with the real worker entry in Node worker threads: ready handshake before any buffer
+ * moves, progress from the core's chunks, cancel of a queued and of a running job, a worker that
+ * dies mid-job (exit, uncaught error) failing its job and being replaced, the memory limit,
+ * transfer of buffers, a sweep in parallel, and results equal to a direct core call bit for bit.
+ * No timing is asserted (the machine is shared).
+ */
+import { runFilter, type FilterRun } from '../../src/core';
+import { WorkerPool, type JobOutcome, type JobProgress } from '../../src/worker/pool';
+import type {
+  AdaptiveFilterResult,
+  AdaptiveFilterSpec,
+  ArrayData,
+  FromWorker,
+  InterferenceResult
+} from '../../src/worker/protocol';
+import type { WorkerTransport } from '../../src/worker/transport';
+import { Rng } from '../core/filters/helpers';
+import { buildNodeWorker, nodeTransport, type ShimOptions } from './node-worker';
+
+let shim: string;
+const pools: WorkerPool[] = [];
+
+beforeAll(() => {
+  shim = buildNodeWorker(`pool-${process.pid}`);
+});
+
+afterEach(() => {
+  for (const p of pools.splice(0)) {
+    p.dispose();
+  }
+});
+
+function pool(
+  opts: Partial<ConstructorParameters<typeof WorkerPool>[0]> = {},
+  shimOptions: ShimOptions = {}
+) {
+  const p = new WorkerPool({
+    size: 1,
+    createTransport: () => nodeTransport(shim, shimOptions),
+    ...opts
+  });
+  pools.push(p);
+  return p;
+}
+
+const arr = (data: Float64Array, shape: number[], complex = false): ArrayData => ({
+  data,
+  shape,
+  complex
+});
+
+function data(N: number, seed = 1) {
+  const rng = new Rng(seed);
+  const x = rng.gaussArray(N);
+  const d = new Float64Array(N);
+  for (let n = 0; n < N; n++) {
+    d[n] = 0.8 * x[n] + (n > 0 ? -0.3 * x[n - 1] : 0) + 0.01 * rng.gauss();
+  }
+  return { x, d };
+}
+
+function spec(
+  x: Float64Array,
+  d: Float64Array,
+  extra: Partial<AdaptiveFilterSpec> = {}
+): AdaptiveFilterSpec {
+  return {
+    kind: 'adaptive-filter',
+    configuration: {
+      kind: 'noise-cancellation',
+      reference: arr(x, [x.length]),
+      primary: arr(d, [d.length])
+    },
+    algorithm: 'qr-rls',
+    M: 8,
+    lambda: 0.999,
+    ...extra
+  };
+}
+
+function done(o: JobOutcome): AdaptiveFilterResult {
+  if (o.status !== 'done') {
+    throw new Error(`expected a result, got ${JSON.stringify(o)}`);
+  }
+  return o.result as AdaptiveFilterResult;
+}
+
+function expectSameRun(r: AdaptiveFilterResult, ref: FilterRun) {
+  expect(r.output.data).toEqual(ref.y);
+  expect(r.error.data).toEqual(ref.e);
+  expect(r.weights.data).toEqual(ref.weights);
+}
+
+test('a job runs in a worker thread; its result equals a direct core call bit for bit', async () => {
+  const { x, d } = data(20000);
+  const p = pool();
+  const progress: JobProgress[] = [];
+  const h = p.run(spec(x, d, { chunkSize: 1000, keepEvery: 100 }), {
+    onProgress: q => progress.push(q)
+  });
+  const r = done(await h.outcome);
+  const ref = runFilter(x, d, { algorithm: 'qr-rls', order: 8, lambda: 0.999, decimation: 100 });
+  expectSameRun(r, ref);
+  expect(r.trajectory!.data).toEqual(ref.trajectory);
+  // progress came from the chunks, in order, ending at the total
+  expect(progress.length).toBeGreaterThan(0);
+  expect(progress[progress.length - 1]).toMatchObject({
+    done: 20000,
+    total: 20000,
+    unit: 'samples'
+  });
+  for (let k = 1; k < progress.length; k++) {
+    expect(progress[k].done).toBeGreaterThan(progress[k - 1].done);
+    expect(progress[k].done % 1000).toBe(0);
+  }
+  expect(h.state).toBe('settled');
+  // the caller's arrays were copied, not taken
+  expect(x.length).toBe(20000);
+});
+
+test('transfer: the spec buffers move to the worker (detached here), results come back whole', async () => {
+  const { x, d } = data(5000, 2);
+  const xc = Float64Array.from(x);
+  const dc = Float64Array.from(d);
+  const p = pool();
+  const h = p.run(spec(x, d), { transfer: true });
+  // still here while the job waits for the worker's ready message
+  expect(x.byteLength).toBe(5000 * 8);
+  const r = done(await h.outcome);
+  expect(x.byteLength).toBe(0); // detached: the buffer went to the worker
+  expect(d.byteLength).toBe(0);
+  expectSameRun(r, runFilter(xc, dc, { algorithm: 'qr-rls', order: 8, lambda: 0.999 }));
+  expect(r.output.data.buffer.byteLength).toBe(5000 * 8);
+});
+
+test('buffers are handed over only after the worker said ready', async () => {
+  // A real worker thread, with a wrapper that records what passes through the seam.
+  const events: string[] = [];
+  const p = pool({
+    createTransport: () => {
+      const t = nodeTransport(shim);
+      const wrapped: WorkerTransport = {
+        postMessage: (m, transfer) => {
+          events.push(`post ${m.type} (${transfer.length} buffers)`);
+          t.postMessage(m, transfer);
+        },
+        onMessage: h =>
+          t.onMessage((m: FromWorker) => {
+            if (m.type === 'ready' || m.type === 'result') {
+              events.push(`got ${m.type}`);
+            }
+            h(m);
+          }),
+        onFailure: h => t.onFailure(h),
+        terminate: () => t.terminate()
+      };
+      return wrapped;
+    }
+  });
+  const { x, d } = data(1000, 3);
+  done(await p.run(spec(x, d), { transfer: true }).outcome);
+  expect(events).toEqual(['got ready', 'post run (2 buffers)', 'got result']);
+});
+
+test('cancel: a running job stops at a chunk border; a queued job is dropped; the worker stays', async () => {
+  const { x, d } = data(400000, 4);
+  const p = pool();
+  let cancelAt = -1;
+  const running = p.run(spec(x, d, { M: 32, chunkSize: 2000 }), {
+    onProgress: q => {
+      if (cancelAt < 0 && q.done >= 20000) {
+        cancelAt = q.done;
+        running.cancel();
+      }
+    }
+  });
+  const queued = p.run(spec(x, d));
+  expect(queued.state).toBe('queued');
+  queued.cancel();
+  expect(await queued.outcome).toEqual({ status: 'cancelled', done: 0 });
+  const o = await running.outcome;
+  expect(o.status).toBe('cancelled');
+  if (o.status === 'cancelled') {
+    expect(o.done % 2000).toBe(0); // a chunk border
+    expect(o.done).toBeGreaterThanOrEqual(cancelAt);
+    expect(o.done).toBeLessThan(400000);
+  }
+  // the same worker (not replaced) runs the next job
+  expect(p.workers).toBe(1);
+  const small = data(3000, 5);
+  expectSameRun(
+    done(await p.run(spec(small.x, small.d)).outcome),
+    runFilter(small.x, small.d, { algorithm: 'qr-rls', order: 8, lambda: 0.999 })
+  );
+  expect(p.workers).toBe(1);
+});
+
+test.each([
+  ['exits', { exitOnRun: true }, /the job worker stopped: the worker exited with code 3/],
+  ['throws', { throwOnRun: true }, /the job worker stopped: the worker threw \(test shim\)/]
+] as const)(
+  'a worker that %s mid-job fails its job with the reason and is replaced',
+  async (_, opts, reason) => {
+    let made = 0;
+    const p = pool({
+      createTransport: () => nodeTransport(shim, made++ === 0 ? opts : {})
+    });
+    const { x, d } = data(2000, 6);
+    const o = await p.run(spec(x, d)).outcome;
+    expect(o.status).toBe('failed');
+    if (o.status === 'failed') {
+      expect(o.reason).toMatch(reason);
+    }
+    // the next job goes to a fresh worker and succeeds
+    expectSameRun(
+      done(await p.run(spec(x, d)).outcome),
+      runFilter(x, d, { algorithm: 'qr-rls', order: 8, lambda: 0.999 })
+    );
+    expect(made).toBe(2);
+  }
+);
+
+test('workers that cannot start fail the queued jobs with the reason (no endless restarts)', async () => {
+  let made = 0;
+  const p = pool({
+    maxStartFailures: 2,
+    createTransport: () => {
+      made++;
+      return nodeTransport(shim, { throwOnLoad: true });
+    }
+  });
+  const { x, d } = data(500, 7);
+  const o = await p.run(spec(x, d)).outcome;
+  expect(o.status).toBe('failed');
+  if (o.status === 'failed') {
+    expect(o.reason).toMatch(/job workers fail to start \(2 in a row\).*failed while loading/);
+  }
+  expect(made).toBe(2);
+});
+
+test('a run above the memory limit is refused before dispatch, with the figures', async () => {
+  let made = 0;
+  const p = pool({
+    memoryLimitBytes: 2 ** 20,
+    createTransport: () => {
+      made++;
+      return nodeTransport(shim);
+    }
+  });
+  const { x, d } = data(100000, 8);
+  const o = await p.run(spec(x, d, { keepEvery: 1 })).outcome;
+  expect(o.status).toBe('failed');
+  if (o.status === 'failed') {
+    expect(o.reason).toMatch(
+      /needs about [\d.]+ MB .*weight trajectory.*above the per-run memory limit of 1\.0 MB/
+    );
+  }
+  expect(made).toBe(0);
+});
+
+test('a failing job reports the core’s message; the worker goes on', async () => {
+  const { x, d } = data(100, 9);
+  const p = pool();
+  const o = await p.run(spec(x, d, { lambda: 1.5 })).outcome;
+  expect(o).toMatchObject({ status: 'failed', errorName: 'RangeError' });
+  if (o.status === 'failed') {
+    expect(o.reason).toMatch(/options\.lambda must be in \(0, 1\]/);
+  }
+  done(await p.run(spec(x, d)).outcome);
+  expect(p.workers).toBe(1);
+});
+
+test('a sweep runs one job per value on a pool of 2; each equals its direct core call', async () => {
+  const { x, d } = data(6000, 10);
+  const p = pool({ size: 2 });
+  const lambdas = [0.99, 0.995, 0.999, 1];
+  const sweep = p.runSweep({
+    kind: 'sweep',
+    base: spec(x, d),
+    parameter: 'lambda',
+    values: lambdas
+  });
+  expect(p.workers).toBe(2);
+  const outcomes = await sweep.outcome;
+  outcomes.forEach((o, k) => {
+    const r = done(o);
+    expectSameRun(r, runFilter(x, d, { algorithm: 'qr-rls', order: 8, lambda: lambdas[k] }));
+  });
+});
+
+test('interference job through the worker: harmonic directions in their own order', async () => {
+  const fs = 1000;
+  const N = 1000;
+  const x = new Float64Array(N);
+  for (let n = 0; n < N; n++) {
+    x[n] = 0.2 * Math.cos((2 * Math.PI * 50 * n) / fs) + 1 * Math.sin((2 * Math.PI * 100 * n) / fs);
+  }
+  const p = pool();
+  const o = await p.run({
+    kind: 'interference',
+    signal: arr(x, [N]),
+    basis: { kind: 'harmonics', f0: 50, fs, count: 2 }
+  }).outcome;
+  expect(o.status).toBe('done');
+  const r = (o as { result: InterferenceResult }).result;
+  // whole periods: energies N·A²/2 (common practice)
+  expect(r.directions[0].energy).toBeCloseTo((N * 0.04) / 2, 9);
+  expect(r.directions[1].energy).toBeCloseTo(N / 2, 9);
+  expect(r.suppressionDb).toBeGreaterThan(250);
+});
+
+test('dispose cancels queued and running jobs', async () => {
+  const { x, d } = data(200000, 11);
+  const p = pool();
+  const a = p.run(spec(x, d, { M: 32 }));
+  const b = p.run(spec(x, d));
+  p.dispose();
+  expect((await a.outcome).status).toBe('cancelled');
+  expect((await b.outcome).status).toBe('cancelled');
+  expect((await p.run(spec(x, d)).outcome).status).toBe('failed');
+});
