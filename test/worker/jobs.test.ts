@@ -4,6 +4,7 @@
  * outside references named beside each check hold.
  */
 import {
+  convergenceTime,
   ensembleAverage,
   linearPrediction,
   misadjustment,
@@ -176,6 +177,11 @@ describe('adaptive-filter job', () => {
     const theory = (4 * (1 - lam)) / (1 + lam);
     expect(Math.abs(r.figures.misadjustment! / theory - 1)).toBeLessThan(0.3);
     expect(r.figures.convergenceSamples).not.toBeNull();
+    // the same reading as the core's convergenceTime with the job's window (N/50 = 80)
+    expect(r.figures.window).toBe(80);
+    expect(r.figures.convergenceSamples).toBe(
+      convergenceTime(ens.mean, { marginDb: 1, tail: 1000, window: 80 })
+    );
     expect(r.figures.convergenceSeconds).toBe(r.figures.convergenceSamples! / 1000);
     // J∞ = J_min (1 + 𝓜): the steady-state MSE in dB sits near 10·log10(σ²) = −20 dB
     expect(Math.abs(r.figures.steadyStateMseDb! + 20)).toBeLessThan(1);

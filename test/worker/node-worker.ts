@@ -42,13 +42,16 @@ parentPort.on('message', data => {
 require('./worker/worker.js');
 `;
 
-/** Transpiles src/core and src/worker into a fresh folder; returns the shim's path. */
-export function buildNodeWorker(tag = String(process.pid)): string {
-  const out = path.join(ROOT, 'node_modules', '.cache', 'perpend-worker', tag);
+/**
+ * Transpiles src/core and src/worker of the repository at `root` into a fresh folder under its
+ * node_modules/.cache; returns the shim's path.
+ */
+export function buildNodeWorker(tag = String(process.pid), root = ROOT): string {
+  const out = path.join(root, 'node_modules', '.cache', 'perpend-worker', tag);
   fs.rmSync(out, { recursive: true, force: true });
   for (const dir of ['core', 'worker']) {
     const walk = (rel: string): void => {
-      const abs = path.join(ROOT, 'src', rel);
+      const abs = path.join(root, 'src', rel);
       for (const entry of fs.readdirSync(abs, { withFileTypes: true })) {
         const r = path.join(rel, entry.name);
         if (entry.isDirectory()) {
@@ -58,7 +61,7 @@ export function buildNodeWorker(tag = String(process.pid)): string {
           !entry.name.endsWith('.d.ts') &&
           r !== path.join('worker', 'client.ts')
         ) {
-          const js = ts.transpileModule(fs.readFileSync(path.join(ROOT, 'src', r), 'utf8'), {
+          const js = ts.transpileModule(fs.readFileSync(path.join(root, 'src', r), 'utf8'), {
             compilerOptions: {
               module: ts.ModuleKind.CommonJS,
               target: ts.ScriptTarget.ES2020,

@@ -271,16 +271,25 @@ export function readFigures(
     throw new RangeError(`minMse must be > 0, got ${String(spec.minMse)}`);
   }
   const db = (v: number) => (Number.isFinite(v) && v >= 0 ? 10 * Math.log10(v) : null);
-  const finite = curve.every(Number.isFinite);
+  let finite = true;
+  for (let i = 0; i < curve.length; i++) {
+    const v = curve[i];
+    if (v - v !== 0) {
+      finite = false;
+      break;
+    }
+  }
   let finalMse = NaN;
   let steady = NaN;
   let conv: number | null = null;
   if (finite && N > 0) {
-    const sm = movingAverage(curve, Math.min(window, N));
+    // one smoothing serves the final MSE and the convergence time (convergenceTime with
+    // `window` smooths the same way)
+    const sm = window > 1 ? movingAverage(curve, Math.min(window, N)) : curve;
     finalMse = sm[N - 1];
     steady = steadyStateMse(curve, tail);
-    if (steady > 0) {
-      const t = convergenceTime(curve, { marginDb, tail, window: Math.min(window, N) });
+    if (steadyStateMse(sm, tail) > 0) {
+      const t = convergenceTime(sm, { marginDb, tail });
       if (t < 0) {
         warnings.push({
           kind: 'not-converged',
