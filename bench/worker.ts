@@ -90,7 +90,7 @@ async function main(): Promise<void> {
       primary: { data: d.subarray(0, n), shape: [n], complex: false }
     },
     algorithm: 'qr-rls',
-    M,
+    taps: M,
     lambda: 0.999,
     delta: 0.01
   });

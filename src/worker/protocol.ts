@@ -69,8 +69,8 @@ export interface AdaptiveFilterSpec {
   kind: 'adaptive-filter';
   configuration: FilterConfiguration;
   algorithm: Algorithm;
-  /** Filter length M ≥ 1. */
-  M: number;
+  /** Number of taps (filter length) M ≥ 1. */
+  taps: number;
   /** Forgetting factor λ in (0, 1] (RLS family). */
   lambda?: number;
   /** Initialisation δ > 0 (RLS family): Φ(0) = δI. */
@@ -163,7 +163,7 @@ export type SubspaceSpec = BasisJobSpec | LeastSquaresSpec | AnglesSpec;
 export type JobSpec = AdaptiveFilterSpec | InterferenceSpec | SubspaceSpec;
 
 /** The parameters a sweep can vary. */
-export type SweepParameter = 'M' | 'lambda' | 'delta' | 'mu' | 'epsilon' | 'algorithm';
+export type SweepParameter = 'taps' | 'lambda' | 'delta' | 'mu' | 'epsilon' | 'algorithm';
 
 /** One parameter of an adaptive-filter spec over a list of values: one job per value. */
 export interface SweepSpec {
@@ -222,10 +222,10 @@ export interface AdaptiveFilterResult {
   warnings: JobWarning[];
   algorithm: Algorithm;
   complex: boolean;
-  /** Trials K (1 for a 1-D source), samples N, filter length M. */
+  /** Trials K (1 for a 1-D source), samples N, taps M. */
   K: number;
   N: number;
-  M: number;
+  taps: number;
   /** y(n), shape [N] or [K, N]. */
   output: ArrayData;
   /** a-priori error e(n) = d(n) − y(n), shape [N] or [K, N]. */

@@ -75,7 +75,7 @@ describe('adaptive-filter job', () => {
           output: arr(d, [3000])
         },
         algorithm: alg,
-        M: 6,
+        taps: 6,
         lambda: 0.995,
         mu: alg === 'lms' ? 0.02 : 0.5,
         keepEvery: 7,
@@ -121,7 +121,7 @@ describe('adaptive-filter job', () => {
           primary: arr(d, [1500], true)
         },
         algorithm: 'qr-rls',
-        M: 4,
+        taps: 4,
         precision,
         chunkSize: 100
       });
@@ -151,7 +151,7 @@ describe('adaptive-filter job', () => {
         output: arr(d, [K, N])
       },
       algorithm: 'qr-rls',
-      M: 4,
+      taps: 4,
       lambda: lam,
       minMse: sigma * sigma,
       tail: 1000,
@@ -199,7 +199,7 @@ describe('adaptive-filter job', () => {
       kind: 'adaptive-filter',
       configuration: { kind: 'linear-prediction', signal: arr(s, [20000]), delay: 1 },
       algorithm: 'rls',
-      M: 2,
+      taps: 2,
       lambda: 1
     });
     expect(Math.abs(r.weights.data[0] - a)).toBeLessThan(0.03);
@@ -236,7 +236,7 @@ describe('adaptive-filter job', () => {
         symbols: arr(sym, [N])
       },
       algorithm: 'rls',
-      M: 7,
+      taps: 7,
       lambda: 0.999
     });
     expect(r.decisions).not.toBeNull();
@@ -257,7 +257,7 @@ describe('adaptive-filter job', () => {
         output: arr(d, [2000])
       },
       algorithm: 'lms',
-      M: 8,
+      taps: 8,
       mu: 0.5
     });
     expect(r.status).toBe('warning');
@@ -277,7 +277,7 @@ describe('adaptive-filter job', () => {
         kind: 'adaptive-filter',
         configuration: { kind: 'noise-cancellation', reference: a, primary: b },
         algorithm: 'nlms',
-        M: 2
+        taps: 2
       })
     ).rejects.toThrow(/reference has shape \[10\] but primary has shape \[12\]/);
     await expect(
@@ -285,15 +285,15 @@ describe('adaptive-filter job', () => {
         kind: 'adaptive-filter',
         configuration: { kind: 'noise-cancellation', reference: a, primary: a },
         algorithm: 'nlms',
-        M: 11
+        taps: 11
       })
-    ).rejects.toThrow(/M = 11 is longer than the signal \(10 samples\)/);
+    ).rejects.toThrow(/taps M = 11 is longer than the signal \(10 samples\)/);
     await expect(
       run({
         kind: 'adaptive-filter',
         configuration: { kind: 'noise-cancellation', reference: a, primary: a },
         algorithm: 'rls',
-        M: 2,
+        taps: 2,
         lambda: 1.5
       })
     ).rejects.toThrow(/lambda/);
@@ -306,7 +306,7 @@ describe('adaptive-filter job', () => {
           primary: a
         },
         algorithm: 'rls',
-        M: 2
+        taps: 2
       })
     ).rejects.toThrow(/reference has shape \[4\], which needs 4 values, but its data holds 3/);
   });
@@ -332,7 +332,7 @@ describe('adaptive-filter job', () => {
           output: arr(d, [5000])
         },
         algorithm: 'rls',
-        M: 4,
+        taps: 4,
         chunkSize: 1000
       },
       ctx
@@ -533,13 +533,13 @@ describe('sweep and memory estimate', () => {
       kind: 'adaptive-filter',
       configuration: { kind: 'system-identification', input: arr(x, [4]), output: arr(x, [4]) },
       algorithm: 'rls',
-      M: 2
+      taps: 2
     };
     const specs = expandSweep({ kind: 'sweep', base, parameter: 'lambda', values: [0.9, 0.99, 1] });
     expect(specs.map(s => s.lambda)).toEqual([0.9, 0.99, 1]);
     const bufs = specs.map(s => (s.configuration as { input: ArrayData }).input.data.buffer);
     expect(new Set([...bufs, x.buffer]).size).toBe(4);
-    expect(() => expandSweep({ kind: 'sweep', base, parameter: 'M', values: [2.5] })).toThrow(
+    expect(() => expandSweep({ kind: 'sweep', base, parameter: 'taps', values: [2.5] })).toThrow(
       /values\[0\] must be an integer/
     );
     expect(() =>
@@ -553,7 +553,7 @@ describe('sweep and memory estimate', () => {
       kind: 'adaptive-filter',
       configuration: { kind: 'noise-cancellation', reference: big, primary: big },
       algorithm: 'qr-rls',
-      M: 64
+      taps: 64
     };
     const a = estimateJobBytes(spec).bytes;
     const b = estimateJobBytes({ ...spec, keepEvery: 1 }).bytes;

@@ -73,7 +73,7 @@ function spec(
       primary: arr(d, [d.length])
     },
     algorithm: 'qr-rls',
-    M: 8,
+    taps: 8,
     lambda: 0.999,
     ...extra
   };
@@ -167,7 +167,7 @@ test('cancel: a running job stops at a chunk border; a queued job is dropped; th
   const { x, d } = data(400000, 4);
   const p = pool();
   let cancelAt = -1;
-  const running = p.run(spec(x, d, { M: 32, chunkSize: 2000 }), {
+  const running = p.run(spec(x, d, { taps: 32, chunkSize: 2000 }), {
     onProgress: q => {
       if (cancelAt < 0 && q.done >= 20000) {
         cancelAt = q.done;
@@ -313,7 +313,7 @@ test('interference job through the worker: harmonic directions in their own orde
 test('dispose cancels queued and running jobs', async () => {
   const { x, d } = data(200000, 11);
   const p = pool();
-  const a = p.run(spec(x, d, { M: 32 }));
+  const a = p.run(spec(x, d, { taps: 32 }));
   const b = p.run(spec(x, d));
   p.dispose();
   expect((await a.outcome).status).toBe('cancelled');

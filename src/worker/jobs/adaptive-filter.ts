@@ -35,7 +35,7 @@ import type { JobContext } from './context';
 export function filterOptions(spec: AdaptiveFilterSpec, complex: boolean): FilterOptions {
   return {
     algorithm: spec.algorithm,
-    order: spec.M,
+    order: spec.taps,
     complex,
     precision: spec.precision,
     lambda: spec.lambda,
@@ -48,7 +48,7 @@ export function filterOptions(spec: AdaptiveFilterSpec, complex: boolean): Filte
 
 /** Default samples per chunk: about 2²³ multiply-adds, a few milliseconds on this machine. */
 export function defaultChunk(spec: AdaptiveFilterSpec): number {
-  const M = spec.M;
+  const M = spec.taps;
   const quadratic = spec.algorithm !== 'lms' && spec.algorithm !== 'nlms';
   const cost = quadratic ? M * M + 8 * M : 4 * M + 16;
   return Math.min(1 << 17, Math.max(256, Math.round((1 << 23) / cost)));
@@ -134,9 +134,9 @@ export async function runAdaptiveFilter(
   }
   const src = sources(spec);
   const { complex, K, N } = src;
-  const M = spec.M;
+  const M = spec.taps;
   if (Number.isInteger(M) && M > N) {
-    throw new RangeError(`M = ${M} is longer than the signal (${N} samples)`);
+    throw new RangeError(`taps M = ${M} is longer than the signal (${N} samples)`);
   }
   const opts = filterOptions(spec, complex);
   const probe = createFilter(opts); // checks every option before any work
@@ -216,7 +216,7 @@ export async function runAdaptiveFilter(
     complex,
     K,
     N,
-    M,
+    taps: M,
     output: { data: y, shape: shape(N), complex },
     error: { data: e, shape: shape(N), complex },
     weights: { data: weights, shape: shape(M), complex },
@@ -334,8 +334,8 @@ async function runEqualizer(
   }
   const complex = c.received.complex || c.training.complex;
   const N = sr.N;
-  if (Number.isInteger(spec.M) && spec.M > N) {
-    throw new RangeError(`M = ${spec.M} is longer than the signal (${N} samples)`);
+  if (Number.isInteger(spec.taps) && spec.taps > N) {
+    throw new RangeError(`taps M = ${spec.taps} is longer than the signal (${N} samples)`);
   }
   let training = rowOf(c.training, 0, st.N, complex);
   if (c.trainingLength !== undefined) {
@@ -366,7 +366,7 @@ async function runEqualizer(
   const curve = squaredError(e, complex);
   const figures = readFigures(spec, curve, N, warnings);
   figures.symbolErrorRate = r.symbolErrorRate;
-  const M = spec.M;
+  const M = spec.taps;
   const rows = r.trajectoryIndex.length;
   return {
     kind: 'adaptive-filter',
@@ -376,7 +376,7 @@ async function runEqualizer(
     complex,
     K: 1,
     N,
-    M,
+    taps: M,
     output: { data: Float64Array.from(r.y), shape: [N], complex },
     error: { data: e, shape: [N], complex },
     weights: { data: r.weights, shape: [M], complex },

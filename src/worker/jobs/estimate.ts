@@ -35,7 +35,7 @@ export function estimateJobBytes(spec: JobSpec): MemoryEstimate {
       const N = src.shape[src.shape.length - 1] ?? 0;
       const K = values / Math.max(1, N) / (src.complex ? 2 : 1);
       const keep = spec.keepEvery ?? 0;
-      const traj = keep > 0 ? K * Math.floor(N / keep) * spec.M * W * 8 : 0;
+      const traj = keep > 0 ? K * Math.floor(N / keep) * spec.taps * W * 8 : 0;
       // x and d built per trial, y and e, the squared-error curves, the ensemble band
       const work = 8 * (K * N * W * 4 + K * N + (K > 1 ? 4 * N : N));
       return {

@@ -6,7 +6,7 @@
 import type { Algorithm } from '../../core/filters';
 import type { AdaptiveFilterSpec, SweepSpec } from '../protocol';
 
-const NUMERIC = ['M', 'lambda', 'delta', 'mu', 'epsilon'];
+const NUMERIC = ['taps', 'lambda', 'delta', 'mu', 'epsilon'];
 const ALGORITHMS: Algorithm[] = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-legacy', 'nlms', 'lms'];
 
 function cloneArrays<T>(v: T): T {
@@ -47,10 +47,10 @@ export function expandSweep(
     const ok =
       p === 'algorithm'
         ? ALGORITHMS.includes(v as Algorithm)
-        : typeof v === 'number' && Number.isFinite(v) && (p !== 'M' || Number.isInteger(v));
+        : typeof v === 'number' && Number.isFinite(v) && (p !== 'taps' || Number.isInteger(v));
     if (!ok) {
       throw new RangeError(
-        `values[${k}] must be ${p === 'algorithm' ? `one of ${ALGORITHMS.join(', ')}` : p === 'M' ? 'an integer' : 'a finite number'}, got ${JSON.stringify(v)}`
+        `values[${k}] must be ${p === 'algorithm' ? `one of ${ALGORITHMS.join(', ')}` : p === 'taps' ? 'an integer' : 'a finite number'}, got ${JSON.stringify(v)}`
       );
     }
   });
