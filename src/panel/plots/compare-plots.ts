@@ -8,7 +8,6 @@ import type { ISignal } from '@lumino/signaling';
 import { Widget } from '@lumino/widgets';
 import type { Trans } from '../../model/workbench/rules';
 import type { Run } from '../../model/workbench/runs';
-import type { WorkbenchModel } from '../../model/workbench/workbench';
 import {
   cellText,
   compareColumns,
@@ -20,6 +19,7 @@ import {
 } from './compare';
 import { downloadText, PlotPane } from './plot-pane';
 import { loadPlotlyDist, type LoadPlotly } from './plotly';
+import type { IRunSource } from './run-source';
 import { DEFAULT_PLOT_SETTINGS, type PlotSettings } from './settings';
 
 export class ComparePlots extends Widget {
@@ -110,7 +110,7 @@ export class ComparePlots extends Widget {
     return this._runIds.map(id => byId.get(id)).filter((r): r is Run => r !== undefined);
   }
 
-  private _onRun(_: WorkbenchModel, run: Run): void {
+  private _onRun(_: unknown, run: Run): void {
     if (this._runIds.includes(run.id)) {
       this.update();
     }
@@ -242,7 +242,7 @@ export class ComparePlots extends Widget {
   }
 
   private readonly _trans: Trans;
-  private readonly _model: WorkbenchModel;
+  private readonly _model: IRunSource;
   private readonly _bar: HTMLDivElement;
   private readonly _hint: HTMLParagraphElement;
   private readonly _table: HTMLDivElement;
@@ -261,7 +261,8 @@ export class ComparePlots extends Widget {
 export namespace ComparePlots {
   export interface IOptions {
     trans: Trans;
-    model: WorkbenchModel;
+    /** The runs (a WorkbenchModel). */
+    model: IRunSource;
     /** Gives plotly (default: the lazily imported plotly.js-dist-min); tests pass a fake. */
     loadPlotly?: LoadPlotly;
     settings?: Partial<PlotSettings>;

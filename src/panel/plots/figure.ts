@@ -91,6 +91,36 @@ export function withAlpha(color: string, alpha: number): string {
   return c;
 }
 
+/** A legend only when it names more than one trace. */
+function showLegend(data: PlotObject[]): boolean {
+  return data.filter(t => t.showlegend !== false).length > 1;
+}
+
+/**
+ * Rows a horizontal legend above the plot takes (an estimate from the names' lengths: about
+ * 0.6 em per character plus 40 px for the symbol), so the top margin makes room for it.
+ */
+export function legendRows(data: PlotObject[], fontSize: number, width: number): number {
+  if (!showLegend(data)) {
+    return 0;
+  }
+  const room = Math.max(100, width - 16);
+  let rows = 1;
+  let used = 0;
+  for (const t of data) {
+    if (t.showlegend === false) {
+      continue;
+    }
+    const w = 40 + 0.6 * fontSize * String(t.name ?? '').length;
+    if (used > 0 && used + w > room) {
+      rows++;
+      used = 0;
+    }
+    used += w;
+  }
+  return rows;
+}
+
 /** plotly data and layout of a spec. `range` is the visible x-range (null: all). */
 export function buildFigure(
   spec: PlotSpec,
@@ -130,9 +160,19 @@ export function buildFigure(
     ...base,
     width: size.width,
     height: size.height,
-    margin: { ...MARGIN, t: MARGIN.t + (spec.lines.length + spec.traces.length > 1 ? 8 : 0) },
-    title: { text: spec.title, x: 0, xanchor: 'left', font: { size: theme.fontSize + 1 } },
-    showlegend: data.some(t => t.showlegend !== false) && data.length > 1,
+    margin: { ...MARGIN, t: 28 + 22 * legendRows(data, theme.fontSize, size.width) },
+    title: {
+      text: spec.title,
+      x: 0,
+      xanchor: 'left',
+      xref: 'container',
+      y: 1,
+      yanchor: 'top',
+      yref: 'container',
+      pad: { t: 6, l: 8 },
+      font: { size: theme.fontSize + 1 }
+    },
+    showlegend: showLegend(data),
     legend: { ...(base.legend as PlotObject), orientation: 'h', x: 0, y: 1.0, yanchor: 'bottom' },
     hovermode: 'closest',
     xaxis,
@@ -149,10 +189,14 @@ export function buildFigure(
   }
   const shapes: PlotObject[] = [];
   const annotations: PlotObject[] = [];
+  let hCount = 0;
   for (const m of spec.markers) {
     const color = seriesColor(theme, m.color);
     const yref = m.lower ? 'y2' : 'y';
     if (m.orientation === 'h') {
+      // Labels of horizontal lines alternate right (above the line) and left (below it), so two
+      // close levels (steady state and minimum MSE) stay readable.
+      const right = hCount++ % 2 === 0;
       shapes.push({
         type: 'line',
         xref: 'paper',
@@ -165,11 +209,11 @@ export function buildFigure(
       });
       annotations.push({
         xref: 'paper',
-        x: 1,
-        xanchor: 'right',
+        x: right ? 1 : 0,
+        xanchor: right ? 'right' : 'left',
         yref,
         y: m.value,
-        yanchor: 'bottom',
+        yanchor: right ? 'bottom' : 'top',
         text: m.label,
         showarrow: false,
         font: { color, size: theme.fontSize - 1 }

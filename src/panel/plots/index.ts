@@ -5,3 +5,4 @@ export { loadPlotlyDist } from './plotly';
 export { DEFAULT_PLOT_SETTINGS, type PlotSettings } from './settings';
 export { parseTaps, viewLabel, viewsOf, type ViewKind } from './views';
 export type { CompareKey } from './compare';
+export type { IRunSource } from './run-source';

@@ -8,9 +8,9 @@ import type { ISignal } from '@lumino/signaling';
 import { Widget } from '@lumino/widgets';
 import type { Trans } from '../../model/workbench/rules';
 import type { Run } from '../../model/workbench/runs';
-import type { WorkbenchModel } from '../../model/workbench/workbench';
 import { PlotPane } from './plot-pane';
 import { loadPlotlyDist, type LoadPlotly } from './plotly';
+import type { IRunSource } from './run-source';
 import { DEFAULT_PLOT_SETTINGS, type PlotSettings } from './settings';
 import {
   buildView,
@@ -118,7 +118,7 @@ export class RunPlots extends Widget {
     return this._model.runs.find(r => r.id === this._runId) ?? null;
   }
 
-  private _onRun(_: WorkbenchModel, run: Run): void {
+  private _onRun(_: unknown, run: Run): void {
     if (run.id === this._runId) {
       this.update();
     }
@@ -285,7 +285,7 @@ export class RunPlots extends Widget {
   }
 
   private readonly _trans: Trans;
-  private readonly _model: WorkbenchModel;
+  private readonly _model: IRunSource;
   private readonly _bar: HTMLDivElement;
   private readonly _hint: HTMLParagraphElement;
   private readonly _pane: PlotPane;
@@ -305,7 +305,8 @@ export class RunPlots extends Widget {
 export namespace RunPlots {
   export interface IOptions {
     trans: Trans;
-    model: WorkbenchModel;
+    /** The runs (a WorkbenchModel). */
+    model: IRunSource;
     /** Gives plotly (default: the lazily imported plotly.js-dist-min); tests pass a fake. */
     loadPlotly?: LoadPlotly;
     settings?: Partial<PlotSettings>;

@@ -6,7 +6,12 @@ import {
   compareSpec,
   sortRows
 } from '../../../src/panel/plots/compare';
+import type { IRunSource } from '../../../src/panel/plots/run-source';
+import type { WorkbenchModel } from '../../../src/model/workbench/workbench';
 import { cancellationRun, makeRun, removal, trans } from './fixtures';
+
+// The widgets take any run source; the workbench model is one (checked by the type checker).
+export const workbenchIsARunSource = (m: WorkbenchModel): IRunSource => m;
 
 const a = cancellationRun(1000, 1000, { id: 'a', label: 'RLS · M 4 · λ 0.99', computeMs: 30 });
 const b = cancellationRun(1000, 1000, {

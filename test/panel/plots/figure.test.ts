@@ -4,6 +4,7 @@ import {
   buildFigure,
   CsvTooLarge,
   figureCsv,
+  legendRows,
   plotAreaWidth,
   withAlpha
 } from '../../../src/panel/plots/figure';
@@ -92,6 +93,16 @@ describe('figures', () => {
     expect((fig.data[0].line as { color: string }).color).toBe('#abcdef');
     expect(withAlpha('#abcdef', 0.5)).toBe('rgba(171,205,239,0.5)');
     expect(withAlpha('rgb(1, 2, 3)', 0.2)).toBe('rgba(1,2,3,0.2)');
+  });
+
+  test('the top margin makes room for a legend that wraps onto several rows', () => {
+    const named = (n: number, len: number) =>
+      Array.from({ length: n }, () => ({ name: 'x'.repeat(len) }));
+    expect(legendRows(named(1, 10), 12, 600)).toBe(0); // one trace: no legend
+    expect(legendRows(named(3, 10), 12, 600)).toBe(1);
+    // 40 + 0.6·12·60 = 472 px each: one per row in 584 px
+    expect(legendRows(named(3, 60), 12, 600)).toBe(3);
+    expect(legendRows([{ name: 'a' }, { name: 'b', showlegend: false }], 12, 600)).toBe(0);
   });
 
   test('the point budget: columns of the plot area for a number of points per pixel', () => {
