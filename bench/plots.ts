@@ -16,9 +16,11 @@
  * with --json the JSON lines of DESIGN §9. Always exits 0.
  *
  * Browser cases — drawing and redrawing in the plot views (`{"name":"draw","samples",
- * "draw_ms"}`, `{"name":"zoom","samples","redraw_ms"}`, timed in Debian's chromium through
- * playwright-core) — belong to whoever builds the plot views; they add their rows where main()
- * says so below, in the same JSON-line form.
+ * "decimate_ms","draw_ms"}`, `{"name":"zoom","samples","redraw_ms"}`) — are timed in Debian's
+ * chromium through playwright-core by bench/plots-browser/run.mjs (a page with the compiled
+ * plots and the real plotly.js-dist-min, not a full JupyterLab); `node
+ * bench/plots-browser/run.mjs --screens` also saves a screenshot of every view in the light
+ * and dark themes to test-artifacts/screenshots/.
  */
 import { execSync, spawnSync } from 'child_process';
 import * as fs from 'fs';
@@ -152,6 +154,22 @@ function runPython(): {
   return JSON.parse(r.stdout);
 }
 
+/** The JSON lines of the browser cases (none, with a note on stderr, when they cannot run). */
+function browserRows(): Record<string, unknown>[] {
+  const r = spawnSync(process.execPath, [path.join(ROOT, 'bench/plots-browser/run.mjs')], {
+    cwd: ROOT,
+    encoding: 'utf8',
+    maxBuffer: 1 << 24
+  });
+  if (r.stderr) {
+    process.stderr.write(r.stderr);
+  }
+  return (r.stdout ?? '')
+    .split('\n')
+    .filter(l => l.startsWith('{'))
+    .map(l => JSON.parse(l) as Record<string, unknown>);
+}
+
 function main(): void {
   let commit = 'unknown';
   try {
@@ -215,8 +233,9 @@ function main(): void {
   }
   w.repeats = REPEATS;
   rows.push(w);
-  // Browser cases (draw_ms, redraw_ms of the plot views) are added here, as rows of the same
-  // form, by the plot views' own driver.
+  // Browser cases: the plot views drawing in Debian's chromium (bench/plots-browser/run.mjs,
+  // which bundles the compiled extension's plots with the real plotly.js-dist-min).
+  rows.push(...browserRows());
   if (JSON_OUT) {
     console.log(JSON.stringify({ env }));
     for (const r of rows) {
@@ -230,18 +249,30 @@ function main(): void {
   );
   console.log(
     'decimate: M4 envelope into 1000 columns; ratio for decimate-vs-numpy = numpy_ms / perpend_ms ' +
-      '(> 1: Perpend faster); for welch = perpend_ms / scipy_ms'
+      '(> 1: Perpend faster); for welch = perpend_ms / scipy_ms. draw: one 1000 px trace in ' +
+      'chromium, envelope + Plotly.react to the next frame (Perpend ms = the envelope); zoom: ' +
+      'the redraw after a zoom to 1000 samples of 1e7'
   );
-  const head = ['case', 'samples', 'Perpend ms', 'Msamples/s', 'baseline ms', 'ratio', 'target'];
+  const head = [
+    'case',
+    'samples',
+    'Perpend ms',
+    'Msamples/s',
+    'baseline ms',
+    'ratio',
+    'draw ms',
+    'target'
+  ];
   const table = [
     head,
     ...rows.map(r => [
       String(r.name),
       String(r.samples),
-      String(r.decimate_ms ?? r.perpend_ms),
+      String(r.decimate_ms ?? r.perpend_ms ?? ''),
       r.msps === undefined ? '' : String(r.msps),
       String(r.numpy_ms ?? r.scipy_ms ?? ''),
       r.ratio === undefined ? '' : String(r.ratio),
+      String(r.draw_ms ?? r.redraw_ms ?? ''),
       r.target === undefined ? '' : `${r.target}: ${r.met ? 'met' : 'MISSED'}`
     ])
   ];
