@@ -21,7 +21,8 @@ import { Signal, type ISignal } from '@lumino/signaling';
 import { CommChannel, type Transport } from './comm';
 import { bridgeBundle } from './i18n';
 import type { SessionLedger } from './ledger';
-import { ArrayLister } from './listing';
+import { ArrayLister, ListedShapes } from './listing';
+import { badArgument } from './names';
 import { ArrayReader } from './read';
 import { MiB } from './replies';
 import { KernelRequests } from './requests';
@@ -81,9 +82,7 @@ export class KernelBridge implements IDisposable {
     const maxBytes = positive('maxBytes', options.maxBytes ?? 512 * MiB);
     const transport = options.transport ?? 'auto';
     if (!['auto', 'comm', 'base64'].includes(transport)) {
-      throw new RangeError(
-        `transport must be 'auto', 'comm' or 'base64', got ${String(transport)}`
-      );
+      throw badArgument(`transport must be 'auto', 'comm' or 'base64', got ${String(transport)}`);
     }
     this._limits = {
       maxBytes,
@@ -101,8 +100,10 @@ export class KernelBridge implements IDisposable {
     this._channel = new CommChannel(this._requests, transport);
     const verifier = new CellVerifier(this._requests, ledger);
     this._verifier = verifier;
-    this._lister = new ArrayLister(this._requests, verifier, ledger);
-    this._reader = new ArrayReader(this._requests, this._channel, this._limits, ledger);
+    // What the latest listing showed, so that a read of a re-bound name is said, not done.
+    const listed = new ListedShapes();
+    this._lister = new ArrayLister(this._requests, verifier, ledger, listed);
+    this._reader = new ArrayReader(this._requests, this._channel, this._limits, ledger, listed);
     this._writer = new ArrayWriter(this._requests, this._channel, this._limits);
   }
 
@@ -190,6 +191,12 @@ export class KernelBridge implements IDisposable {
    * dtype, lists and tuples of numbers). Names starting with `_` and IPython's own are left out.
    * One silent request; no data moved. While the kernel is busy the request is deferred until
    * it is idle, and calls made meanwhile share one request.
+   *
+   * Decided by the values' types and stored data only: no method, property, `__getattr__` or
+   * conversion of the user's classes runs. A masked array with masked entries is listed
+   * unreadable with their count. An array under a key Perpend cannot name (over
+   * `MAX_NAME_LENGTH` characters, not an identifier) is listed unreadable, after the
+   * others, with a note saying why, rather than left out.
    */
   listVariables(): Promise<ArrayInfo[]> {
     return this._lister.listVariables();
@@ -200,7 +207,11 @@ export class KernelBridge implements IDisposable {
    * float64 exactly, complex64/128 as interleaved complex128. 1-D and 2-D, any layout (the
    * kernel makes a C-ordered copy when needed). Refuses, with a BridgeError whose message says
    * why: empty arrays, more than 2-D, int64/uint64 values beyond ±2⁵³ (naming the first
-   * index), arrays over {@link maxBytes}, a cell count not from this session.
+   * index), arrays over {@link maxBytes}, a cell count not from this session, a masked array
+   * with masked entries (`masked`), a value that is not an array by its type (`not-array`: no
+   * `__array__` or other code of it runs), a source listed with another shape or dtype than it
+   * holds now (`changed`; read again to take it as it is), a name that is not one exactly as
+   * given (`invalid-name`: nothing is trimmed).
    */
   readArray(source: ArraySource): Promise<ArrayData> {
     return this._reader.read(source);
@@ -208,7 +219,11 @@ export class KernelBridge implements IDisposable {
 
   /**
    * Reads a real scalar (a sample rate, say) from a variable or an attribute path such as
-   * `fs` or `rec.fs`. Every part is validated as an identifier; dunder attributes are refused.
+   * `fs` or `rec.fs`. Every part is validated as an identifier, exactly as given (as
+   * {@link readArray} does); dunder attributes are refused. The value is what is stored (in the
+   * instance, a slot, the class), found by Python's lookup rules without running a property,
+   * `__getattr__`, a method or a number subclass's `__float__`: such values are refused
+   * (`user-code`) with a message saying how to bind them to a plain variable.
    */
   readScalar(path: string): Promise<number> {
     return this._reader.readScalar(path);
@@ -219,6 +234,9 @@ export class KernelBridge implements IDisposable {
    * `array.complex`) bound to `name`, in chunks far below the server's message limit, without
    * touching history or the execution counter. Unless `overwrite`, a name that exists or
    * shadows a builtin is not written and the result says why (status 'exists' or 'shadows').
+   * Names whose replacement breaks the interpreter or IPython (`__builtins__`, `__name__`,
+   * every `__*__`, `Out`, `get_ipython`, `_7`...) are never written, overwrite or not
+   * (`reserved`; see `reservedName` in names.ts).
    */
   writeArray(
     name: string,
@@ -240,14 +258,14 @@ export class KernelBridge implements IDisposable {
 
 function positive(name: string, v: unknown): number {
   if (typeof v !== 'number' || !Number.isFinite(v) || v <= 0) {
-    throw new RangeError(`${name} must be a positive number, got ${String(v)}`);
+    throw badArgument(`${name} must be a positive number, got ${String(v)}`);
   }
   return v;
 }
 
 function clampChunk(name: string, v: unknown, max: number): number {
   if (typeof v !== 'number' || !Number.isInteger(v) || v < 65536 || v > max || v % 16 !== 0) {
-    throw new RangeError(`${name} must be a multiple of 16 in [65536, ${max}], got ${String(v)}`);
+    throw badArgument(`${name} must be a multiple of 16 in [65536, ${max}], got ${String(v)}`);
   }
   return v;
 }

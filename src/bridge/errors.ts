@@ -60,7 +60,9 @@ export type BridgeErrorCode =
   /** The variable was re-bound to another shape or dtype since the list was made. */
   | 'changed'
   /** A name Perpend never writes to (Python's `__*__` names, IPython's own). */
-  | 'reserved';
+  | 'reserved'
+  /** An argument of another kind than the method takes (not a string, not an ArrayData...). */
+  | 'bad-argument';
 
 /** An error from the kernel bridge with a user-facing message. */
 export class BridgeError extends Error {

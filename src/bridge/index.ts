@@ -53,7 +53,9 @@
  * printed repr was truncated). Otherwise parse the output's data with
  * {@link parseOutputData} (`output.data` of an `execute_result`/`display_data`, or the
  * `text` of a `stream`), then {@link parsedToArrayData}, which refuses truncated text with a
- * message saying the values are incomplete. Nothing from an output or from notebook metadata
+ * message saying the values are incomplete. Like a read from the kernel, these refuse integers
+ * beyond ±2^53, more than two dimensions and empty arrays with the same codes
+ * (`int-precision`, `ndim`, `empty`). Nothing from an output or from notebook metadata
  * is ever evaluated: the parsers tokenise numbers and brackets only.
  *
  * ## Security
@@ -62,7 +64,8 @@
  * ({@link normalizeIdentifier}); other strings reach Python only as escaped literals
  * ({@link pyStringLiteral}); the only code run is Perpend's helper, installed silently in
  * `sys.modules` (never in the user's namespace), which calls no method of the user's objects
- * when listing.
+ * when listing or reading. The code sent to run in the user's namespace looks up no name there
+ * (a user's `exec`, `__import__`, `np` or `__builtins__` changes nothing; see `helper.ts`).
  */
 export { KernelBridge } from './bridge';
 export { CACHE_NOTES, cacheNotes, type CacheNotes } from './notes';
@@ -82,14 +85,18 @@ export { SessionLedger, watchKernelExecutions } from './ledger';
 export {
   MAX_NAME_LENGTH,
   PYTHON_KEYWORDS,
+  IPYTHON_NAMES,
   checkIdentifier,
   normalizeIdentifier,
+  requireName,
+  reservedName,
   pyIntLiteral,
   pyStringLiteral,
   type NameCheck
 } from './names';
 export {
   MAX_TEXT_LENGTH,
+  checkReadable,
   parseArrayText,
   parseCsv,
   parseJsonArray,

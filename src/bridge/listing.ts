@@ -6,20 +6,59 @@
 import type { TranslationBundle } from '@jupyterlab/translation';
 import { HELPER_REF } from './helper';
 import type { SessionLedger } from './ledger';
-import { normalizeIdentifier, pyIntLiteral } from './names';
+import { MAX_NAME_LENGTH, normalizeIdentifier, pyIntLiteral } from './names';
 import { BridgeError } from './errors';
-import { cacheNotes, noteTexts } from './notes';
+import { cacheNotes, maskedNote, noteTexts, unnamedNote } from './notes';
 import { DTYPE, isRecord, malformed, parseShape, sourceLabel } from './replies';
 import type { KernelRequests } from './requests';
 import type { ArrayInfo, ArraySource, CellRef } from './types';
 import type { CellVerifier } from './verify';
+
+/**
+ * The shape and dtype each source had in the latest listing, so that a read can tell the
+ * kernel what the list showed and be refused (`changed`) when the name was re-bound since.
+ */
+export class ListedShapes {
+  /** What the list showed for `source`, or undefined when it was not listed. */
+  get(source: ArraySource): { shape: number[]; dtype: string } | undefined {
+    return this._map.get(ListedShapes.key(source));
+  }
+
+  /** Forgets `source` (after a refusal that said it changed: the next read takes it as is). */
+  forget(source: ArraySource): void {
+    this._map.delete(ListedShapes.key(source));
+  }
+
+  /** Records a listing; `variables` replaces every variable recorded before. */
+  record(infos: ReadonlyArray<ArrayInfo>, variables: boolean): void {
+    if (variables) {
+      for (const k of Array.from(this._map.keys())) {
+        if (k.startsWith('v:')) {
+          this._map.delete(k);
+        }
+      }
+    }
+    for (const i of infos) {
+      if (i.readable !== false) {
+        this._map.set(ListedShapes.key(i.source), { shape: i.shape.slice(), dtype: i.dtype });
+      }
+    }
+  }
+
+  private static key(s: ArraySource): string {
+    return s.kind === 'variable' ? `v:${s.name}` : `c:${s.executionCount}`;
+  }
+
+  private readonly _map = new Map<string, { shape: number[]; dtype: string }>();
+}
 
 /** Lists the arrays in the user's namespace and in the output cache. */
 export class ArrayLister {
   constructor(
     private readonly _requests: KernelRequests,
     private readonly _verifier: CellVerifier,
-    private readonly _ledger: SessionLedger | null
+    private readonly _ledger: SessionLedger | null,
+    private readonly _listed: ListedShapes = new ListedShapes()
   ) {}
 
   /** The bundle every sentence goes through. */
@@ -104,6 +143,7 @@ export class ArrayLister {
       }
       out.push(info);
     }
+    this._listed.record(out, false);
     return out;
   }
 
@@ -131,6 +171,42 @@ export class ArrayLister {
       out.push(this._parseInfo(e, { kind: 'variable', name: check.name }));
     }
     out.sort((a, b) => (a.label < b.label ? -1 : a.label > b.label ? 1 : 0));
+    this._listed.record(out, true);
+    return out.concat(this._unnamed(reply as Record<string, unknown>));
+  }
+
+  /**
+   * Arrays under keys Perpend cannot name (too long, not an identifier, not NFKC, not a
+   * string): listed unreadable with a note saying why, never dropped without a word.
+   */
+  private _unnamed(reply: Record<string, unknown>): ArrayInfo[] {
+    const trans = this._trans;
+    const skipped = Array.isArray(reply.skipped) ? reply.skipped.slice(0, 20) : [];
+    const out: ArrayInfo[] = [];
+    for (const e of skipped) {
+      if (!isRecord(e) || typeof e.name !== 'string' || typeof e.why !== 'string') {
+        throw malformed(trans, trans.__('the variable list'));
+      }
+      const raw = e.name.slice(0, 40);
+      const label =
+        e.why === 'long'
+          ? `${raw}…`
+          : e.why === 'key'
+            ? trans.__('(a key that is not a string)')
+            : JSON.stringify(raw) + (e.name.length > 40 ? '…' : '');
+      const length = typeof e.length === 'number' ? e.length : e.name.length;
+      // Never read: `readable` is false, and the label is not the key.
+      const info = this._parseInfo(e, { kind: 'variable', name: label });
+      info.readable = false;
+      info.notes.unshift(unnamedNote(trans, e.why, length, MAX_NAME_LENGTH));
+      out.push(info);
+    }
+    const more = typeof reply.more === 'number' && reply.more > 0 ? reply.more : 0;
+    if (more > 0 && out.length > 0) {
+      out[out.length - 1].notes.push(
+        trans.__('%1 more arrays under keys Perpend cannot name are not shown.', more)
+      );
+    }
     return out;
   }
 
@@ -160,6 +236,16 @@ export class ArrayLister {
     for (const n of e.notes) {
       if (typeof n === 'string' && Object.prototype.hasOwnProperty.call(texts, n)) {
         notes.push(texts[n]);
+      } else if (n === 'masked') {
+        const count =
+          typeof e.masked === 'number' && Number.isSafeInteger(e.masked) ? e.masked : -1;
+        notes.push(
+          maskedNote(
+            trans,
+            count,
+            shape.reduce((a, b) => a * b, 1)
+          )
+        );
       }
     }
     return {

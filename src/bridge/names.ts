@@ -11,6 +11,7 @@
  * path): they go through the translation bundle given, English by default.
  */
 import type { TranslationBundle } from '@jupyterlab/translation';
+import { BridgeError } from './errors';
 import { bridgeBundle } from './i18n';
 
 const ENGLISH = bridgeBundle();
@@ -120,6 +121,31 @@ export function checkIdentifier(
     throw new TypeError(trans.__('%1 is not a valid Python name: %2', argName, r.reason));
   }
   return r.name;
+}
+
+/**
+ * Returns the NFKC-normalised identifier, or throws a {@link BridgeError} `invalid-name` that
+ * quotes what was given (spaces and newlines included: nothing is trimmed) and says why: the
+ * bridge's own check of a name it was asked to read or write.
+ */
+export function requireName(raw: unknown, trans: TranslationBundle = ENGLISH): string {
+  const r = normalizeIdentifier(raw, trans);
+  if (!r.ok) {
+    throw new BridgeError(
+      'invalid-name',
+      trans.__(
+        '%1 is not a name Perpend can read: %2.',
+        typeof raw === 'string' ? JSON.stringify(raw.slice(0, 40)) : String(typeof raw),
+        r.reason
+      )
+    );
+  }
+  return r.name;
+}
+
+/** A {@link BridgeError} `bad-argument`: the caller passed something of another kind. */
+export function badArgument(message: string): BridgeError {
+  return new BridgeError('bad-argument', message);
 }
 
 /**

@@ -47,3 +47,51 @@ export function noteTexts(trans: TranslationBundle): Record<string, string> {
     )
   };
 }
+
+/** The note on a numpy masked array with `count` masked entries (-1: not countable). */
+export function maskedNote(trans: TranslationBundle, count: number, size: number): string {
+  if (count === 0) {
+    return trans.__('A numpy masked array with no entry masked: its data are read.');
+  }
+  return count > 0
+    ? trans.__(
+        'A numpy masked array: %1 of its %2 entries are masked, so it is not read (masked entries hold no values). Fill or drop them into a plain variable first.',
+        count,
+        size
+      )
+    : trans.__(
+        'A numpy masked array whose mask Perpend cannot count, so it is not read. Fill or drop the masked entries into a plain variable first.'
+      );
+}
+
+/**
+ * The note on an array listed under a key Perpend cannot name (it is listed, unreadable,
+ * rather than dropped): `why` is the helper's reason.
+ */
+export function unnamedNote(
+  trans: TranslationBundle,
+  why: string,
+  length: number,
+  maxLength: number
+): string {
+  switch (why) {
+    case 'long':
+      return trans.__(
+        'Its name has %1 characters, more than the %2 Perpend accepts, so it cannot be read. Bind it to a shorter name first.',
+        length,
+        maxLength
+      );
+    case 'nfkc':
+      return trans.__(
+        'Its key in the namespace is not in the form Python gives names (NFKC), so no code can name it and Perpend cannot read it. Bind it to a plain name first.'
+      );
+    case 'key':
+      return trans.__(
+        'Its key in the namespace is not a string, so Perpend cannot name it or read it. Bind it to a plain name first.'
+      );
+    default:
+      return trans.__(
+        'Its key in the namespace is not a Python name (it was set through globals()), so Perpend cannot read it. Bind it to a Python name first.'
+      );
+  }
+}

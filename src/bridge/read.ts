@@ -10,7 +10,8 @@ import type { CommChannel } from './comm';
 import { BridgeError } from './errors';
 import { HELPER_REF } from './helper';
 import type { SessionLedger } from './ledger';
-import { checkIdentifier, pyIntLiteral, pyStringLiteral } from './names';
+import type { ListedShapes } from './listing';
+import { badArgument, pyIntLiteral, pyStringLiteral, requireName } from './names';
 import { kernelRefusal, refusalOf } from './refusals';
 import {
   isRecord,
@@ -30,7 +31,8 @@ export class ArrayReader {
     private readonly _requests: KernelRequests,
     private readonly _channel: CommChannel,
     private readonly _limits: TransferLimits,
-    private readonly _ledger: SessionLedger | null
+    private readonly _ledger: SessionLedger | null,
+    private readonly _listed: ListedShapes | null = null
   ) {}
 
   /** The bundle every sentence goes through. */
@@ -42,10 +44,21 @@ export class ArrayReader {
   async read(source: ArraySource): Promise<ArrayData> {
     const src = this._sourceLiteral(source);
     const label = this._trans.__('reading %1', sourceLabel(source));
-    if (await this._channel.use()) {
-      return this._readComm(src.json, label, source);
+    // What the list showed: the kernel refuses (`changed`) when the name holds another shape
+    // or dtype now, rather than handing over something else than the user picked.
+    const listed = this._listed?.get(source);
+    const expect = listed ? { shape: listed.shape, dtype: listed.dtype } : null;
+    try {
+      if (await this._channel.use()) {
+        return await this._readComm(src.json, label, source, expect);
+      }
+      return await this._readBase64(src.py, label, source, expect);
+    } catch (e) {
+      if (e instanceof BridgeError && e.code === 'changed') {
+        this._listed?.forget(source);
+      }
+      throw e;
     }
-    return this._readBase64(src.py, label, source);
   }
 
   /** See `KernelBridge.readScalar`. */
@@ -53,17 +66,20 @@ export class ArrayReader {
     // The path may be typed by the user (a sample rate's variable): its errors are translated.
     const trans = this._trans;
     if (typeof path !== 'string') {
-      throw new TypeError(trans.__('path must be a string, got %1', typeof path));
+      throw badArgument(trans.__('path must be a string, got %1', typeof path));
     }
-    const parts = path
-      .split('.')
-      .map((p, i) => checkIdentifier(trans.__('path part %1', i + 1), p.trim(), trans));
+    // As readArray takes a name: exactly as given, spaces and newlines are not trimmed.
+    const parts = path.split('.').map(p => requireName(p, trans));
     if (parts.length > 4) {
-      throw new RangeError(trans.__('path must have at most 4 parts, got %1', parts.length));
+      throw new BridgeError(
+        'invalid-name',
+        trans.__('path must have at most 4 parts, got %1', parts.length)
+      );
     }
     const dunder = parts.slice(1).find(p => p.startsWith('__'));
     if (dunder !== undefined) {
-      throw new TypeError(
+      throw new BridgeError(
+        'invalid-name',
         trans.__('path must not reach private attributes, got %1', JSON.stringify(dunder))
       );
     }
@@ -80,10 +96,10 @@ export class ArrayReader {
   /** The source as the comm's JSON and as a Python literal, after its checks. */
   private _sourceLiteral(source: ArraySource): { json: Record<string, unknown>; py: string } {
     if (!isRecord(source)) {
-      throw new TypeError(`source must be an ArraySource, got ${typeof source}`);
+      throw badArgument(`source must be an ArraySource, got ${typeof source}`);
     }
     if (source.kind === 'variable') {
-      const name = checkIdentifier('source.name', source.name, this._trans);
+      const name = requireName(source.name, this._trans);
       return {
         json: { kind: 'variable', name },
         py: `{"kind": "variable", "name": ${pyStringLiteral(name)}}`
@@ -92,7 +108,7 @@ export class ArrayReader {
     if (source.kind === 'cell') {
       const n = source.executionCount;
       if (typeof n !== 'number' || !Number.isSafeInteger(n) || n < 1) {
-        throw new TypeError(`source.executionCount must be a positive integer, got ${String(n)}`);
+        throw badArgument(`source.executionCount must be a positive integer, got ${String(n)}`);
       }
       if (this._ledger && !this._ledger.trusts(source.cellId, n)) {
         throw new BridgeError(
@@ -105,7 +121,7 @@ export class ArrayReader {
       }
       return { json: { kind: 'cell', n }, py: `{"kind": "cell", "n": ${n}}` };
     }
-    throw new TypeError(
+    throw badArgument(
       `source.kind must be 'cell' or 'variable', got ${String((source as { kind: unknown }).kind)}`
     );
   }
@@ -114,7 +130,8 @@ export class ArrayReader {
   private async _readComm(
     source: Record<string, unknown>,
     label: string,
-    original: ArraySource
+    original: ArraySource,
+    expect: { shape: number[]; dtype: string } | null
   ): Promise<ArrayData> {
     const requests = this._requests;
     const trans = requests.trans;
@@ -210,7 +227,8 @@ export class ArrayReader {
           op: 'read',
           source,
           chunk: limits.readChunk,
-          max_bytes: limits.maxBytes
+          max_bytes: limits.maxBytes,
+          ...(expect ? { expect } : {})
         });
         future.done.then(
           () => {
@@ -238,7 +256,12 @@ export class ArrayReader {
   }
 
   /** A staged copy in the kernel, fetched as base64 a chunk per user expression. */
-  private async _readBase64(src: string, label: string, original: ArraySource): Promise<ArrayData> {
+  private async _readBase64(
+    src: string,
+    label: string,
+    original: ArraySource,
+    expect: { shape: number[]; dtype: string } | null
+  ): Promise<ArrayData> {
     const requests = this._requests;
     const trans = requests.trans;
     const limits = this._limits;
@@ -248,7 +271,7 @@ export class ArrayReader {
     // One request opens the stage and brings the first chunk (closing the stage when that
     // was all): a small array costs one round trip.
     const openR = await requests.evaluate(label, {
-      r: `${HELPER_REF}.b64_open(${h}, ${src}, ${pyIntLiteral('maxBytes', limits.maxBytes)})`,
+      r: `${HELPER_REF}.b64_open(${h}, ${src}, ${pyIntLiteral('maxBytes', limits.maxBytes)}${expectLiteral(expect)})`,
       c: `${HELPER_REF}.b64_chunk(${h}, 0, ${cs}, True)`
     });
     const head0 = parseJsonExpression(trans, openR.r, label);
@@ -312,4 +335,16 @@ export class ArrayReader {
       }
     }
   }
+}
+
+/**
+ * `, {"shape": [...], "dtype": "..."}` for b64_open, or nothing: integers and an escaped
+ * string literal only (the dtype came from the helper's own listing).
+ */
+function expectLiteral(expect: { shape: number[]; dtype: string } | null): string {
+  if (!expect) {
+    return '';
+  }
+  const shape = expect.shape.map(n => pyIntLiteral('shape', n)).join(', ');
+  return `, {"shape": [${shape}], "dtype": ${pyStringLiteral(expect.dtype)}}`;
 }

@@ -6,7 +6,7 @@
 import { DIGEST_PATTERN, isWellFormed, sourceDigest } from './digest';
 import { HELPER_REF } from './helper';
 import type { SessionLedger } from './ledger';
-import { pyIntLiteral, pyStringLiteral } from './names';
+import { badArgument, pyIntLiteral, pyStringLiteral } from './names';
 import { isRecord, malformed } from './replies';
 import type { KernelRequests, KernelReset } from './requests';
 import type { CellRef, CellVerdict } from './types';
@@ -47,7 +47,7 @@ export class CellVerifier {
    */
   async verify(cells: ReadonlyArray<CellRef>): Promise<CellCheck[]> {
     if (!Array.isArray(cells)) {
-      throw new TypeError(`cells must be an array, got ${typeof cells}`);
+      throw badArgument(`cells must be an array, got ${typeof cells}`);
     }
     const ledger = this._ledger;
     const generation = ledger?.generation ?? 0;

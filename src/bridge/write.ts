@@ -10,8 +10,14 @@ import type { CommChannel } from './comm';
 import { conflictResult, parseWriteReply, writtenWarnings, type WriteReply } from './conflicts';
 import { BridgeError } from './errors';
 import { HELPER_REF } from './helper';
-import { normalizeIdentifier, pyIntLiteral, pyStringLiteral } from './names';
-import { kernelRefusal, refusalOf } from './refusals';
+import {
+  badArgument,
+  normalizeIdentifier,
+  pyIntLiteral,
+  pyStringLiteral,
+  reservedName
+} from './names';
+import { kernelRefusal, refusalOf, reservedError } from './refusals';
 import { MiB, isRecord, malformed, parseJsonExpression } from './replies';
 import { inFlight, type KernelRequests } from './requests';
 import type { ArrayData, TransferLimits, WriteResult } from './types';
@@ -52,6 +58,12 @@ export class ArrayWriter {
       );
     }
     const pyName = check.name;
+    // Not a question for the user: replacing these breaks the interpreter or IPython (the
+    // helper refuses them as well).
+    const reserved = reservedName(pyName);
+    if (reserved !== null) {
+      throw reservedError(trans, pyName, reserved);
+    }
     validateArrayData(array);
     const job: WriteJob = {
       name: pyName,
@@ -285,33 +297,33 @@ function yieldToEventLoop(): Promise<void> {
   return new Promise(resolve => setTimeout(resolve, 0));
 }
 
-/** Checks an {@link ArrayData} given to a write: a caller's mistake throws a TypeError/RangeError. */
+/** Checks an {@link ArrayData} given to a write: a caller's mistake throws a BridgeError `bad-argument`. */
 function validateArrayData(a: ArrayData): void {
   if (!isRecord(a)) {
-    throw new TypeError(`array must be an ArrayData object, got ${typeof a}`);
+    throw badArgument(`array must be an ArrayData object, got ${typeof a}`);
   }
   if (!(a.data instanceof Float64Array)) {
-    throw new TypeError(
+    throw badArgument(
       `array.data must be a Float64Array, got ${a.data === null ? 'null' : typeof a.data}`
     );
   }
   const shape = a.shape;
   if (!Array.isArray(shape) || shape.length < 1 || shape.length > 2) {
-    throw new RangeError(`array.shape must have 1 or 2 dimensions, got ${JSON.stringify(shape)}`);
+    throw badArgument(`array.shape must have 1 or 2 dimensions, got ${JSON.stringify(shape)}`);
   }
   for (const s of shape) {
     if (typeof s !== 'number' || !Number.isSafeInteger(s) || s < 1) {
-      throw new RangeError(
+      throw badArgument(
         `array.shape entries must be positive integers, got ${JSON.stringify(shape)}`
       );
     }
   }
   if (typeof a.complex !== 'boolean') {
-    throw new TypeError(`array.complex must be a boolean, got ${typeof a.complex}`);
+    throw badArgument(`array.complex must be a boolean, got ${typeof a.complex}`);
   }
   const n = shape.reduce((x, y) => x * y, 1) * (a.complex ? 2 : 1);
   if (n !== a.data.length) {
-    throw new RangeError(
+    throw badArgument(
       `array.data has length ${a.data.length} but shape ${JSON.stringify(shape)}${a.complex ? ' (complex, interleaved)' : ''} needs ${n}`
     );
   }

@@ -94,20 +94,28 @@ describe('hostile names', () => {
       dtype: 'float64'
     };
     for (const name of HOSTILE_NAMES) {
-      await expect(bridge.readArray({ kind: 'variable', name })).rejects.toThrow(TypeError);
-      await expect(bridge.readScalar(name)).rejects.toThrow(TypeError);
+      // A BridgeError like every other failure (it was a TypeError before).
+      const r = bridge.readArray({ kind: 'variable', name });
+      await expect(r).rejects.toThrow(BridgeError);
+      await expect(r).rejects.toMatchObject({ code: 'invalid-name' });
+      const s = bridge.readScalar(name);
+      await expect(s).rejects.toThrow(BridgeError);
+      await expect(s).rejects.toMatchObject({ code: 'invalid-name' });
       const w = bridge.writeArray(name, one);
       await expect(w).rejects.toThrow(BridgeError);
       await expect(w).rejects.toMatchObject({ code: 'invalid-name' });
     }
-    await expect(bridge.readScalar('x.__class__')).rejects.toThrow(TypeError);
+    await expect(bridge.readScalar('x.__class__')).rejects.toMatchObject({
+      name: 'BridgeError',
+      code: 'invalid-name'
+    });
     await expect(
       bridge.readArray({
         kind: 'cell',
         cellId: 'c',
         executionCount: '1); import os' as unknown as number
       })
-    ).rejects.toThrow(TypeError);
+    ).rejects.toMatchObject({ name: 'BridgeError', code: 'bad-argument' });
     kernel.anyMessage.disconnect(count);
     expect(sent).toBe(0);
     expect(
