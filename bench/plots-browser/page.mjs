@@ -1,4 +1,4 @@
-/* global window, document, requestAnimationFrame, Event */
+/* global window, document, requestAnimationFrame, Event, getComputedStyle */
 // The page the browser cases of `npm run bench:plots` load: the plot widgets on runs computed
 // by the core (an invented scenario of our own, fixed seeds), and hooks that time a draw and a
 // zoom. Bundled by ./run.mjs with webpack from the compiled extension (lib/).
@@ -307,6 +307,26 @@ window.pp = {
     Widget.attach(w, host);
     w.runIds = ['qr', 'rls', 'nlms'];
     current = w;
+  },
+  /**
+   * Zooms the shown plot as a drag does (Plotly.relayout with xaxis.range[0]/[1]) and returns
+   * the number of points of each trace before and after, and the first trace's x after.
+   */
+  async zoomCheck(a, b) {
+    const Plotly = await loadPlotlyDist();
+    const gd = document.querySelector('.pp-PlotPane-graph');
+    const before = gd.data.map(t => t.x.length);
+    await Plotly.relayout(gd, { 'xaxis.range[0]': a, 'xaxis.range[1]': b });
+    for (let k = 0; k < 10; k++) {
+      await new Promise(res => requestAnimationFrame(() => res()));
+    }
+    const x = Array.from(gd.data[0].x);
+    return { before, after: gd.data.map(t => t.x.length), x0: x[0], x1: x[x.length - 1] };
+  },
+  /** The plot's background colour as drawn. */
+  paperColor() {
+    const svg = document.querySelector('.pp-PlotPane-graph .main-svg');
+    return svg ? getComputedStyle(svg).backgroundColor : null;
   },
   /** Number of drawn plotly graphs with an SVG line on the page. */
   drawnLines() {

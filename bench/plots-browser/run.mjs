@@ -132,6 +132,33 @@ async function main() {
         }
       }
     }
+    if (screens) {
+      // The user's paths with the real plotly: a theme switch redraws in the new colours, and a
+      // drag-zoom to 1000 samples of a 40000-sample trace draws every sample of the range.
+      await page.evaluate(() => {
+        document.getElementById('theme').setAttribute('href', 'theme-light.css');
+        document.body.dataset.jpThemeName = 'JupyterLab Light';
+      });
+      await page.evaluate(() => window.pp.showRun('qr', 'signals'));
+      await page.waitForFunction(() => window.pp.drawnLines() > 0);
+      const light = await page.evaluate(() => window.pp.paperColor());
+      await page.evaluate(() => {
+        document.getElementById('theme').setAttribute('href', 'theme-dark.css');
+        document.body.dataset.jpThemeName = 'JupyterLab Dark';
+      });
+      await page.waitForTimeout(800);
+      const dark = await page.evaluate(() => window.pp.paperColor());
+      console.error(
+        `check theme: paper ${light} → ${dark} (${light !== dark ? 'redrawn' : 'NOT REDRAWN'})`
+      );
+      const z = await page.evaluate(() => window.pp.zoomCheck(2.0, 2.1249));
+      console.error(
+        `check zoom: points per trace ${z.before.join('/')} → ${z.after.join('/')}, x ${z.x0} … ${z.x1} s`
+      );
+      await page.screenshot({
+        path: path.join(root, 'test-artifacts', 'screenshots', 'plots-qr-signals-zoomed-dark.png')
+      });
+    }
     if (!process.argv.includes('--no-timing')) {
       for (const samples of [1e5, 1e6, 1e7]) {
         const r = await page.evaluate(([n, k]) => window.pp.benchDraw(n, k), [samples, REPEATS]);

@@ -17,6 +17,9 @@ import {
   DEFAULT_VIEW_OPTIONS,
   defaultSmoothing,
   parseTaps,
+  spectrumRequests,
+  spectrumSpec,
+  type ComputePsd,
   viewLabel,
   viewsOf,
   type ComplexAs,
@@ -31,6 +34,7 @@ export class RunPlots extends Widget {
     this._trans = options.trans;
     this._model = options.model;
     this._settings = { ...DEFAULT_PLOT_SETTINGS, ...options.settings };
+    this._computePsd = options.computePsd ?? null;
     this._bar = document.createElement('div');
     this._bar.className = 'pp-Plots-bar';
     this._hint = document.createElement('p');
@@ -156,14 +160,37 @@ export class RunPlots extends Widget {
       return;
     }
     this._shown = key;
-    try {
-      this._pane.show(buildView(trans, run, view, this._options, this._settings));
-    } catch (err) {
+    const fail = (err: unknown): void => {
       this._pane.show(null);
       this._pane.showError(
         trans.__('This view cannot be drawn: %1', err instanceof Error ? err.message : String(err))
       );
+    };
+    try {
+      if (view === 'spectrum' && this._computePsd) {
+        this._spectrumAsync(run, key, this._computePsd).catch(fail);
+        return;
+      }
+      this._pane.show(buildView(trans, run, view, this._options, this._settings));
+    } catch (err) {
+      fail(err);
     }
+  }
+
+  /** The spectrum through the given PSD function (a worker job); the latest request wins. */
+  private async _spectrumAsync(
+    run: Run,
+    key: NonNullable<RunPlots['_shown']>,
+    compute: ComputePsd
+  ): Promise<void> {
+    const requests = spectrumRequests(this._trans, run, this._settings);
+    this._pane.show(null);
+    this._pane.status.textContent = this._trans.__('Computing the spectrum…');
+    const results = await Promise.all(requests.map(r => compute(r.signal, r.options)));
+    if (this.isDisposed || this._shown !== key) {
+      return;
+    }
+    this._pane.show(spectrumSpec(this._trans, run, requests, results));
   }
 
   private _renderBar(run: Run, views: ViewKind[], view: ViewKind): void {
@@ -290,6 +317,7 @@ export class RunPlots extends Widget {
   private readonly _hint: HTMLParagraphElement;
   private readonly _pane: PlotPane;
   private _settings: PlotSettings;
+  private readonly _computePsd: ComputePsd | null;
   private _runId: string | null = null;
   private _view: ViewKind | null = null;
   private _options: ViewOptions = DEFAULT_VIEW_OPTIONS;
@@ -312,5 +340,10 @@ export namespace RunPlots {
     settings?: Partial<PlotSettings>;
     /** IThemeManager.themeChanged, when available; otherwise the body's theme name is watched. */
     themeChanged?: ISignal<unknown, unknown>;
+    /**
+     * Computes the Welch estimates of the spectrum view (for example as a worker job). Default:
+     * the core's `welch` on the main thread (~8 ms for 1e5 samples, ~0.1 s for 1e6 here).
+     */
+    computePsd?: ComputePsd;
   }
 }

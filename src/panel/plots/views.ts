@@ -3,7 +3,15 @@
  * drawn comes from the core: Welch spectra (`welch`), FIR responses (`firResponse`), smoothing
  * (`movingAverage`), dB (`toDb`) and, per visible range, the M4 envelope (see ./lines.ts).
  */
-import { firResponse, movingAverage, toDb, welch } from '../../core';
+import {
+  firResponse,
+  movingAverage,
+  toDb,
+  welch,
+  type PsdResult,
+  type SignalView,
+  type WelchOptions
+} from '../../core';
 import type { Trans } from '../../model/workbench/rules';
 import type { ResultArray, Run } from '../../model/workbench/runs';
 import { rowCount, rowOf, type LinePart, type LineSource } from './lines';
@@ -372,12 +380,59 @@ function trajectoriesView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
   return spec;
 }
 
-function spectrumView(trans: Trans, run: Run, s: PlotSettings): PlotSpec {
+/** One Welch estimate a spectrum view needs: the signal and the options it is computed with. */
+export interface PsdRequest {
+  name: string;
+  signal: SignalView;
+  options: WelchOptions;
+}
+
+/**
+ * Computes a Welch PSD (the core's `welch`, on the main thread by default; the workbench can
+ * pass one that runs it in a worker).
+ */
+export type ComputePsd = (
+  signal: SignalView,
+  options: WelchOptions
+) => PsdResult | Promise<PsdResult>;
+
+/** The estimates the spectrum view of a run needs: before (when known) and after. */
+export function spectrumRequests(trans: Trans, run: Run, s: PlotSettings): PsdRequest[] {
   const before = beforeOf(run);
   const after =
     run.params.tool === 'adaptive'
       ? { array: need(run, 'error'), name: trans.__('error e(n)') }
       : { array: need(run, 'output'), name: trans.__('output') };
+  const fs = run.fs !== null && run.fs > 0 ? run.fs : null;
+  const list = before ? [{ array: before.array, name: trans.__(before.name) }, after] : [after];
+  return list.map(item => {
+    const sig = rowOf(item.array, 0);
+    return {
+      name: item.name,
+      signal: {
+        data: sig.data,
+        complex: sig.complex,
+        n: sig.n,
+        stride: sig.stride,
+        offset: sig.offset
+      },
+      options: {
+        fs: fs ?? 1,
+        nperseg: Math.min(s.welchSegment, sig.n),
+        scaling: fs !== null ? 'density' : 'spectrum',
+        order: 'ascending'
+      }
+    };
+  });
+}
+
+/** The spectrum view from the estimates of `spectrumRequests` (in the same order). */
+export function spectrumSpec(
+  trans: Trans,
+  run: Run,
+  requests: ReadonlyArray<PsdRequest>,
+  results: ReadonlyArray<PsdResult>
+): PlotSpec {
   const fs = run.fs !== null && run.fs > 0 ? run.fs : null;
   const f = frequencyAxis(trans, fs);
   const spec = emptySpec(
@@ -386,23 +441,9 @@ function spectrumView(trans: Trans, run: Run, s: PlotSettings): PlotSpec {
     f.unit,
     fs !== null ? trans.__('PSD (dB/Hz)') : trans.__('power per bin (dB)')
   );
-  const list = before ? [{ array: before.array, name: trans.__(before.name) }, after] : [after];
-  let segment = 0;
-  list.forEach((item, i) => {
-    const sig = rowOf(item.array, 0);
-    const nperseg = Math.min(s.welchSegment, sig.n);
-    const psd = welch(
-      { data: sig.data, complex: sig.complex, n: sig.n, stride: sig.stride, offset: sig.offset },
-      {
-        fs: fs ?? 1,
-        nperseg,
-        scaling: fs !== null ? 'density' : 'spectrum',
-        order: 'ascending'
-      }
-    );
-    segment = psd.nperseg;
+  results.forEach((psd, i) => {
     spec.traces.push({
-      name: item.name,
+      name: requests[i].name,
       kind: 'line',
       x: psd.frequency,
       y: toDb(psd.psd),
@@ -417,9 +458,19 @@ function spectrumView(trans: Trans, run: Run, s: PlotSettings): PlotSpec {
   }
   spec.note = trans.__(
     "Welch's method: Hann window, %1-sample segments, 50 % overlap, mean removed per segment.",
-    segment
+    results[0]?.nperseg ?? 0
   );
   return spec;
+}
+
+function spectrumView(trans: Trans, run: Run, s: PlotSettings): PlotSpec {
+  const requests = spectrumRequests(trans, run, s);
+  return spectrumSpec(
+    trans,
+    run,
+    requests,
+    requests.map(r => welch(r.signal, r.options))
+  );
 }
 
 function harmonicMarker(trans: Trans, freq: number, unit: string): MarkerLine {

@@ -1,5 +1,6 @@
 // The views of a run: which exist, their series, axes with units and marker lines. Numbers come
 // from the core; the checks here name the fact each relies on.
+import { welch } from '../../../src/core';
 import { DEFAULT_PLOT_SETTINGS } from '../../../src/panel/plots/settings';
 import {
   buildView,
@@ -7,6 +8,8 @@ import {
   defaultSmoothing,
   frequencyAxis,
   parseTaps,
+  spectrumRequests,
+  spectrumSpec,
   timeAxis,
   viewsOf
 } from '../../../src/panel/plots/views';
@@ -199,6 +202,21 @@ describe('spectrum', () => {
     expect(before.x[best]).toBeCloseTo(100, 0);
     expect(spec.markers.map(m => m.value)).toEqual([50, 100, 150]);
     expect(spec.note).toMatch(/1000-sample segments/);
+  });
+  test('the estimates can be computed elsewhere (a worker) and give the same view', () => {
+    const run = cancellationRun(3000, 1000);
+    const req = spectrumRequests(trans, run, { ...S, welchSegment: 256 });
+    expect(req.map(r => [r.name, r.options.nperseg, r.options.scaling, r.signal.n])).toEqual([
+      ['primary d(n)', 256, 'density', 3000],
+      ['error e(n)', 256, 'density', 3000]
+    ]);
+    const fromRequests = spectrumSpec(
+      trans,
+      run,
+      req,
+      req.map(r => welch(r.signal, r.options))
+    );
+    expect(fromRequests).toEqual(buildView(trans, run, 'spectrum', O, { ...S, welchSegment: 256 }));
   });
   test('without a sample rate: power per bin in dB against cycles/sample', () => {
     const r = makeRun(removal(), {
