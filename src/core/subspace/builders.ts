@@ -106,23 +106,34 @@ export function complexExponentials(options: {
 }
 
 export interface SteeringOptions {
-  /** Arrival angles from broadside (perpendicular to the array axis). */
-  angles: readonly number[];
+  /**
+   * Arrival angles θ from broadside (perpendicular to the array axis), in `unit`. Give either
+   * `angles` or `sines`.
+   */
+  angles?: readonly number[];
+  /** Direction sines u = sin θ ∈ [−1, 1] (the form array engineers plot beams in), instead of `angles`. */
+  sines?: readonly number[];
   /** Number of elements M ≥ 1. */
   elements: number;
   /** Element spacing d (same unit as the wavelength, > 0). */
   spacing: number;
   /** Wavelength λ (> 0). */
   wavelength: number;
-  /** Angle unit, default 'rad'. */
+  /** Unit of `angles`, default 'rad' (not used with `sines`). */
   unit?: 'rad' | 'deg';
 }
 
 /**
  * M×p complex ULA steering vectors, element 0 the phase reference:
- * a_m(θ) = exp(−j·2π·(d/λ)·m·sin θ), m = 0..M−1 (the narrowband plane-wave array manifold of
- * Van Trees, Optimum Array Processing, Wiley 2002, §2.2 (section from memory), with angle measured from broadside and
- * the e^{+jωt} carrier convention). Unit norm √M per column (not normalised).
+ * a_m = exp(−j·2π·(d/λ)·m·u), u = sin θ, m = 0..M−1 (the narrowband plane-wave array manifold
+ * of Van Trees, Optimum Array Processing, Wiley 2002, §2.2 (section from memory)).
+ *
+ * Phase sign convention, stated physically: element m sits at m·d along the array axis; a plane
+ * wave from direction u = sin θ reaches element m a delay τ_m = m·d·u/c after element 0 (so
+ * u > 0 means the source lies on element 0's side of broadside); with the analytic carrier
+ * e^{+jωt}, the delayed carrier e^{jω(t − τ_m)} carries the factor e^{−jωτ_m} = a_m. Directions
+ * come as angles θ (`angles`, in `unit`) or as direction sines u (`sines`). Column norm √M (not
+ * normalised).
  */
 export function ulaSteering(options: SteeringOptions): Dense {
   const M = checkInteger('elements', options.elements, 1);
@@ -138,22 +149,32 @@ export function ulaSteering(options: SteeringOptions): Dense {
   if (unit !== 'rad' && unit !== 'deg') {
     throw new RangeError(`unit must be 'rad' or 'deg', got ${describe(unit)}`);
   }
-  const angles = options.angles;
-  if (!Array.isArray(angles) || angles.length === 0) {
-    throw new RangeError(`angles must be a non-empty array, got ${describe(angles)}`);
+  const bySines = options.sines !== undefined;
+  if (bySines === (options.angles !== undefined)) {
+    throw new TypeError(
+      bySines
+        ? 'give either angles or sines, not both'
+        : 'give the directions as angles (θ from broadside) or as sines (u = sin θ)'
+    );
   }
-  const lim = unit === 'deg' ? 90 : Math.PI / 2;
-  angles.forEach((t, k) => {
-    checkNumber(`angles[${k}]`, t);
+  const name = bySines ? 'sines' : 'angles';
+  const dirs = bySines ? options.sines : options.angles;
+  if (!Array.isArray(dirs) || dirs.length === 0) {
+    throw new RangeError(`${name} must be a non-empty array, got ${describe(dirs)}`);
+  }
+  const lim = bySines ? 1 : unit === 'deg' ? 90 : Math.PI / 2;
+  const what = bySines ? '' : ` ${unit}`;
+  dirs.forEach((t, k) => {
+    checkNumber(`${name}[${k}]`, t);
     if (t < -lim || t > lim) {
-      throw new RangeError(`angles[${k}] must be in [${-lim}, ${lim}] ${unit}, got ${t}`);
+      throw new RangeError(`${name}[${k}] must be in [${-lim}, ${lim}]${what}, got ${t}`);
     }
   });
-  const out = Dense.zeros([M, angles.length], { complex: true, order: 'F' });
+  const out = Dense.zeros([M, dirs.length], { complex: true, order: 'F' });
   const data = out.data;
-  for (let k = 0; k < angles.length; k++) {
-    const th = unit === 'deg' ? (angles[k] * Math.PI) / 180 : angles[k];
-    const psi = 2 * Math.PI * (d / lam) * Math.sin(th);
+  for (let k = 0; k < dirs.length; k++) {
+    const u = bySines ? dirs[k] : Math.sin(unit === 'deg' ? (dirs[k] * Math.PI) / 180 : dirs[k]);
+    const psi = 2 * Math.PI * (d / lam) * u;
     for (let m = 0; m < M; m++) {
       data[2 * (k * M + m)] = Math.cos(psi * m);
       data[2 * (k * M + m) + 1] = -Math.sin(psi * m);
