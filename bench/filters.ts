@@ -8,7 +8,7 @@
  *
  * Flop counts per sample (real; complex counted as 4× real, one complex multiply-add = 8 flops):
  *   QR-RLS 3M² + 13M, inverse QR-RLS 4M² + 18M, RLS (symmetrised) 3.5M² + 9M,
- *   legacy RLS 7M² + 11M, NLMS and LMS 6M.
+ *   textbook RLS 7M² + 11M, NLMS and LMS 6M.
  * Sample counts: 1e6 for NLMS/LMS and for the O(M²) algorithms at M = 8 (and M = 32 real);
  * fewer where one run would take many seconds (M = 32 complex: 2e5; M = 128: 3e4 real, 1e4
  * complex) — the rate does not depend on the length. numpy loops: 20000 / 10000 / 3000 samples
@@ -29,7 +29,7 @@ const FLOPS: Record<Algorithm, (M: number) => number> = {
   'qr-rls': M => 3 * M * M + 13 * M,
   'inverse-qr-rls': M => 4 * M * M + 18 * M,
   rls: M => 3.5 * M * M + 9 * M,
-  'rls-legacy': M => 7 * M * M + 11 * M,
+  'rls-textbook': M => 7 * M * M + 11 * M,
   nlms: M => 6 * M,
   lms: M => 6 * M
 };
@@ -85,7 +85,7 @@ function timePerpend(
   };
   const opts = {
     algorithm,
-    order: M,
+    taps: M,
     complex,
     lambda: 0.999,
     delta: 0.01,
@@ -195,7 +195,7 @@ function main(): void {
   };
   const rows: Record<string, unknown>[] = [];
   const realRate: Record<string, number> = {};
-  const algs: Algorithm[] = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-legacy', 'nlms', 'lms'];
+  const algs: Algorithm[] = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-textbook', 'nlms', 'lms'];
   for (const complex of [false, true]) {
     for (const algorithm of algs) {
       MS.forEach((M, k) => {
@@ -251,7 +251,7 @@ function main(): void {
           if (algorithm === 'qr-rls' && M === 128 && nr !== undefined) {
             targets.ratio_vs_numpy_rls = { target: 2, value: sps / nr, met: sps / nr >= 2 };
           }
-        } else if (algorithm !== 'rls-legacy') {
+        } else if (algorithm !== 'rls-textbook') {
           const rr = realRate[`${algorithm}/${M}`];
           targets.complex_vs_real = { target: 1 / 3.5, value: sps / rr, met: sps / rr >= 1 / 3.5 };
           row.complex_vs_real = +(sps / rr).toFixed(3);
@@ -317,7 +317,7 @@ function main(): void {
   );
   console.log(`BLAS: ${JSON.stringify(env.blas)}`);
   console.log(
-    'flops/sample (real; complex 4×): QR-RLS 3M²+13M, inverse QR-RLS 4M²+18M, RLS 3.5M²+9M, legacy RLS 7M²+11M, NLMS/LMS 6M'
+    'flops/sample (real; complex 4×): QR-RLS 3M²+13M, inverse QR-RLS 4M²+18M, RLS 3.5M²+9M, textbook RLS 7M²+11M, NLMS/LMS 6M'
   );
   const head = [
     'algorithm',

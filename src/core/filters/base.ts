@@ -62,12 +62,55 @@ const HEALTH_KINDS: HealthKind[] = [
   'step-size'
 ];
 
-const ALGORITHMS = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-legacy', 'nlms', 'lms'];
+const ALGORITHMS = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-textbook', 'nlms', 'lms'];
 
-/** Applies defaults and checks every option; throws TypeError/RangeError naming the option. */
+/** The filter's own options, then those the runners built on it add (runFilter, runTrials, equalize). */
+const OPTION_NAMES = new Set([
+  'algorithm',
+  'taps',
+  'complex',
+  'precision',
+  'input',
+  'lambda',
+  'delta',
+  'mu',
+  'epsilon',
+  'keepWeightsEvery',
+  'divergenceThreshold',
+  'asymmetryTolerance',
+  'textbook',
+  'chunkSize',
+  'window',
+  'confidence',
+  'delay',
+  'decisionDirected',
+  'constellation',
+  'symbols'
+]);
+
+/** Names this interface used before, with the one to use now. */
+const RENAMED: Record<string, string> = {
+  order: 'taps (the number of taps M)',
+  decimation: 'keepWeightsEvery (keep the weights every k samples)'
+};
+
+/**
+ * Applies defaults and checks every option; throws TypeError/RangeError naming the option. An
+ * option name that none of the filters and runners knows is a TypeError (a misspelt option would
+ * otherwise be ignored without a word).
+ */
 export function resolveOptions(options: FilterOptions): ResolvedOptions {
   if (options === null || typeof options !== 'object') {
     throw new TypeError(`options must be an object, got ${describe(options)}`);
+  }
+  for (const key of Object.keys(options)) {
+    if (!OPTION_NAMES.has(key)) {
+      throw new TypeError(
+        key in RENAMED
+          ? `options.${key} is now options.${RENAMED[key]}`
+          : `options.${key} is not a filter option; the options are ${[...OPTION_NAMES].join(', ')}`
+      );
+    }
   }
   const algorithm = options.algorithm;
   if (!ALGORITHMS.includes(algorithm as string)) {
@@ -75,7 +118,7 @@ export function resolveOptions(options: FilterOptions): ResolvedOptions {
       `options.algorithm must be one of ${ALGORITHMS.join(', ')}, got ${describe(algorithm)}`
     );
   }
-  const order = checkInteger('options.order', options.order, 1, 1 << 16);
+  const taps = checkInteger('options.taps', options.taps, 1, 1 << 16);
   const complex = options.complex ?? false;
   if (typeof complex !== 'boolean') {
     throw new TypeError(`options.complex must be a boolean, got ${describe(complex)}`);
@@ -108,7 +151,11 @@ export function resolveOptions(options: FilterOptions): ResolvedOptions {
   if (!(epsilon >= 0)) {
     throw new RangeError(`options.epsilon must be ≥ 0, got ${describe(epsilon)}`);
   }
-  const decimation = checkInteger('options.decimation', options.decimation ?? 0, 0);
+  const keepWeightsEvery = checkInteger(
+    'options.keepWeightsEvery',
+    options.keepWeightsEvery ?? 0,
+    0
+  );
   const divergenceThreshold = checkNumber(
     'options.divergenceThreshold',
     options.divergenceThreshold ?? 1e8
@@ -130,7 +177,7 @@ export function resolveOptions(options: FilterOptions): ResolvedOptions {
   }
   return {
     algorithm,
-    order,
+    taps,
     complex,
     precision,
     input,
@@ -138,7 +185,7 @@ export function resolveOptions(options: FilterOptions): ResolvedOptions {
     delta,
     mu,
     epsilon,
-    decimation,
+    keepWeightsEvery,
     divergenceThreshold,
     asymmetryTolerance
   };
@@ -252,7 +299,7 @@ export abstract class AdaptiveFilter {
 
   constructor(options: FilterOptions) {
     this.options = Object.freeze(resolveOptions(options));
-    this.M = this.options.order;
+    this.M = this.options.taps;
     this.complex = this.options.complex;
     this.f32 = this.options.precision === 'float32';
     this.transversal = this.options.input === 'transversal';
@@ -361,7 +408,7 @@ export abstract class AdaptiveFilter {
     }
     checkFinite('x', X, cx);
     checkFinite('d', D, cx);
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const rows = dec > 0 ? Math.floor((this.dcount + n) / dec) : 0;
     const mk = (len: number): Real => (this.f32 ? new Float32Array(len) : new Float64Array(len));
     const y = this.buffer('out.y', out.y, n * w, mk);

@@ -19,7 +19,7 @@ export function createFilter(options: FilterOptions): AdaptiveFilter {
     case 'inverse-qr-rls':
       return new InverseQrRlsFilter(options);
     case 'rls':
-    case 'rls-legacy':
+    case 'rls-textbook':
       return new RlsFilter(options);
     case 'nlms':
       return new NlmsFilter(options);
@@ -49,12 +49,12 @@ export function runFilter(x: unknown, d: unknown, options: RunOptions): FilterRu
   const o = resolveOptions(options);
   const cx = o.complex;
   const f32 = o.precision === 'float32';
-  const X = toFlat('x', x, f32, cx, o.input === 'regressor' ? (cx ? 2 : 1) * o.order : undefined);
+  const X = toFlat('x', x, f32, cx, o.input === 'regressor' ? (cx ? 2 : 1) * o.taps : undefined);
   const D = toFlat('d', d, f32, cx);
   const W = cx ? 2 : 1;
   const N = D.length / W;
-  if (o.input === 'transversal' && X.length === D.length && o.order > N) {
-    throw new RangeError(`options.order (M = ${o.order}) exceeds the signal length ${N}`);
+  if (o.input === 'transversal' && X.length === D.length && o.taps > N) {
+    throw new RangeError(`options.taps (M = ${o.taps}) exceeds the signal length ${N}`);
   }
   const filter = createFilter(options);
   const chunk =
@@ -63,7 +63,7 @@ export function runFilter(x: unknown, d: unknown, options: RunOptions): FilterRu
     const r = filter.process(X, D);
     return { ...r, weights: filter.weights(), health: filter.health() };
   }
-  const per = (o.input === 'transversal' ? 1 : o.order) * W;
+  const per = (o.input === 'transversal' ? 1 : o.taps) * W;
   if (X.length !== N * per) {
     // Let process() produce the detailed message.
     filter.process(X, D);

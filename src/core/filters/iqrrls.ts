@@ -145,7 +145,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     const ub = this.ub as Float64Array;
     const isl = 1 / Math.sqrt(this.options.lambda);
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
     let pos = this.upos;
@@ -408,7 +408,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     const ub = this.ub as Float64Array;
     const isl = 1 / Math.sqrt(this.options.lambda);
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
     let pos = this.upos;
@@ -572,7 +572,7 @@ export class InverseQrRlsFilter extends AdaptiveFilter {
     const ub = this.ub as Float32Array;
     const isl = Math.fround(1 / Math.fround(Math.sqrt(Math.fround(this.options.lambda))));
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
     const L = cx ? M2 : M;

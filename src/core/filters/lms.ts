@@ -143,7 +143,7 @@ export class LmsFilter extends AdaptiveFilter {
     const mu = this.options.mu;
     const eps = this.options.epsilon;
     const nrm = this.normalised;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
     let pos = this.upos;
@@ -331,7 +331,7 @@ export class LmsFilter extends AdaptiveFilter {
     const eps = this.options.epsilon;
     const nrm = this.normalised;
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
     let pos = this.upos;
@@ -441,7 +441,7 @@ export class LmsFilter extends AdaptiveFilter {
     const eps = this.options.epsilon;
     const nrm = this.normalised;
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
     let pos = this.upos;
@@ -536,7 +536,7 @@ export class LmsFilter extends AdaptiveFilter {
     const eps = Math.fround(this.options.epsilon);
     const nrm = this.normalised;
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
     const L = cx ? M2 : M;

@@ -125,7 +125,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     const ub = this.ub as Float64Array;
     const sl = Math.sqrt(this.options.lambda);
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const L = M;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
@@ -417,7 +417,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     const ub = this.ub as Float64Array;
     const sl = Math.sqrt(this.options.lambda);
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const L = M2;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
@@ -614,7 +614,7 @@ export class QrRlsFilter extends AdaptiveFilter {
     const ub = this.ub as Float32Array;
     const sl = Math.fround(Math.sqrt(Math.fround(this.options.lambda)));
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const L = cx ? M2 : M;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;

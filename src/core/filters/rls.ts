@@ -10,7 +10,7 @@
  * its conjugate), so P stays exactly Hermitian; π is formed from the upper triangle. Per sample
  * (real): about 3.5M² flops.
  *
- * Legacy variant (`rls-legacy`, for reproducing old code only): the same formulas applied to
+ * Unsymmetrised textbook form (`rls-textbook`, to compare against): the same formulas applied to
  * every entry of the full matrix, P(n) = λ⁻¹(P(n−1) − k πᴴ), with nothing that keeps P
  * Hermitian. k πᴴ = ππᴴ/α is Hermitian, so the anti-Hermitian part D of P is not damped at all:
  * D(n) = λ⁻¹D(n−1) + rounding, i.e. it grows like λ⁻ⁿ from the first rounding errors (Verhaegen,
@@ -18,7 +18,7 @@
  * schemes", Automatica 25(3), 1989; Haykin, 4th ed., §13.1 on the numerical instability of
  * conventional RLS (from memory)). In float64 at λ = 0.999 that takes P apart within about
  * 1e5 samples. The health monitor forms Pᴴu as well (ψ, an extra M² multiply-adds that only the
- * legacy variant pays) and reports the relative asymmetry ‖(P − Pᴴ)u‖/‖Pu‖ and any loss of
+ * textbook form pays) and reports the relative asymmetry ‖(P − Pᴴ)u‖/‖Pu‖ and any loss of
  * positive definiteness, each with its sample index. For complex data α uses the real part of
  * uᴴPu. About 7M² flops per sample.
  */
@@ -33,14 +33,15 @@ export class RlsFilter extends AdaptiveFilter {
   protected pi!: Real;
   /** Work: the next sample's π, formed while P is updated (float64 default variant; interleaved when complex). */
   protected piNext!: Float64Array;
-  /** Work: ψ = uᴴP (legacy only). */
+  /** Work: ψ = uᴴP (textbook form only). */
   protected psi!: Real;
-  readonly legacy: boolean;
+  /** True for the unsymmetrised textbook form (`rls-textbook`): every entry of P updated. */
+  readonly textbook: boolean;
 
-  constructor(options: FilterOptions & { legacy?: boolean }) {
-    const legacy = options.legacy ?? options.algorithm === 'rls-legacy';
-    super({ ...options, algorithm: legacy ? 'rls-legacy' : 'rls' });
-    this.legacy = legacy;
+  constructor(options: FilterOptions & { textbook?: boolean }) {
+    const textbook = options.textbook ?? options.algorithm === 'rls-textbook';
+    super({ ...options, algorithm: textbook ? 'rls-textbook' : 'rls' });
+    this.textbook = textbook;
     this.reset();
   }
 
@@ -76,7 +77,7 @@ export class RlsFilter extends AdaptiveFilter {
     const out = new Float64Array((cx ? 2 : 1) * M * M);
     for (let i = 0; i < M; i++) {
       for (let j = 0; j < M; j++) {
-        const mirror = !this.legacy && j < i;
+        const mirror = !this.textbook && j < i;
         const q = mirror ? j * M + i : i * M + j;
         const re = P[W * q];
         const im = W === 2 ? P[W * q + 1] : 0;
@@ -135,8 +136,8 @@ export class RlsFilter extends AdaptiveFilter {
     traj: Float64Array,
     tIdx: Float64Array
   ): void {
-    if (this.legacy) {
-      this.kernelRLegacy(x, d, n, y, e, ep, g, traj, tIdx);
+    if (this.textbook) {
+      this.kernelRTextbook(x, d, n, y, e, ep, g, traj, tIdx);
     } else {
       this.kernelRSym(x, d, n, y, e, ep, g, traj, tIdx);
     }
@@ -153,8 +154,8 @@ export class RlsFilter extends AdaptiveFilter {
     traj: Float64Array,
     tIdx: Float64Array
   ): void {
-    if (this.legacy) {
-      this.kernelCLegacy(x, d, n, y, e, ep, g, traj, tIdx);
+    if (this.textbook) {
+      this.kernelCTextbook(x, d, n, y, e, ep, g, traj, tIdx);
     } else {
       this.kernelCSym(x, d, n, y, e, ep, g, traj, tIdx);
     }
@@ -186,7 +187,7 @@ export class RlsFilter extends AdaptiveFilter {
     const lam = this.options.lambda;
     const il = 1 / lam;
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
     let pa = this.pi as Float64Array;
@@ -330,8 +331,8 @@ export class RlsFilter extends AdaptiveFilter {
     this.hPd = pd;
   }
 
-  /** Real float64, legacy variant: every entry of P updated, the asymmetry monitor formed alongside. */
-  private kernelRLegacy(
+  /** Real float64, textbook form: every entry of P updated, the asymmetry monitor formed alongside. */
+  private kernelRTextbook(
     x: Float64Array,
     d: Float64Array,
     n: number,
@@ -352,7 +353,7 @@ export class RlsFilter extends AdaptiveFilter {
     const il = 1 / lam;
     const tol = this.options.asymmetryTolerance;
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
     let pos = this.upos;
@@ -474,7 +475,7 @@ export class RlsFilter extends AdaptiveFilter {
     const lam = this.options.lambda;
     const il = 1 / lam;
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
     let pa = this.pi as Float64Array;
@@ -635,8 +636,8 @@ export class RlsFilter extends AdaptiveFilter {
     this.hPd = pd;
   }
 
-  /** Complex float64, legacy variant (as kernelR). */
-  private kernelCLegacy(
+  /** Complex float64, textbook form (as kernelR). */
+  private kernelCTextbook(
     x: Float64Array,
     d: Float64Array,
     n: number,
@@ -658,7 +659,7 @@ export class RlsFilter extends AdaptiveFilter {
     const il = 1 / lam;
     const tol = this.options.asymmetryTolerance;
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
     let pos = this.upos;
@@ -810,10 +811,10 @@ export class RlsFilter extends AdaptiveFilter {
     const ub = this.ub as Float32Array;
     const lam = Math.fround(this.options.lambda);
     const il = Math.fround(1 / lam);
-    const legacy = this.legacy;
+    const textbook = this.textbook;
     const tol = this.options.asymmetryTolerance;
     const tv = this.transversal;
-    const dec = this.options.decimation;
+    const dec = this.options.keepWeightsEvery;
     const thr = this.options.divergenceThreshold;
     const t0 = this.t;
     const L = cx ? M2 : M;
@@ -853,7 +854,7 @@ export class RlsFilter extends AdaptiveFilter {
         psi[2 * k + 1] = 0;
       }
       let asym = 0;
-      if (!legacy) {
+      if (!textbook) {
         for (let r = 0; r < M; r++) {
           const b = 2 * r * M;
           const ur = ub[uo + W * r];
@@ -938,7 +939,7 @@ export class RlsFilter extends AdaptiveFilter {
         );
       }
       let diagBad = false;
-      if (!legacy) {
+      if (!textbook) {
         for (let r = 0; r < M; r++) {
           const b = 2 * r * M;
           const kr = Math.fround(pi[2 * r] * ia);

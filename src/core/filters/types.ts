@@ -10,8 +10,14 @@
  * Complex data are interleaved (re, im), as numpy stores complex128.
  */
 
-/** The algorithms offered. `rls-legacy` is the unsymmetrised textbook Riccati update. */
-export type Algorithm = 'qr-rls' | 'inverse-qr-rls' | 'rls' | 'rls-legacy' | 'nlms' | 'lms';
+/**
+ * The algorithms offered. `rls` is conventional RLS with P kept Hermitian by construction;
+ * `rls-textbook` is the unsymmetrised textbook form of the same recursion (the Riccati update of
+ * every entry of P, as printed in Haykin, Adaptive Filter Theory, 4th ed., Table 9.1), which
+ * loses the symmetry of P at a rate set by ln(1/λ): offered to compare against, with its loss of
+ * symmetry reported in the health.
+ */
+export type Algorithm = 'qr-rls' | 'inverse-qr-rls' | 'rls' | 'rls-textbook' | 'nlms' | 'lms';
 
 /** Arithmetic: float64, or float32 emulated with Math.fround after every operation. */
 export type Precision = 'float64' | 'float32';
@@ -22,8 +28,8 @@ export type InputKind = 'transversal' | 'regressor';
 /** Options accepted by {@link createFilter}. */
 export interface FilterOptions {
   algorithm: Algorithm;
-  /** Filter length M ≥ 1. */
-  order: number;
+  /** Number of taps M ≥ 1 (the length of the weight vector). */
+  taps: number;
   /** Interleaved complex data when true (default false). */
   complex?: boolean;
   /** Default 'float64'. */
@@ -41,8 +47,11 @@ export interface FilterOptions {
   mu?: number;
   /** NLMS regularisation ε ≥ 0 added to ‖u‖² (default 1e-6). */
   epsilon?: number;
-  /** Keep the weights every `decimation` samples (0, the default, keeps no trajectory). */
-  decimation?: number;
+  /**
+   * Keep the weights every k samples (a trajectory row after every k-th sample); 0, the default,
+   * keeps no trajectory.
+   */
+  keepWeightsEvery?: number;
   /**
    * Divergence threshold: the error energy is flagged as blowing up when its exponentially
    * smoothed power (time constant 256 samples) exceeds this factor times the smoothed power of d
@@ -51,8 +60,8 @@ export interface FilterOptions {
   divergenceThreshold?: number;
   /**
    * Conventional RLS only: relative asymmetry ‖(P − Pᴴ)u‖/‖Pu‖ above which loss of symmetry is
-   * flagged (default √ε of the precision: 1.5e-8 in float64, 3.5e-4 in float32). Only the legacy
-   * variant can lose symmetry; the default variant keeps P Hermitian by construction.
+   * flagged (default √ε of the precision: 1.5e-8 in float64, 3.5e-4 in float32). Only the
+   * unsymmetrised textbook form (`rls-textbook`) can lose symmetry; the default variant keeps P Hermitian by construction.
    */
   asymmetryTolerance?: number;
 }
@@ -60,7 +69,7 @@ export interface FilterOptions {
 /** Options after defaults are applied and checks passed. */
 export interface ResolvedOptions {
   algorithm: Algorithm;
-  order: number;
+  taps: number;
   complex: boolean;
   precision: Precision;
   input: InputKind;
@@ -68,7 +77,7 @@ export interface ResolvedOptions {
   delta: number;
   mu: number;
   epsilon: number;
-  decimation: number;
+  keepWeightsEvery: number;
   divergenceThreshold: number;
   asymmetryTolerance: number;
 }
@@ -81,7 +90,7 @@ export type HealthKind =
   | 'divergence'
   /** conventional RLS: uᴴPu < 0 or a diagonal entry of P ≤ 0 (P no longer positive definite). */
   | 'indefinite'
-  /** conventional RLS (legacy variant): ‖(P − Pᴴ)u‖/‖Pu‖ above the tolerance. */
+  /** conventional RLS, unsymmetrised textbook form: ‖(P − Pᴴ)u‖/‖Pu‖ above the tolerance. */
   | 'asymmetry'
   /** LMS: μ above the mean-square bound estimated from the input power (a warning). */
   | 'step-size';
@@ -121,7 +130,7 @@ export interface FilterChunk {
   ePost: Real;
   /** Conversion factor γ(n) = ε(n)/e(n) (real, length n). */
   gamma: Real;
-  /** Weights kept every `decimation` samples: rows × M (× 2 when complex), row-major. */
+  /** Weights kept every `keepWeightsEvery` samples: rows × M (× 2 when complex), row-major. */
   trajectory: Float64Array;
   /** Stream index of the sample after which each trajectory row was taken. */
   trajectoryIndex: Float64Array;

@@ -41,7 +41,7 @@ const ALGORITHM_OPTIONS = [
   ['qr-rls', 'QR-RLS (Givens rotations on the Cholesky factor)'],
   ['inverse-qr-rls', 'inverse QR-RLS (rotations on P^½)'],
   ['rls', 'RLS (conventional, symmetric update)'],
-  ['rls-legacy', 'RLS, unsymmetrised textbook form'],
+  ['rls-textbook', 'RLS, unsymmetrised textbook form'],
   ['nlms', 'NLMS'],
   ['lms', 'LMS']
 ] as const;

@@ -42,14 +42,14 @@ export const ALGORITHMS: ReadonlyArray<Algorithm> = [
   'qr-rls',
   'inverse-qr-rls',
   'rls',
-  'rls-legacy',
+  'rls-textbook',
   'nlms',
   'lms'
 ];
 
 /** Algorithms of the RLS family (λ and δ apply), and of the gradient family (μ applies). */
 export function usesLambda(a: Algorithm): boolean {
-  return a === 'qr-rls' || a === 'inverse-qr-rls' || a === 'rls' || a === 'rls-legacy';
+  return a === 'qr-rls' || a === 'inverse-qr-rls' || a === 'rls' || a === 'rls-textbook';
 }
 
 function fmt(v: number): string {

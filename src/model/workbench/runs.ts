@@ -102,7 +102,7 @@ const ALGORITHM_LABEL: Record<AdaptiveSetup['algorithm'], string> = {
   'qr-rls': 'QR-RLS',
   'inverse-qr-rls': 'inverse QR-RLS',
   rls: 'RLS',
-  'rls-legacy': 'RLS (unsymmetrised textbook form)',
+  'rls-textbook': 'RLS (unsymmetrised textbook form)',
   nlms: 'NLMS',
   lms: 'LMS'
 };

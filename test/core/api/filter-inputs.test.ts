@@ -29,7 +29,7 @@ for (let k = 0; k < K; k++) {
 }
 const rowsOf = (a: Float64Array) =>
   Array.from({ length: K }, (_, k) => a.slice(k * N, (k + 1) * N));
-const OPTS = { algorithm: 'rls', order: 2, lambda: 1, delta: 1e-3 } as const;
+const OPTS = { algorithm: 'rls', taps: 2, lambda: 1, delta: 1e-3 } as const;
 
 describe('runTrials accepts the documented layouts of K rows, with the same result', () => {
   const flat = runTrials(X, D, K, OPTS);

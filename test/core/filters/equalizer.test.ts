@@ -64,7 +64,7 @@ function curve(
       }
       x[n] = s + Math.sqrt(SIGMA2) * rng.gauss();
     }
-    const r = equalize(x, a, { ...opts, order: M, delay: DELAY, symbols: a });
+    const r = equalize(x, a, { ...opts, taps: M, delay: DELAY, symbols: a });
     const c = new Float64Array(N - DELAY);
     for (let n = DELAY; n < N; n++) {
       c[n - DELAY] = r.e[n] * r.e[n];

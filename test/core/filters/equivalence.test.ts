@@ -44,7 +44,7 @@ for (const complex of [false, true]) {
     const spread = ar1Spread(AR, M);
     const algs = ['qr-rls', 'inverse-qr-rls', 'rls'] as const;
     const filters = algs.map(a =>
-      createFilter({ algorithm: a, order: M, lambda: LAMBDA, delta: DELTA, complex })
+      createFilter({ algorithm: a, taps: M, lambda: LAMBDA, delta: DELTA, complex })
     );
     const E = algs.map(() => new Float64Array(N * W));
     const Wck = algs.map(() => [] as Float64Array[]);

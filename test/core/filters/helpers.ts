@@ -268,7 +268,7 @@ export function ensemble(
   N: number,
   eig: number[],
   sigmaV: number,
-  options: Omit<FilterOptions, 'order'>,
+  options: Omit<FilterOptions, 'taps'>,
   transversal = false,
   stopOnFailure = false
 ): Ens {
@@ -291,7 +291,7 @@ export function ensemble(
     const wo = rng.gaussArray(M, cx);
     const f = createFilter({
       ...options,
-      order: M,
+      taps: M,
       input: transversal ? 'transversal' : 'regressor'
     });
     for (let s0 = 0; s0 < N; s0 += C) {

@@ -18,7 +18,7 @@ import { Dense } from '../../../src/core/dense';
 import { residualEnergy } from '../../../src/core/metrics';
 import { Rng, ar1, desired } from './helpers';
 
-const ALGS: Algorithm[] = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-legacy', 'nlms', 'lms'];
+const ALGS: Algorithm[] = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-textbook', 'nlms', 'lms'];
 
 test('chunked processing equals one-shot processing bit for bit; decimated trajectory; reset', () => {
   const rng = new Rng(8000);
@@ -38,12 +38,12 @@ test('chunked processing equals one-shot processing bit for bit; decimated traje
       for (const algorithm of ALGS) {
         const opts = {
           algorithm,
-          order: 4,
+          taps: 4,
           complex,
           precision,
           lambda: 0.99,
           mu: algorithm === 'lms' ? 0.02 : 0.5,
-          decimation: 10
+          keepWeightsEvery: 10
         };
         const one = runFilter(x, d, opts);
         const chunked = runFilter(x, d, { ...opts, chunkSize: 97 });
@@ -81,14 +81,14 @@ test('Dense input at the API edge (regressor rows as an N×M view)', () => {
   const dense = new Dense(X, [N, M]);
   const a = runFilter(dense, d, {
     algorithm: 'qr-rls',
-    order: M,
+    taps: M,
     input: 'regressor',
     lambda: 1,
     delta: 1e-6
   });
   const b = runFilter(X, d, {
     algorithm: 'qr-rls',
-    order: M,
+    taps: M,
     input: 'regressor',
     lambda: 1,
     delta: 1e-6
@@ -99,7 +99,7 @@ test('Dense input at the API edge (regressor rows as an N×M view)', () => {
   const f = dense.copy('F');
   const c = runFilter(f, d, {
     algorithm: 'qr-rls',
-    order: M,
+    taps: M,
     input: 'regressor',
     lambda: 1,
     delta: 1e-6
@@ -122,7 +122,7 @@ test('configurations: identification, noise cancellation, one-step prediction', 
   );
   const sid = runFilter(systemIdentification(u, out).x, out, {
     algorithm: 'rls',
-    order: 3,
+    taps: 3,
     lambda: 1
   });
   expect(sid.weights[0]).toBeCloseTo(0.8, 3);
@@ -133,7 +133,7 @@ test('configurations: identification, noise cancellation, one-step prediction', 
   const path = desired(ref, Float64Array.from([0.6, 0.3]), 2, false, true, new Float64Array(N));
   const primary = Float64Array.from(sig, (s, n) => s + path[n]);
   const nc = noiseCancellation(ref, primary);
-  const r = runFilter(nc.x, nc.d, { algorithm: 'rls', order: 4, lambda: 0.9995 });
+  const r = runFilter(nc.x, nc.d, { algorithm: 'rls', taps: 4, lambda: 0.9995 });
   const cleaned = Float64Array.from(r.e.subarray(2000), (e, k) => e - sig[2000 + k]);
   expect(residualEnergy(cleaned, path.subarray(2000)).reductionDb).toBeGreaterThan(20);
   // one-step prediction of an AR(1) with a = 0.9: the predictor weight is 0.9
@@ -141,7 +141,7 @@ test('configurations: identification, noise cancellation, one-step prediction', 
   const lp = linearPrediction(s);
   expect(lp.x[0]).toBe(0);
   expect(lp.x[5]).toBe(s[4]);
-  const pr = runFilter(lp.x, lp.d, { algorithm: 'qr-rls', order: 2, lambda: 1 });
+  const pr = runFilter(lp.x, lp.d, { algorithm: 'qr-rls', taps: 2, lambda: 1 });
   expect(pr.weights[0]).toBeCloseTo(0.9, 1);
   expect(Math.abs(pr.weights[1])).toBeLessThan(0.05);
 });
@@ -167,7 +167,7 @@ test('equalizer: training, then decision-directed with the symbol error rate; fr
   }
   const opts = {
     algorithm: 'rls' as const,
-    order: 6,
+    taps: 6,
     complex: true,
     lambda: 0.999,
     delay: 0,
@@ -190,29 +190,29 @@ test('equalizer: training, then decision-directed with the symbol error rate; fr
 describe('argument checks name the argument and the value', () => {
   const x = new Float64Array(10);
   test.each([
-    [{ algorithm: 'rls', order: 0 }, /options.order must be in \[1, 65536\], got 0/],
-    [{ algorithm: 'rls', order: 2.5 }, /options.order must be an integer, got 2.5/],
-    [{ algorithm: 'rls', order: 2, lambda: 0 }, /options.lambda must be in \(0, 1\], got 0/],
-    [{ algorithm: 'rls', order: 2, lambda: 1.01 }, /options.lambda must be in \(0, 1\], got 1.01/],
-    [{ algorithm: 'qr-rls', order: 2, delta: -1 }, /options.delta must be > 0, got -1/],
+    [{ algorithm: 'rls', taps: 0 }, /options.taps must be in \[1, 65536\], got 0/],
+    [{ algorithm: 'rls', taps: 2.5 }, /options.taps must be an integer, got 2.5/],
+    [{ algorithm: 'rls', taps: 2, lambda: 0 }, /options.lambda must be in \(0, 1\], got 0/],
+    [{ algorithm: 'rls', taps: 2, lambda: 1.01 }, /options.lambda must be in \(0, 1\], got 1.01/],
+    [{ algorithm: 'qr-rls', taps: 2, delta: -1 }, /options.delta must be > 0, got -1/],
     [
-      { algorithm: 'qr-rls', order: 2, delta: NaN },
+      { algorithm: 'qr-rls', taps: 2, delta: NaN },
       /options.delta must be a finite number, got NaN/
     ],
-    [{ algorithm: 'nlms', order: 2, mu: 2 }, /options.mu must be in \(0, 2\) for NLMS, got 2/],
-    [{ algorithm: 'lms', order: 2, mu: 0 }, /options.mu must be > 0, got 0/],
-    [{ algorithm: 'nlms', order: 2, epsilon: -1 }, /options.epsilon must be ≥ 0, got -1/],
-    [{ algorithm: 'kalman', order: 2 }, /options.algorithm must be one of .*got "kalman"/],
+    [{ algorithm: 'nlms', taps: 2, mu: 2 }, /options.mu must be in \(0, 2\) for NLMS, got 2/],
+    [{ algorithm: 'lms', taps: 2, mu: 0 }, /options.mu must be > 0, got 0/],
+    [{ algorithm: 'nlms', taps: 2, epsilon: -1 }, /options.epsilon must be ≥ 0, got -1/],
+    [{ algorithm: 'kalman', taps: 2 }, /options.algorithm must be one of .*got "kalman"/],
     [
-      { algorithm: 'rls', order: 2, precision: 'float16' },
+      { algorithm: 'rls', taps: 2, precision: 'float16' },
       /options.precision must be 'float64' or 'float32', got "float16"/
     ],
-    [{ algorithm: 'rls', order: 2, decimation: -1 }, /options.decimation must be in \[0/]
+    [{ algorithm: 'rls', taps: 2, keepWeightsEvery: -1 }, /options.keepWeightsEvery must be in \[0/]
   ])('%o', (opts, re) => {
     expect(() => createFilter(opts as never)).toThrow(re);
   });
   test('data errors', () => {
-    const f = createFilter({ algorithm: 'rls', order: 3 });
+    const f = createFilter({ algorithm: 'rls', taps: 3 });
     expect(() => f.process(x, new Float64Array(9))).toThrow(
       /x has length 10 but d has length 9; they must match/
     );
@@ -222,16 +222,13 @@ describe('argument checks name the argument and the value', () => {
     const badc = new Float64Array(20);
     badc[13] = Infinity;
     expect(() =>
-      createFilter({ algorithm: 'lms', order: 2, complex: true }).process(
-        badc,
-        new Float64Array(20)
-      )
+      createFilter({ algorithm: 'lms', taps: 2, complex: true }).process(badc, new Float64Array(20))
     ).toThrow(/x\[6\] \(imaginary part\) is Infinity/);
-    expect(() => runFilter(x, x, { algorithm: 'rls', order: 11 })).toThrow(
-      /options.order \(M = 11\) exceeds the signal length 10/
+    expect(() => runFilter(x, x, { algorithm: 'rls', taps: 11 })).toThrow(
+      /options.taps \(M = 11\) exceeds the signal length 10/
     );
     expect(() =>
-      createFilter({ algorithm: 'rls', order: 3, input: 'regressor' }).process(x, x)
+      createFilter({ algorithm: 'rls', taps: 3, input: 'regressor' }).process(x, x)
     ).toThrow(/x must be an N×M regressor matrix with N = 10/);
     expect(() => f.process('abc', x)).toThrow(
       /x must be a Float64Array, Float32Array, number\[\] or Dense array, got "abc"/
@@ -240,7 +237,7 @@ describe('argument checks name the argument and the value', () => {
       /out.e must be a Float64Array/
     );
     expect(() =>
-      createFilter({ algorithm: 'lms', order: 2, complex: true }).process(
+      createFilter({ algorithm: 'lms', taps: 2, complex: true }).process(
         new Float64Array(4),
         new Float64Array(3)
       )
@@ -248,10 +245,10 @@ describe('argument checks name the argument and the value', () => {
   });
   test('LMS step size above the white-input bound is a run-time warning, not an error', () => {
     const rng = new Rng(8004);
-    const f = createFilter({ algorithm: 'lms', order: 8, mu: 0.3 });
+    const f = createFilter({ algorithm: 'lms', taps: 8, mu: 0.3 });
     f.process(rng.gaussArray(300), rng.gaussArray(300));
     const ev = f.health().events.find(e => e.kind === 'step-size');
     expect(ev?.message).toMatch(/μ = 0.3 exceeds the mean-square bound 0\.[12]\d* estimated/);
-    expect(createFilter({ algorithm: 'lms', order: 8, mu: 0.21 }).health().status).toBe('ok');
+    expect(createFilter({ algorithm: 'lms', taps: 8, mu: 0.21 }).health().status).toBe('ok');
   });
 });

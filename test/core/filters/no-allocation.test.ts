@@ -36,7 +36,7 @@ for (const c of cases) {
   for (let i = 0; i < N * W; i++) { d[i] = 0.5 * x[i] + (i >= W ? 0.25 * x[i - W] : 0) + 1e-3 * rng.gauss(); }
   const out = { y: new A(N * W), e: new A(N * W), ePost: new A(N * W), gamma: new A(N),
     trajectory: new Float64Array(0), trajectoryIndex: new Float64Array(0) };
-  const f = createFilter({ ...c, order: M, lambda: 0.999, delta: 0.01, mu: c.algorithm === 'lms' ? 0.01 : 0.5 });
+  const f = createFilter({ ...c, taps: M, lambda: 0.999, delta: 0.01, mu: c.algorithm === 'lms' ? 0.01 : 0.5 });
   const C = 5000 * W;
   for (let k = 0; k < 40; k++) { f.process(x.subarray(k * C, (k + 1) * C), d.subarray(k * C, (k + 1) * C), out); }
   global.gc();

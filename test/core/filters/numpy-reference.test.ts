@@ -13,7 +13,7 @@ import * as fs from 'fs';
 import { runFilter, type Algorithm } from '../../../src/core/filters';
 import { Rng, desired, readF32, readF64, rms, runReference, writeF64 } from './helpers';
 
-const ALGS: Algorithm[] = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-legacy', 'nlms', 'lms'];
+const ALGS: Algorithm[] = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-textbook', 'nlms', 'lms'];
 
 interface Case {
   tag: string;
@@ -85,18 +85,18 @@ test('every algorithm matches the numpy reference to 1e-10 (real/complex, transv
     const { x, d } = data[c.x.slice(0, 2)];
     const r = runFilter(x, d, {
       algorithm: c.algorithm,
-      order: M,
+      taps: M,
       complex: c.complex,
       input: c.transversal ? 'transversal' : 'regressor',
       lambda: c.lambda,
       delta: c.delta,
       mu: c.mu,
       epsilon: c.epsilon,
-      decimation: 1
+      keepWeightsEvery: 1
     });
-    // The legacy variant amplifies rounding like λ⁻ⁿ (that is its defect), so two correct
+    // The unsymmetrised textbook form amplifies rounding like λ⁻ⁿ (that is its defect), so two correct
     // implementations part after a while: compare it over the first 400 samples (λ⁻⁴⁰⁰ ≈ 3e3).
-    const span = c.algorithm === 'rls-legacy' ? 400 : Infinity;
+    const span = c.algorithm === 'rls-textbook' ? 400 : Infinity;
     const rel = (a: ArrayLike<number>, name: string) => {
       const full = readF64(dir, `${c.tag}.${name}.bin`);
       expect(full.length).toBe(a.length);
@@ -159,13 +159,13 @@ test('float32 emulation is bit-exact against numpy float32 scalar loops (same op
   for (const c of cases) {
     const r = runFilter(x, d, {
       algorithm: c.algorithm,
-      order: M,
+      taps: M,
       precision: 'float32',
       lambda: c.lambda,
       delta: c.delta,
       mu: c.mu,
       epsilon: c.epsilon,
-      decimation: 1
+      keepWeightsEvery: 1
     });
     expect(r.e).toBeInstanceOf(Float32Array);
     const outs: [string, ArrayLike<number>][] = [
@@ -236,14 +236,14 @@ test('complex float32 emulation is bit-exact against numpy float32 scalar loops 
   for (const c of cases) {
     const r = runFilter(x, d, {
       algorithm: c.algorithm,
-      order: M,
+      taps: M,
       complex: true,
       precision: 'float32',
       lambda: c.lambda,
       delta: c.delta,
       mu: c.mu,
       epsilon: c.epsilon,
-      decimation: 1
+      keepWeightsEvery: 1
     });
     const outs: [string, ArrayLike<number>][] = [
       ['e', r.e],

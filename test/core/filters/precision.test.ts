@@ -26,7 +26,7 @@ const out = {};
 let dRms = rmsFrom(d, 0);
 for (const algorithm of algs) {
   for (const precision of ['float64', 'float32']) {
-    const r = runFilter(x, d, { algorithm, order: M, lambda, delta: 0.01, precision });
+    const r = runFilter(x, d, { algorithm, taps: M, lambda, delta: 0.01, precision });
     // first sample where |e| is non-finite or above 1e3 × RMS(d)
     let blow = -1;
     for (let i = 0; i < r.e.length; i++) { if (!(Math.abs(r.e[i]) <= 1e3 * dRms)) { blow = i; break; } }
@@ -56,7 +56,7 @@ function expectFlagged(r: Res): void {
 }
 
 test('float32 emulation over 1e6 samples at λ = 0.99 (coloured input): QR forms within 1 dB of float64; RLS variants measured and flagged', () => {
-  const algs = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-legacy'];
+  const algs = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-textbook'];
   const res = JSON.parse(
     runInChild(CHILD, [JSON.stringify([1_000_000, 8, 0.99, 7000]), JSON.stringify(algs)])
   ) as Record<string, Res>;
@@ -79,7 +79,7 @@ test('float32 emulation over 1e6 samples at λ = 0.99 (coloured input): QR forms
       // symmetric by construction: no asymmetry can be reported
       expect(r32.health.events.some(e => e.kind === 'asymmetry')).toBe(false);
     }
-    if (a === 'rls-legacy') {
+    if (a === 'rls-textbook') {
       // λ⁻ⁿ growth of the asymmetry: caught first, in both precisions
       expect(r64.health.events[0].kind).toBe('asymmetry');
       expect(r32.health.events[0].kind).toBe('asymmetry');
@@ -88,22 +88,22 @@ test('float32 emulation over 1e6 samples at λ = 0.99 (coloured input): QR forms
   console.log(`finite precision, M=8, λ=0.99, AR(1) a=0.9, N=1e6:\n${lines.join('\n')}`);
 });
 
-test('legacy RLS in float64 at λ = 0.999 loses symmetry and then definiteness within 1e5 samples, flagged with the indices; the symmetrised form does not', () => {
+test('RLS in its unsymmetrised textbook form (rls-textbook), float64 at λ = 0.999 loses symmetry and then definiteness within 1e5 samples, flagged with the indices; the symmetrised form does not', () => {
   const res = JSON.parse(
     runInChild(CHILD, [
       JSON.stringify([100_000, 8, 0.999, 7001]),
-      JSON.stringify(['rls', 'rls-legacy'])
+      JSON.stringify(['rls', 'rls-textbook'])
     ])
   ) as Record<string, Res>;
-  const legacy = res['rls-legacy/float64'];
+  const textbook = res['rls-textbook/float64'];
   const sym = res['rls/float64'];
   console.log(
-    `λ=0.999 float64, 1e5 samples: legacy ${describeRun(legacy)}; symmetrised ${describeRun(sym)}`
+    `λ=0.999 float64, 1e5 samples: textbook form ${describeRun(textbook)}; symmetrised ${describeRun(sym)}`
   );
-  expectFlagged(legacy);
-  expect(legacy.health.status).toBe('failed');
-  expect(legacy.health.events[0].kind).toBe('asymmetry');
-  const indef = legacy.health.events.find(e => e.kind === 'indefinite');
+  expectFlagged(textbook);
+  expect(textbook.health.status).toBe('failed');
+  expect(textbook.health.events[0].kind).toBe('asymmetry');
+  const indef = textbook.health.events.find(e => e.kind === 'indefinite');
   expect(indef !== undefined && indef.index < 100_000).toBe(true);
   expect(sym.health.status).toBe('ok');
 });

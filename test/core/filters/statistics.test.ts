@@ -30,7 +30,7 @@ function ensemble(
   N: number,
   eig: number[],
   sigmaV: number,
-  options: Omit<FilterOptions, 'order'>,
+  options: Omit<FilterOptions, 'taps'>,
   transversal = false,
   stopOnFailure = false
 ): Ens {

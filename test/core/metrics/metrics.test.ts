@@ -85,7 +85,7 @@ test('runTrials runs K independent filters and averages their curves', () => {
       d[k * N + i] = x[k * N + i] - 0.5 * (i > 0 ? x[k * N + i - 1] : 0) + 0.01 * rng.gauss();
     }
   }
-  const res = runTrials(x, d, K, { algorithm: 'rls', order: M, lambda: 1, delta: 1e-3 });
+  const res = runTrials(x, d, K, { algorithm: 'rls', taps: M, lambda: 1, delta: 1e-3 });
   expect(res.curve.K).toBe(K);
   expect(res.weights[0]).toBeCloseTo(1, 2);
   expect(res.weights[1]).toBeCloseTo(-0.5, 2);

@@ -79,7 +79,7 @@ describe('notebook metadata of the workbench', () => {
             'qr-rls',
             'inverse-qr-rls',
             'rls',
-            'rls-legacy',
+            'rls-textbook',
             'lms' as const
           ),
           title: fc.string({ maxLength: 120 }).filter(s => !hasControl(s)),
