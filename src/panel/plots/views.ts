@@ -317,7 +317,7 @@ function responseView(trans: Trans, run: Run, s: PlotSettings): PlotSpec {
   const wArr = need(run, 'weights');
   const M = wArr.shape[wArr.shape.length - 1];
   const w = wArr.data.subarray(0, (wArr.complex ? 2 : 1) * M);
-  const r = firResponse(w, { complex: wArr.complex, n: s.responsePoints });
+  const r = firResponse(w, { complex: wArr.complex, points: s.responsePoints + 1 });
   const f = frequencyAxis(trans, run.fs);
   const x = new Float64Array(r.frequency.length);
   for (let k = 0; k < x.length; k++) {
