@@ -105,7 +105,7 @@ async function main(): Promise<void> {
     trajectory: new Float64Array(0),
     trajectoryIndex: new Float64Array(0)
   };
-  const filt = createFilter({ algorithm: 'qr-rls', order: M, lambda: 0.999, delta: 0.01 });
+  const filt = createFilter({ algorithm: 'qr-rls', taps: M, lambda: 0.999, delta: 0.01 });
   for (let k = 0; k < 40; k++) {
     filt.process(x.subarray(0, 5000), d.subarray(0, 5000), out);
   }

@@ -117,10 +117,10 @@ function cancellerRun(id, algorithm, extra) {
   const t0 = performance.now();
   const r = runFilter(hum, d, {
     algorithm,
-    order: params.taps,
+    taps: params.taps,
     lambda: params.lambda,
     mu: params.mu,
-    decimation: params.keepEvery
+    keepWeightsEvery: params.keepEvery
   });
   const ms = performance.now() - t0;
   const e = Float64Array.from(r.e);
@@ -230,7 +230,7 @@ function equalizerRun() {
   const train = 500;
   const r = equalize(x, s.subarray(0, 2 * train), {
     algorithm: 'qr-rls',
-    order: 11,
+    taps: 11,
     complex: true,
     delay: 5,
     lambda: 0.99,

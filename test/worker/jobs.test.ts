@@ -61,7 +61,14 @@ const run = (spec: AdaptiveFilterSpec, ctx: JobContext = directContext) =>
   runJob(spec, ctx) as Promise<AdaptiveFilterResult>;
 
 describe('adaptive-filter job', () => {
-  const algorithms: Algorithm[] = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-legacy', 'nlms', 'lms'];
+  const algorithms: Algorithm[] = [
+    'qr-rls',
+    'inverse-qr-rls',
+    'rls',
+    'rls-textbook',
+    'nlms',
+    'lms'
+  ];
   test.each(algorithms)(
     '%s, real float64, chunked: bit for bit the core one-shot run',
     async alg => {
@@ -84,10 +91,10 @@ describe('adaptive-filter job', () => {
       const r = await run(spec);
       const ref = runFilter(x, d, {
         algorithm: alg,
-        order: 6,
+        taps: 6,
         lambda: 0.995,
         mu: alg === 'lms' ? 0.02 : 0.5,
-        decimation: 7
+        keepWeightsEvery: 7
       });
       expect(r.output.data).toEqual(ref.y);
       expect(r.error.data).toEqual(ref.e);
@@ -96,7 +103,7 @@ describe('adaptive-filter job', () => {
       expect(r.trajectory!.data).toEqual(ref.trajectory);
       expect(r.trajectoryIndex).toEqual(ref.trajectoryIndex);
       expect(r.learningCurve).toEqual(squaredError(ref.e));
-      // the core's health events come through as warnings with their sample index (the legacy
+      // the core's health events come through as warnings with their sample index (the textbook
       // RLS loses the symmetry of P: Haykin, Adaptive Filter Theory, 4th ed., §9 (from memory))
       expect(r.warnings.map(w => [w.kind, w.index])).toEqual(
         ref.health.events.map(e => [e.kind, e.index])
@@ -125,7 +132,7 @@ describe('adaptive-filter job', () => {
         precision,
         chunkSize: 100
       });
-      const ref = runFilter(x, d, { algorithm: 'qr-rls', order: 4, complex: true, precision });
+      const ref = runFilter(x, d, { algorithm: 'qr-rls', taps: 4, complex: true, precision });
       expect(r.complex).toBe(true);
       expect(r.output.data).toEqual(Float64Array.from(ref.y));
       expect(r.error.data).toEqual(Float64Array.from(ref.e));
@@ -164,7 +171,7 @@ describe('adaptive-filter job', () => {
     for (const k of [0, K - 1]) {
       const ref = runFilter(x.subarray(k * N, (k + 1) * N), d.subarray(k * N, (k + 1) * N), {
         algorithm: 'qr-rls',
-        order: 4,
+        taps: 4,
         lambda: lam
       });
       expect(r.error.data.subarray(k * N, (k + 1) * N)).toEqual(ref.e);
@@ -206,7 +213,7 @@ describe('adaptive-filter job', () => {
     expect(Math.abs(r.weights.data[1])).toBeLessThan(0.03);
     expect(Math.abs(r.figures.steadyStateMseDb!)).toBeLessThan(0.5); // 10·log10(1) = 0 dB
     const p = linearPrediction(s, 1);
-    const ref = runFilter(p.x, p.d, { algorithm: 'rls', order: 2, lambda: 1 });
+    const ref = runFilter(p.x, p.d, { algorithm: 'rls', taps: 2, lambda: 1 });
     expect(r.error.data).toEqual(ref.e);
   });
 

@@ -100,7 +100,12 @@ test('a job runs in a worker thread; its result equals a direct core call bit fo
     onProgress: q => progress.push(q)
   });
   const r = done(await h.outcome);
-  const ref = runFilter(x, d, { algorithm: 'qr-rls', order: 8, lambda: 0.999, decimation: 100 });
+  const ref = runFilter(x, d, {
+    algorithm: 'qr-rls',
+    taps: 8,
+    lambda: 0.999,
+    keepWeightsEvery: 100
+  });
   expectSameRun(r, ref);
   expect(r.trajectory!.data).toEqual(ref.trajectory);
   // progress came from the chunks, in order, ending at the total
@@ -130,7 +135,7 @@ test('transfer: the spec buffers move to the worker (detached here), results com
   const r = done(await h.outcome);
   expect(x.byteLength).toBe(0); // detached: the buffer went to the worker
   expect(d.byteLength).toBe(0);
-  expectSameRun(r, runFilter(xc, dc, { algorithm: 'qr-rls', order: 8, lambda: 0.999 }));
+  expectSameRun(r, runFilter(xc, dc, { algorithm: 'qr-rls', taps: 8, lambda: 0.999 }));
   expect(r.output.data.buffer.byteLength).toBe(5000 * 8);
 });
 
@@ -191,7 +196,7 @@ test('cancel: a running job stops at a chunk border; a queued job is dropped; th
   const small = data(3000, 5);
   expectSameRun(
     done(await p.run(spec(small.x, small.d)).outcome),
-    runFilter(small.x, small.d, { algorithm: 'qr-rls', order: 8, lambda: 0.999 })
+    runFilter(small.x, small.d, { algorithm: 'qr-rls', taps: 8, lambda: 0.999 })
   );
   expect(p.workers).toBe(1);
 });
@@ -215,7 +220,7 @@ test.each([
     // the next job goes to a fresh worker and succeeds
     expectSameRun(
       done(await p.run(spec(x, d)).outcome),
-      runFilter(x, d, { algorithm: 'qr-rls', order: 8, lambda: 0.999 })
+      runFilter(x, d, { algorithm: 'qr-rls', taps: 8, lambda: 0.999 })
     );
     expect(made).toBe(2);
   }
@@ -285,7 +290,7 @@ test('a sweep runs one job per value on a pool of 2; each equals its direct core
   const outcomes = await sweep.outcome;
   outcomes.forEach((o, k) => {
     const r = done(o);
-    expectSameRun(r, runFilter(x, d, { algorithm: 'qr-rls', order: 8, lambda: lambdas[k] }));
+    expectSameRun(r, runFilter(x, d, { algorithm: 'qr-rls', taps: 8, lambda: lambdas[k] }));
   });
 });
 

@@ -35,14 +35,14 @@ import type { JobContext } from './context';
 export function filterOptions(spec: AdaptiveFilterSpec, complex: boolean): FilterOptions {
   return {
     algorithm: spec.algorithm,
-    order: spec.taps,
+    taps: spec.taps,
     complex,
     precision: spec.precision,
     lambda: spec.lambda,
     delta: spec.delta,
     mu: spec.mu,
     epsilon: spec.epsilon,
-    decimation: spec.keepEvery ?? 0
+    keepWeightsEvery: spec.keepEvery ?? 0
   };
 }
 
@@ -143,7 +143,7 @@ export async function runAdaptiveFilter(
   const f32 = probe.f32;
   const W = complex ? 2 : 1;
   const L = probe.weightLength;
-  const keep = opts.decimation ?? 0;
+  const keep = opts.keepWeightsEvery ?? 0;
   const rows = keep > 0 ? Math.floor(N / keep) : 0;
   const chunk = spec.chunkSize === undefined ? defaultChunk(spec) : checkChunk(spec.chunkSize);
   const y = new Float64Array(K * N * W);

@@ -7,7 +7,7 @@ import type { Algorithm } from '../../core/filters';
 import type { AdaptiveFilterSpec, SweepSpec } from '../protocol';
 
 const NUMERIC = ['taps', 'lambda', 'delta', 'mu', 'epsilon'];
-const ALGORITHMS: Algorithm[] = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-legacy', 'nlms', 'lms'];
+const ALGORITHMS: Algorithm[] = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-textbook', 'nlms', 'lms'];
 
 function cloneArrays<T>(v: T): T {
   if (v === null || typeof v !== 'object') {
