@@ -50,10 +50,32 @@ export function comparable(runs: ReadonlyArray<Run>): Run[] {
   return runs.filter(r => r.params.tool === 'adaptive' && r.arrays.learningCurve !== undefined);
 }
 
+/**
+ * Each run's label, numbered "(1)", "(2)", … where several runs share one (two runs of one
+ * set-up), so the legend and the table tell them apart.
+ */
+export function distinctLabels(runs: ReadonlyArray<Run>): string[] {
+  const total = new Map<string, number>();
+  for (const r of runs) {
+    total.set(r.label, (total.get(r.label) ?? 0) + 1);
+  }
+  const seen = new Map<string, number>();
+  return runs.map(r => {
+    if ((total.get(r.label) ?? 0) < 2) {
+      return r.label;
+    }
+    const k = (seen.get(r.label) ?? 0) + 1;
+    seen.set(r.label, k);
+    return `${r.label} (${k})`;
+  });
+}
+
 export function compareRows(runs: ReadonlyArray<Run>): CompareRow[] {
-  return comparable(runs).map(r => ({
+  const list = comparable(runs);
+  const labels = distinctLabels(list);
+  return list.map((r, i) => ({
     id: r.id,
-    label: r.label,
+    label: labels[i],
     convergenceSamples: fig(r, 'convergenceSamples'),
     convergenceSeconds: fig(r, 'convergenceSeconds'),
     steadyStateMseDb: fig(r, 'steadyStateMseDb'),
@@ -118,11 +140,12 @@ export function compareSpec(
     t.unit,
     trans.__('squared error (dB)')
   );
+  const labels = distinctLabels(list);
   list.forEach((r, i) => {
     const lc = r.arrays.learningCurve.data;
     const data = w > 1 ? movingAverage(lc, w) : lc;
     spec.lines.push({
-      name: r.label,
+      name: labels[i],
       signal: { data, complex: false, n: data.length, stride: 1, offset: 0 },
       part: 'real',
       db: true,

@@ -72,3 +72,16 @@ test('learning curves overlaid, each named by its run, in seconds for a common r
   expect(mixed.xTitle).toBe('sample n');
   expect(mixed.note).toMatch(/different sample rates/);
 });
+
+test('runs sharing a label are numbered in the legend and the table', () => {
+  const again = { ...a, id: 'a2' };
+  expect(compareSpec(trans, [a, b, again], 1).lines.map(l => l.name)).toEqual([
+    'RLS · M 4 · λ 0.99 (1)',
+    'NLMS · M 4 · μ 0.5',
+    'RLS · M 4 · λ 0.99 (2)'
+  ]);
+  expect(compareRows([a, again]).map(r => r.label)).toEqual([
+    'RLS · M 4 · λ 0.99 (1)',
+    'RLS · M 4 · λ 0.99 (2)'
+  ]);
+});
