@@ -121,13 +121,20 @@ export function legendRows(data: PlotObject[], fontSize: number, width: number):
   return rows;
 }
 
+/** y-ranges the user zoomed to, by axis; an axis left out autoranges. */
+export interface YRanges {
+  yaxis?: XRange;
+  yaxis2?: XRange;
+}
+
 /** plotly data and layout of a spec. `range` is the visible x-range (null: all). */
 export function buildFigure(
   spec: PlotSpec,
   theme: PlotTheme,
   range: XRange,
   columns: number,
-  size: { width: number; height: number }
+  size: { width: number; height: number },
+  yRanges: YRanges = {}
 ): Figure {
   const data: PlotObject[] = [
     ...spec.lines.map(l => lineTrace(l, theme, range, columns)),
@@ -152,6 +159,13 @@ export function buildFigure(
     autorange: true,
     domain: two ? [0.45, 1] : [0, 1]
   };
+  const fixY = (axis: PlotObject, r: XRange | undefined): void => {
+    if (r) {
+      axis.range = [r[0], r[1]];
+      axis.autorange = false;
+    }
+  };
+  fixY(yaxis, yRanges.yaxis);
   if (spec.equalAxes) {
     yaxis.scaleanchor = 'x';
     yaxis.scaleratio = 1;
@@ -186,6 +200,7 @@ export function buildFigure(
       domain: [0, 0.38],
       anchor: 'x'
     };
+    fixY(layout.yaxis2 as PlotObject, yRanges.yaxis2);
   }
   const shapes: PlotObject[] = [];
   const annotations: PlotObject[] = [];

@@ -5,28 +5,31 @@
  * the graph on dispose. It holds no DOM of its own beyond the node it is given.
  */
 import type { IDisposable } from '@lumino/disposable';
-import { buildFigure, figureCsv, plotAreaWidth } from './figure';
+import { buildFigure, figureCsv, plotAreaWidth, type YRanges } from './figure';
 import type { XRange } from './lines';
 import type { LoadPlotly, PlotlyGraph, PlotlyLike } from './plotly';
 import { columnsFor, type PlotSettings } from './settings';
 import type { PlotSpec } from './spec';
 import type { PlotTheme } from './theme';
 
-/** The x-range a `plotly_relayout` event sets: a range, null (autorange), or undefined (none). */
-export function relayoutRange(ev: unknown): XRange | undefined {
+/**
+ * The range a `plotly_relayout` event sets on an axis ('xaxis', 'yaxis', 'yaxis2'): a range,
+ * null (autorange), or undefined (the event leaves the axis alone).
+ */
+export function relayoutRange(ev: unknown, axis = 'xaxis'): XRange | undefined {
   if (!ev || typeof ev !== 'object') {
     return undefined;
   }
   const e = ev as Record<string, unknown>;
-  if (e['xaxis.autorange'] === true) {
+  if (e[`${axis}.autorange`] === true) {
     return null;
   }
-  const a = e['xaxis.range[0]'];
-  const b = e['xaxis.range[1]'];
+  const a = e[`${axis}.range[0]`];
+  const b = e[`${axis}.range[1]`];
   if (typeof a === 'number' && typeof b === 'number') {
     return [a, b];
   }
-  const r = e['xaxis.range'];
+  const r = e[`${axis}.range`];
   if (Array.isArray(r) && typeof r[0] === 'number' && typeof r[1] === 'number') {
     return [r[0], r[1]];
   }
@@ -53,12 +56,18 @@ export class PlotDriver implements IDisposable {
     if (s !== this._spec) {
       this._spec = s;
       this._range = null;
+      this._yRanges = {};
     }
   }
 
   /** The visible x-range (null: everything). */
   get range(): XRange {
     return this._range;
+  }
+
+  /** y-ranges the user zoomed to (an axis left out autoranges). */
+  get yRanges(): YRanges {
+    return this._yRanges;
   }
 
   set settings(s: PlotSettings) {
@@ -146,7 +155,14 @@ export class PlotDriver implements IDisposable {
       return;
     }
     this._columns = columnsFor(plotAreaWidth(this._size.width), this._settings.pointsPerPixel);
-    const fig = buildFigure(this._spec, this._theme, this._range, this._columns, this._size);
+    const fig = buildFigure(
+      this._spec,
+      this._theme,
+      this._range,
+      this._columns,
+      this._size,
+      this._yRanges
+    );
     await plotly.react(this._node, fig.data, fig.layout, {
       displaylogo: false,
       responsive: false,
@@ -163,8 +179,18 @@ export class PlotDriver implements IDisposable {
   }
 
   private _onRelayout(ev: unknown): void {
-    const r = relayoutRange(ev);
-    if (r === undefined || this._disposed) {
+    if (this._disposed) {
+      return;
+    }
+    // y zooms are kept so that later redraws (resize, theme, new data) do not undo them.
+    for (const axis of ['yaxis', 'yaxis2'] as const) {
+      const y = relayoutRange(ev, axis);
+      if (y !== undefined) {
+        this._yRanges = { ...this._yRanges, [axis]: y };
+      }
+    }
+    const r = relayoutRange(ev, 'xaxis');
+    if (r === undefined) {
       return;
     }
     this._range = r;
@@ -181,6 +207,7 @@ export class PlotDriver implements IDisposable {
   private _plotly: PlotlyLike | null = null;
   private _spec: PlotSpec | null = null;
   private _range: XRange = null;
+  private _yRanges: YRanges = {};
   private _theme: PlotTheme | null = null;
   private _size: { width: number; height: number } | null = null;
   private _columns = 0;

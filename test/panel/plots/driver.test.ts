@@ -38,6 +38,7 @@ test('relayout events: a range, autorange, or nothing for the x-axis', () => {
   expect(relayoutRange({ 'xaxis.autorange': true })).toBeNull();
   expect(relayoutRange({ 'yaxis.range[0]': 1 })).toBeUndefined();
   expect(relayoutRange(null)).toBeUndefined();
+  expect(relayoutRange({ 'yaxis2.range[0]': -1, 'yaxis2.range[1]': 1 }, 'yaxis2')).toEqual([-1, 1]);
 });
 
 test('nothing to draw loads nothing', async () => {
@@ -101,6 +102,32 @@ test('exports go through plotly; dispose purges and stops listening', async () =
   expect(driver.isDisposed).toBe(true);
   driver.dispose();
   expect(plotly.purged).toBe(1);
+});
+
+test('a y zoom is kept through later redraws until autorange', async () => {
+  const { driver, plotly } = setup();
+  driver.spec = buildView(
+    trans,
+    cancellationRun(5000, null),
+    'signals',
+    DEFAULT_VIEW_OPTIONS,
+    DEFAULT_PLOT_SETTINGS
+  );
+  await driver.draw(theme, size);
+  const fire = plotly.handlers.get('plotly_relayout');
+  fire?.({
+    'xaxis.range[0]': 100,
+    'xaxis.range[1]': 200,
+    'yaxis.range[0]': -0.5,
+    'yaxis.range[1]': 0.5
+  });
+  await flush();
+  await driver.draw(theme, { width: 700, height: 400 }); // a resize
+  expect(plotly.last.layout.yaxis).toMatchObject({ range: [-0.5, 0.5], autorange: false });
+  fire?.({ 'xaxis.autorange': true, 'yaxis.autorange': true });
+  await flush();
+  expect(plotly.last.layout.yaxis).toMatchObject({ autorange: true });
+  expect((plotly.last.layout.yaxis as Record<string, unknown>).range).toBeUndefined();
 });
 
 test('a new spec resets the zoom; a redraw takes the latest size', async () => {
