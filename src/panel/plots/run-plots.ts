@@ -17,6 +17,7 @@ import {
   DEFAULT_VIEW_OPTIONS,
   defaultSmoothing,
   parseTaps,
+  rowsOf,
   spectrumRequests,
   spectrumSpec,
   type ComputePsd,
@@ -183,7 +184,7 @@ export class RunPlots extends Widget {
     key: NonNullable<RunPlots['_shown']>,
     compute: ComputePsd
   ): Promise<void> {
-    const requests = spectrumRequests(this._trans, run, this._settings);
+    const requests = spectrumRequests(this._trans, run, this._settings, this._options.row);
     this._pane.show(null);
     this._pane.status.textContent = this._trans.__('Computing the spectrum…');
     const results = await Promise.all(requests.map(r => compute(r.signal, r.options)));
@@ -223,6 +224,8 @@ export class RunPlots extends Widget {
     }
     if (view === 'learning') {
       controls.append(this._smoothingControl(run));
+    } else if (view !== 'energy' && view !== 'angles' && rowsOf(run) > 1) {
+      controls.append(this._rowControl(rowsOf(run)));
     }
     if (view === 'trajectories' && run.arrays.trajectory) {
       const t = run.arrays.trajectory;
@@ -279,6 +282,31 @@ export class RunPlots extends Widget {
         return;
       }
       this._setOptions({ smoothing: v });
+    });
+    label.append(input);
+    return label;
+  }
+
+  private _rowControl(rows: number): HTMLElement {
+    const trans = this._trans;
+    const label = document.createElement('label');
+    label.className = 'pp-Plots-control';
+    label.append(trans.__('Row') + ' ');
+    const input = document.createElement('input');
+    input.type = 'number';
+    input.min = '1';
+    input.max = String(rows);
+    input.step = '1';
+    input.className = 'jp-mod-styled pp-Plots-number';
+    input.value = String(Math.min(this._options.row, rows - 1) + 1);
+    input.title = trans.__('Which trial or channel of the K×N results to draw (1 to %1)', rows);
+    input.addEventListener('change', () => {
+      const v = Number(input.value);
+      if (!Number.isSafeInteger(v) || v < 1 || v > rows) {
+        this._pane.showError(trans.__('Row must be a whole number from 1 to %1.', rows));
+        return;
+      }
+      this._setOptions({ row: v - 1 });
     });
     label.append(input);
     return label;

@@ -14,7 +14,7 @@ import {
 } from '../../core';
 import type { Trans } from '../../model/workbench/rules';
 import type { ResultArray, Run } from '../../model/workbench/runs';
-import { rowCount, rowOf, type LinePart, type LineSource } from './lines';
+import { rowCount, rowOf, type LinePart, type LineSignal, type LineSource } from './lines';
 import type { PlotSettings } from './settings';
 import { emptySpec, type MarkerLine, type PlotSpec } from './spec';
 
@@ -38,13 +38,35 @@ export interface ViewOptions {
   smoothing: number | null;
   /** Taps whose trajectories are drawn (null: the first four). */
   taps: number[] | null;
+  /** Row (trial or channel, from 0) of K×N results drawn; arrays with fewer rows use their last. */
+  row: number;
 }
 
 export const DEFAULT_VIEW_OPTIONS: ViewOptions = {
   complexAs: 'polar',
   smoothing: null,
-  taps: null
+  taps: null,
+  row: 0
 };
+
+/** Row `row` of an array, or its last row when it has fewer (a 1-D input beside K×N results). */
+function rowIn(a: ResultArray, row: number): LineSignal {
+  return rowOf(a, Math.max(0, Math.min(row, rowCount(a) - 1)));
+}
+
+/** Most rows (trials or channels) among a run's result arrays and inputs. */
+export function rowsOf(run: Run): number {
+  let k = 1;
+  for (const a of [...Object.values(run.arrays), ...Object.values(run.inputs)]) {
+    if (a.shape.length > 1 && a !== run.arrays.trajectory) {
+      k = Math.max(k, rowCount(a));
+    }
+  }
+  if (run.arrays.trajectory && run.arrays.trajectory.shape.length > 2) {
+    k = Math.max(k, run.arrays.trajectory.shape[0]);
+  }
+  return k;
+}
 
 /** The tab label of a view. */
 export function viewLabel(trans: Trans, v: ViewKind): string {
@@ -210,7 +232,7 @@ function signalsView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
   }
   series.forEach((s, i) => {
     const [p1, p2] = parts(s.a.complex, o.complexAs);
-    const signal = rowOf(s.a, 0);
+    const signal = rowIn(s.a, o.row);
     spec.lines.push({ name: s.name, signal, part: p1, dx: t.dx, color: i });
     if (p2) {
       spec.lines.push({
@@ -227,7 +249,7 @@ function signalsView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
     }
   });
   if (series.some(s => rowCount(s.a) > 1)) {
-    spec.note = trans.__('Each array has several rows; the first row (trial or channel) is drawn.');
+    spec.note = trans.__('Row %1 of the results (trial or channel).', o.row + 1);
   }
   return spec;
 }
@@ -313,10 +335,12 @@ function learningView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
   return spec;
 }
 
-function responseView(trans: Trans, run: Run, s: PlotSettings): PlotSpec {
+function responseView(trans: Trans, run: Run, o: ViewOptions, s: PlotSettings): PlotSpec {
   const wArr = need(run, 'weights');
   const M = wArr.shape[wArr.shape.length - 1];
-  const w = wArr.data.subarray(0, (wArr.complex ? 2 : 1) * M);
+  const W = wArr.complex ? 2 : 1;
+  const row = Math.max(0, Math.min(o.row, rowCount(wArr) - 1));
+  const w = wArr.data.subarray(row * W * M, (row + 1) * W * M);
   const r = firResponse(w, { complex: wArr.complex, points: s.responsePoints + 1 });
   const f = frequencyAxis(trans, run.fs);
   const x = new Float64Array(r.frequency.length);
@@ -333,7 +357,7 @@ function responseView(trans: Trans, run: Run, s: PlotSettings): PlotSpec {
   spec.traces.push({ name: trans.__('|H|'), kind: 'line', x, y: r.magnitudeDb, color: 0 });
   spec.traces.push({ name: trans.__('arg H'), kind: 'line', x, y: r.phase, color: 1, lower: true });
   if (rowCount(wArr) > 1) {
-    spec.note = trans.__('Weights of the first trial.');
+    spec.note = trans.__('Final weights of row %1 (trial or channel).', row + 1);
   }
   return spec;
 }
@@ -361,7 +385,9 @@ function trajectoriesView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
   }
   const [p1, p2] = parts(tr.complex, o.complexAs);
   taps.forEach((k, i) => {
-    const signal = { data: tr.data, complex: tr.complex, n: rows, stride: M, offset: k };
+    const K = tr.shape.length > 2 ? tr.shape[0] : 1;
+    const base = Math.max(0, Math.min(o.row, K - 1)) * rows * M;
+    const signal = { data: tr.data, complex: tr.complex, n: rows, stride: M, offset: base + k };
     const name = trans.__('w%1', k);
     spec.lines.push({ name, signal, part: p1, dx: t.dx, xTable, color: i });
     if (p2) {
@@ -397,7 +423,7 @@ export type ComputePsd = (
 ) => PsdResult | Promise<PsdResult>;
 
 /** The estimates the spectrum view of a run needs: before (when known) and after. */
-export function spectrumRequests(trans: Trans, run: Run, s: PlotSettings): PsdRequest[] {
+export function spectrumRequests(trans: Trans, run: Run, s: PlotSettings, row = 0): PsdRequest[] {
   const before = beforeOf(run);
   const after =
     run.params.tool === 'adaptive'
@@ -406,7 +432,7 @@ export function spectrumRequests(trans: Trans, run: Run, s: PlotSettings): PsdRe
   const fs = run.fs !== null && run.fs > 0 ? run.fs : null;
   const list = before ? [{ array: before.array, name: trans.__(before.name) }, after] : [after];
   return list.map(item => {
-    const sig = rowOf(item.array, 0);
+    const sig = rowIn(item.array, row);
     return {
       name: item.name,
       signal: {
@@ -463,8 +489,8 @@ export function spectrumSpec(
   return spec;
 }
 
-function spectrumView(trans: Trans, run: Run, s: PlotSettings): PlotSpec {
-  const requests = spectrumRequests(trans, run, s);
+function spectrumView(trans: Trans, run: Run, o: ViewOptions, s: PlotSettings): PlotSpec {
+  const requests = spectrumRequests(trans, run, s, o.row);
   return spectrumSpec(
     trans,
     run,
@@ -522,9 +548,9 @@ function anglesView(trans: Trans, run: Run): PlotSpec {
   return spec;
 }
 
-function constellationView(trans: Trans, run: Run, s: PlotSettings): PlotSpec {
+function constellationView(trans: Trans, run: Run, o: ViewOptions, s: PlotSettings): PlotSpec {
   const y = need(run, 'output');
-  const sig = rowOf(y, 0);
+  const sig = rowIn(y, o.row);
   const train =
     run.params.tool === 'adaptive' ? Math.min(sig.n, Math.max(0, run.params.trainingLength)) : 0;
   const spec = emptySpec(
@@ -574,15 +600,15 @@ export function buildView(
     case 'learning':
       return learningView(trans, run, options);
     case 'response':
-      return responseView(trans, run, settings);
+      return responseView(trans, run, options, settings);
     case 'trajectories':
       return trajectoriesView(trans, run, options);
     case 'spectrum':
-      return spectrumView(trans, run, settings);
+      return spectrumView(trans, run, options, settings);
     case 'energy':
       return energyView(trans, run);
     case 'constellation':
-      return constellationView(trans, run, settings);
+      return constellationView(trans, run, options, settings);
     case 'angles':
       return anglesView(trans, run);
   }

@@ -8,6 +8,7 @@ import {
   defaultSmoothing,
   frequencyAxis,
   parseTaps,
+  rowsOf,
   spectrumRequests,
   spectrumSpec,
   timeAxis,
@@ -243,5 +244,37 @@ describe('energy per direction', () => {
     expect(Array.from(spec.traces[0].y)).toEqual([-3, -12]);
     expect(spec.yTitle).toBe('share of the input energy (dB)');
     expect(spec.note).toBe('Share of the signal kept: 42.5 %.');
+  });
+});
+
+describe('rows of K×N results (trials or channels)', () => {
+  // Two trials of 3 samples, M = 2 taps, trajectories of 2 kept rows per trial.
+  const e = vec(Float64Array.from([1, 2, 3, 10, 20, 30]), false, [2, 3]);
+  const run = makeRun(cancellation({ taps: 2 }), {
+    arrays: {
+      error: e,
+      output: e,
+      weights: vec(Float64Array.from([1, 0, 0, 1]), false, [2, 2]),
+      trajectory: vec(Float64Array.from([1, 2, 3, 4, 5, 6, 7, 8]), false, [2, 2, 2]),
+      trajectoryIndex: vec(Float64Array.from([0, 1]))
+    },
+    inputs: { d: vec(Float64Array.from([5, 5, 5])) }
+  });
+
+  test('the run has as many rows as its largest K×N array', () => {
+    expect(rowsOf(run)).toBe(2);
+    expect(rowsOf(cancellationRun(10, null))).toBe(1);
+  });
+  test('signals: the chosen row of the results beside the 1-D input', () => {
+    const spec = buildView(trans, run, 'signals', { ...O, row: 1 }, S);
+    expect(spec.lines.map(l => l.signal.offset)).toEqual([0, 3, 3]);
+    expect(spec.note).toBe('Row 2 of the results (trial or channel).');
+  });
+  test('weights and trajectories of the chosen row', () => {
+    // w = [0, 1]: H(e^{jω}) = e^{−jω}, |H| = 1 (0 dB) everywhere (Oppenheim and Schafer, §5.1)
+    const r = buildView(trans, run, 'response', { ...O, row: 1 }, { ...S, responsePoints: 4 });
+    expect(Array.from(r.traces[0].y).every(v => Math.abs(v) < 1e-12)).toBe(true);
+    const t = buildView(trans, run, 'trajectories', { ...O, row: 1, taps: [1] }, S);
+    expect(t.lines[0].signal).toMatchObject({ n: 2, stride: 2, offset: 5 });
   });
 });
