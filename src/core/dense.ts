@@ -15,18 +15,16 @@ import { checkInteger, describe } from './errors';
 
 export type Order = 'C' | 'F';
 
+/** A row of nested input: a number[] or a typed array. */
+export type RowLike = readonly number[] | Float64Array | Float32Array;
+
 /**
  * Anything the friendly entry points accept as a matrix: a `Dense` (1-D or 2-D), an ml-matrix
- * `Matrix`, nested number arrays (rows), or a 1-D input — `number[]`, `Float64Array`,
- * `Float32Array` — which counts as one column (real).
+ * `Matrix`, nested rows (each a number[] or a typed array), or a 1-D input — `number[]`,
+ * `Float64Array`, `Float32Array` — which counts as one column (real).
  */
 export type MatrixLike =
-  | Dense
-  | AbstractMatrix
-  | readonly (readonly number[])[]
-  | readonly number[]
-  | Float64Array
-  | Float32Array;
+  Dense | AbstractMatrix | readonly RowLike[] | readonly number[] | Float64Array | Float32Array;
 
 export class Dense {
   /** The underlying storage (interleaved re, im when `complex`). */
@@ -117,12 +115,13 @@ export class Dense {
   }
 
   /**
-   * From nested arrays: `re` is a 1-D or 2-D (rectangular) array of numbers; give `im` of the
-   * same shape for a complex array. Checks finiteness and raggedness.
+   * From nested arrays: `re` is a 1-D array of numbers or a list of rows (number[] or typed
+   * arrays, all of one length); give `im` of the same shape for a complex array. Checks
+   * finiteness and raggedness.
    */
   static fromNested(
-    re: readonly number[] | readonly (readonly number[])[],
-    im?: readonly number[] | readonly (readonly number[])[],
+    re: readonly number[] | readonly RowLike[],
+    im?: readonly number[] | readonly RowLike[],
     order: Order = 'C'
   ): Dense {
     const shapeRe = nestedShape('re', re);
@@ -478,6 +477,10 @@ function stridesEqual(shape: readonly number[], a: readonly number[], b: readonl
   return true;
 }
 
+function isRow(r: unknown): r is RowLike {
+  return Array.isArray(r) || r instanceof Float64Array || r instanceof Float32Array;
+}
+
 function nestedShape(name: string, v: readonly unknown[]): number[] {
   if (!Array.isArray(v)) {
     throw new TypeError(`${name} must be an array of numbers or of rows, got ${describe(v)}`);
@@ -485,7 +488,7 @@ function nestedShape(name: string, v: readonly unknown[]): number[] {
   if (v.length === 0) {
     throw new RangeError(`${name} is empty; give at least one element`);
   }
-  if (!Array.isArray(v[0])) {
+  if (!isRow(v[0])) {
     return [v.length];
   }
   const n = (v[0] as unknown[]).length;
@@ -494,7 +497,7 @@ function nestedShape(name: string, v: readonly unknown[]): number[] {
   }
   for (let i = 0; i < v.length; i++) {
     const row = v[i];
-    if (!Array.isArray(row)) {
+    if (!isRow(row)) {
       throw new TypeError(`${name}[${i}] must be an array (a row), got ${describe(row)}`);
     }
     if (row.length !== n) {
@@ -567,7 +570,7 @@ export function isVectorInput(a: unknown): boolean {
   if (a instanceof Float64Array || a instanceof Float32Array) {
     return true;
   }
-  return Array.isArray(a) && a.length > 0 && !Array.isArray(a[0]);
+  return Array.isArray(a) && a.length > 0 && !isRow(a[0]);
 }
 
 /** An n×1 result as a 1-D view of the same data (unchanged when it has more columns). */

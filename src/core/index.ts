@@ -11,6 +11,7 @@ export {
   toDense,
   checkFiniteDense,
   type MatrixLike,
+  type RowLike,
   type Order
 } from './dense';
 export * from './linalg';

@@ -108,6 +108,12 @@ export function ensembleAverage(
     rows = curves as ArrayLike<number>[];
   } else {
     const flat = curves as ArrayLike<number>;
+    if (options.K === undefined) {
+      throw new TypeError(
+        `options.K must be an integer (the number of trials) when curves is one flat K×N ` +
+          `array, got undefined; or pass the curves as a list of K arrays`
+      );
+    }
     const K = checkInteger('options.K', options.K, 1);
     if (flat.length % K !== 0) {
       throw new RangeError(`curves has ${flat.length} values, not a multiple of K = ${K}`);

@@ -7,6 +7,7 @@
 import {
   Dense,
   createFilter,
+  ensembleAverage,
   learningCurve,
   runFilter,
   runTrials,
@@ -124,4 +125,12 @@ describe('one signal where one is expected', () => {
       /^e\[1\] must be a number, got "x"/
     );
   });
+});
+
+test('ensembleAverage of one flat array without K says what K is and the other layout', () => {
+  expect(() => ensembleAverage(Float64Array.of(1, 2, 3, 4))).toThrow(
+    /^options.K must be an integer \(the number of trials\) when curves is one flat K×N array, got undefined; or pass the curves as a list of K arrays/
+  );
+  // mean of the rows (1, 2) and (3, 4): (2, 3) (common practice)
+  expect(Array.from(ensembleAverage(Float64Array.of(1, 2, 3, 4), { K: 2 }).mean)).toEqual([2, 3]);
 });

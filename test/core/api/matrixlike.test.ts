@@ -186,3 +186,16 @@ test('diagonal is a property on PivotedQR as on the results of orth, nullSpace a
   expect(f.diagonal[2]).toBeLessThanOrEqual(f.tol); // the rank gap
   expect(f.rank).toBe(2);
 });
+
+test('a list of typed-array rows is a matrix like nested number arrays', () => {
+  // Strang 4e §4.3 again, the rows of A as Float64Arrays and Float32Arrays.
+  const rows = [Float64Array.of(1, 0), Float32Array.of(1, 1), Float64Array.of(1, 2)];
+  const r = lstsq(rows, [6, 0, 0]);
+  expect(r.x.get(0)).toBeCloseTo(5, 13);
+  expect(r.x.get(1)).toBeCloseTo(-3, 13);
+  expect(Dense.fromNested(rows).get(2, 1)).toBe(2);
+  expect(() => lstsq([Float64Array.of(1, 0), Float64Array.of(1)], [1, 2])).toThrow(
+    /^a is ragged: row 1 has 1 entries but row 0 has 2/
+  );
+  expect(() => orth([Float64Array.of(1, NaN)])).toThrow(/^b\[0\]\[1\] is NaN/);
+});
