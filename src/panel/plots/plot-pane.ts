@@ -153,6 +153,10 @@ export class PlotPane {
       cancelAnimationFrame(this._frame);
       this._frame = 0;
     }
+    if (this._themeTimer !== null) {
+      clearTimeout(this._themeTimer);
+      this._themeTimer = null;
+    }
     this._themeChanged?.disconnect(this._onTheme, this);
     this._themeObserver?.disconnect();
     this._resizeObserver?.disconnect();
@@ -187,6 +191,15 @@ export class PlotPane {
 
   private _onTheme(): void {
     this.redraw();
+    // The new theme's stylesheet may still be loading when the signal fires: draw once more
+    // when it has surely applied.
+    if (this._themeTimer !== null) {
+      clearTimeout(this._themeTimer);
+    }
+    this._themeTimer = setTimeout(() => {
+      this._themeTimer = null;
+      this.redraw();
+    }, 500);
   }
 
   private _fail(err: unknown): void {
@@ -205,6 +218,7 @@ export class PlotPane {
   private _themeObserver: MutationObserver | null = null;
   private _resizeObserver: ResizeObserver | null = null;
   private _frame = 0;
+  private _themeTimer: ReturnType<typeof setTimeout> | null = null;
   private _stale = false;
   private _loaded = false;
   private _disposed = false;
