@@ -47,7 +47,10 @@ export function spectrogram(x: unknown, options: SpectrogramOptions = {}): Spect
   const store = new Float64Array(K * nseg);
   powerSegments(sig, plan, null, store);
   const rows = plan.nfreq;
-  const sxx = new Float64Array(rows * nseg);
+  // rows in FFT order (one-sided, or two-sided 'fft'): scale the stored powers in place;
+  // 'ascending' reorders the rows into a new array
+  const inPlace = plan.onesided || plan.order === 'fft';
+  const sxx = inPlace ? store : new Float64Array(rows * nseg);
   for (let i = 0; i < rows; i++) {
     const k = binOf(plan, i);
     const f = plan.scale * sideFactor(plan, k);

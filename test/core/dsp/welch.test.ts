@@ -132,6 +132,14 @@ test("'ascending' order is numpy.fft.fftshift of the 'fft' order; float32 input 
   for (let i = 0; i < 64; i++) {
     expect(Math.abs(c.csd[2 * i] - b.psd[i])).toBeLessThan(1e-15 * Math.max(...b.psd));
   }
+  const sa = spectrogram(z, { complex: true, nperseg: 64 });
+  const sb = spectrogram(z, { complex: true, nperseg: 64, order: 'ascending' });
+  expect([sb.rows, sb.cols]).toEqual([64, sa.cols]);
+  for (let i = 0; i < 64; i++) {
+    for (let s = 0; s < sa.cols; s++) {
+      expect(sb.sxx[i * sb.cols + s]).toBe(sa.sxx[((i + 32) % 64) * sa.cols + s]);
+    }
+  }
   const x32 = Float32Array.from(rng.gaussArray(900));
   const x64 = Float64Array.from(x32);
   expect(Array.from(welch(x32, { nperseg: 100 }).psd)).toEqual(
