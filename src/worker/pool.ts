@@ -210,7 +210,8 @@ export class WorkerPool {
       transfer?: boolean;
     } = {}
   ): SweepHandle {
-    const specs = expandSweep(sweep);
+    // each job's buffers are copied at postMessage anyway; own copies only when they move
+    const specs = expandSweep(sweep, { copyData: options.transfer === true });
     const jobs = specs.map((spec, k) =>
       this.run(spec, {
         transfer: options.transfer,

@@ -294,6 +294,29 @@ test('a sweep runs one job per value on a pool of 2; each equals its direct core
   });
 });
 
+test('a sweep with transfer hands over copies: the caller’s arrays stay whole', async () => {
+  const { x, d } = data(3000, 12);
+  const p = pool({ size: 2 });
+  const sweep = p.runSweep(
+    { kind: 'sweep', base: spec(x, d), parameter: 'taps', values: [2, 4] },
+    { transfer: true }
+  );
+  const outcomes = await sweep.outcome;
+  expect(x.length).toBe(3000);
+  expect(d.length).toBe(3000);
+  outcomes.forEach((o, k) => {
+    expectSameRun(
+      done(o),
+      runFilter(x, d, { algorithm: 'qr-rls', order: [2, 4][k], lambda: 0.999 })
+    );
+  });
+  // the specs' own buffers went to the workers
+  for (const s of sweep.specs) {
+    const c = (s as AdaptiveFilterSpec).configuration as { reference: ArrayData };
+    expect(c.reference.data.byteLength).toBe(0);
+  }
+});
+
 test('interference job through the worker: harmonic directions in their own order', async () => {
   const fs = 1000;
   const N = 1000;
