@@ -28,7 +28,11 @@ export interface PoolOptions {
   size?: number;
   /** Refuse a run whose estimated memory (inputs + results) exceeds this (default 1 GiB). */
   memoryLimitBytes?: number;
-  /** How long a running job may take to stop after a cancel before its worker is terminated. */
+  /**
+   * How long (ms) a running job may take to stop after a cancel before its worker is terminated
+   * and replaced (default 500; a filter's chunk takes a few milliseconds, a projection or a
+   * factorisation has no chunk border).
+   */
   cancelGraceMs?: number;
   /** Consecutive workers that may fail before becoming ready before the pool gives up (3). */
   maxStartFailures?: number;
@@ -123,7 +127,7 @@ export class WorkerPool {
     this.size = size;
     this.memoryLimitBytes = limit;
     this._create = options.createTransport;
-    this._grace = options.cancelGraceMs ?? 1000;
+    this._grace = options.cancelGraceMs ?? 500;
     this._maxStartFailures = options.maxStartFailures ?? 3;
   }
 

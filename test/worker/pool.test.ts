@@ -294,6 +294,28 @@ test('a sweep runs one job per value on a pool of 2; each equals its direct core
   });
 });
 
+test('a job with no chunk border in sight is stopped by terminating its worker', async () => {
+  // a pivoted QR of a 1000×1000 matrix runs between two checkpoints of the basis job
+  const rng = new Rng(13);
+  const A = rng.gaussArray(1000 * 1000);
+  let made = 0;
+  const p = pool({
+    cancelGraceMs: 20,
+    createTransport: () => {
+      made++;
+      return nodeTransport(shim);
+    }
+  });
+  const h = p.run(
+    { kind: 'basis', matrix: arr(A, [1000, 1000]) },
+    { onProgress: () => h.cancel() }
+  );
+  expect(await h.outcome).toMatchObject({ status: 'cancelled' });
+  const { x, d } = data(500, 14);
+  done(await p.run(spec(x, d)).outcome);
+  expect(made).toBe(2); // the stuck worker was replaced
+});
+
 test('a sweep with transfer hands over copies: the caller’s arrays stay whole', async () => {
   const { x, d } = data(3000, 12);
   const p = pool({ size: 2 });

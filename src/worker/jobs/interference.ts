@@ -55,7 +55,7 @@ function buildBasis(spec: InterferenceSpec, K: number, N: number): Built {
       if (hasAngles === (b.sines !== undefined)) {
         throw new RangeError('steering needs either angles or sines (direction sines), not both');
       }
-      if (signalShape('signal', spec.signal).K < 1 || spec.signal.shape.length !== 2) {
+      if (spec.signal.shape.length !== 2) {
         throw new RangeError(
           'steering vectors need the signal as elements × snapshots (2-D, one row per array element)'
         );
