@@ -31,6 +31,11 @@ const REPEATS = 7;
 const N = 1_000_000;
 const M = 32;
 const GOAL = 0.85;
+/** `--chunk N`: samples per chunk of the job (default: the job's own choice). */
+const CHUNK = (() => {
+  const i = process.argv.indexOf('--chunk');
+  return i > 0 ? Number(process.argv[i + 1]) : undefined;
+})();
 
 /** bench:filters' input and desired signals (bench/filters.ts, timePerpend). */
 function lcg(n: number, seed: number): Float64Array {
@@ -93,7 +98,8 @@ async function main(): Promise<void> {
     algorithm: 'qr-rls',
     taps: M,
     lambda: 0.999,
-    delta: 0.01
+    delta: 0.01,
+    ...(CHUNK ? { chunkSize: CHUNK } : {})
   });
   const inWorker: number[] = [];
   const roundTrip: number[] = [];
@@ -150,6 +156,7 @@ async function main(): Promise<void> {
     worker_ksps: +(N / workerMs).toFixed(1),
     round_trip_ms: +median(roundTrip).toFixed(3),
     worker_vs_core: +ratio.toFixed(3),
+    ...(CHUNK ? { chunk: CHUNK } : {}),
     repeats: REPEATS,
     target: GOAL,
     met: ratio >= GOAL
