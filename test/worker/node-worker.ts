@@ -20,6 +20,8 @@ export interface ShimOptions {
   exitOnRun?: boolean;
   /** Throw an uncaught error when a `run` message arrives. */
   throwOnRun?: boolean;
+  /** Spin for ever when a `run` message arrives: a job that never reaches a chunk border. */
+  spinOnRun?: boolean;
   /** Throw while loading, before `ready`: a worker that cannot start. */
   throwOnLoad?: boolean;
   resourceLimits?: ResourceLimits;
@@ -35,6 +37,7 @@ globalThis.addEventListener = (type, h) => { if (type === 'message') handlers.pu
 parentPort.on('message', data => {
   if (data && data.type === 'run') {
     if (o.exitOnRun) { process.exit(3); }
+    if (o.spinOnRun) { for (;;) {} }
     if (o.throwOnRun) { setImmediate(() => { throw new Error('the worker threw (test shim)'); }); return; }
   }
   for (const h of handlers) h({ data });
