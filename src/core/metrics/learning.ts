@@ -189,6 +189,12 @@ export function misadjustment(steadyMse: number, minMse: number): number {
   if (!(minMse > 0)) {
     throw new RangeError(`minMse must be > 0, got ${describe(minMse)}`);
   }
+  if (!(steadyMse >= 0)) {
+    // a mean-square error is never negative: a negative value is a mix-up (dB given?)
+    throw new RangeError(
+      `steadyMse must be ≥ 0 (a mean-square value, not dB), got ${describe(steadyMse)}`
+    );
+  }
   return (steadyMse - minMse) / minMse;
 }
 

@@ -9,6 +9,7 @@ import {
   createFilter,
   ensembleAverage,
   learningCurve,
+  misadjustment,
   runFilter,
   runTrials,
   squaredError
@@ -133,4 +134,12 @@ test('ensembleAverage of one flat array without K says what K is and the other l
   );
   // mean of the rows (1, 2) and (3, 4): (2, 3) (common practice)
   expect(Array.from(ensembleAverage(Float64Array.of(1, 2, 3, 4), { K: 2 }).mean)).toEqual([2, 3]);
+});
+
+test('misadjustment refuses a negative steady-state MSE (a dB value given by mistake)', () => {
+  // 𝓜 = (J(∞) − J_min)/J_min (Haykin, Adaptive Filter Theory, 4th ed., §5.4)
+  expect(misadjustment(0.011, 0.01)).toBeCloseTo(0.1, 12);
+  expect(() => misadjustment(-20, 0.01)).toThrow(
+    /^steadyMse must be ≥ 0 \(a mean-square value, not dB\), got -20/
+  );
 });
