@@ -5,6 +5,8 @@
  * transfer of buffers, a sweep in parallel, and results equal to a direct core call bit for bit.
  * No timing is asserted (the machine is shared).
  */
+import * as fs from 'fs';
+import * as path from 'path';
 import { runFilter, type FilterRun } from '../../src/core';
 import { WorkerPool, type JobOutcome, type JobProgress } from '../../src/worker/pool';
 import type {
@@ -23,6 +25,11 @@ const pools: WorkerPool[] = [];
 
 beforeAll(() => {
   shim = buildNodeWorker(`pool-${process.pid}`);
+});
+
+afterAll(() => {
+  // the transpiled copy is this run's alone
+  fs.rmSync(path.dirname(shim), { recursive: true, force: true });
 });
 
 afterEach(() => {
