@@ -17,6 +17,7 @@ import { notebookTarget } from './panel/notebook-target';
 import { activeCellOutput, outputUnderContextMenu } from './panel/output-target';
 import { PerpendSidebar } from './panel/sidebar';
 import { perpendIcon } from './panel/icons';
+import workbenchPlugin from './workbench-plugin';
 import { CommandIDs, DEFAULT_SETTINGS, IPerpend, type IPerpendSettings } from './tokens';
 
 const PLUGIN_ID = 'perpend:plugin';
@@ -57,7 +58,7 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
       trans,
       translator,
       commands: app.commands,
-      toolbarCommands: [CommandIDs.refresh]
+      toolbarCommands: [CommandIDs.refresh, 'perpend:open-workbench']
     });
     const perpend = new Private.Perpend(sources, loaded);
     const trusts = (cellId: string, count: number): boolean =>
@@ -169,4 +170,4 @@ namespace Private {
   }
 }
 
-export default plugin;
+export default [plugin, workbenchPlugin] as JupyterFrontEndPlugin<unknown>[];

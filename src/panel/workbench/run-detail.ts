@@ -54,7 +54,10 @@ export class RunDetail extends RenderWidget {
     status.className = 'pp-RunDetail-status';
     status.dataset.status = r.status;
     status.setAttribute('role', 'status');
-    status.textContent = statusText(trans, r);
+    status.textContent =
+      r.computeMs !== null && r.status !== 'reading' && r.status !== 'running'
+        ? trans.__('%1 · %2', statusText(trans, r), formatDuration((r.readMs ?? 0) + r.computeMs))
+        : statusText(trans, r);
     const parts: HTMLElement[] = [head, status];
     if (r.messages.length > 0) {
       const ul = document.createElement('ul');
@@ -84,6 +87,11 @@ export class RunDetail extends RenderWidget {
     table.className = 'pp-RunDetail-figures';
     const cap = document.createElement('caption');
     cap.textContent = trans.__('Key numbers');
+    const note = document.createElement('div');
+    note.className = 'pp-RunDetail-caption';
+    // MSE figures are powers of the data: dB relative to 1 (unit of the data)².
+    note.textContent = trans.__('dB of a power are relative to 1 (unit of the data)²');
+    cap.append(note);
     table.append(cap);
     for (const f of r.figures) {
       const tr = table.insertRow();

@@ -208,7 +208,9 @@ export class SetupEditor extends Widget {
         input.spellcheck = false;
         input.value = this._raw.get(f.path) ?? textOf(f, value);
         input.addEventListener('input', () => this._typed(f, input.value));
-        input.addEventListener('change', () => this._render());
+        // Only the field's own note changes on leaving it: a repaint here would replace the
+        // button the user is clicking.
+        input.addEventListener('change', () => this._markRow(f));
         return input;
       }
       case 'choice': {
@@ -355,6 +357,25 @@ export class SetupEditor extends Widget {
         return;
     }
     this._draft = setPath(this._draft!, f.path, value);
+  }
+
+  /** Shows the field's parse error (or its help) in place, leaving the input alone. */
+  private _markRow(f: FieldSpec): void {
+    const row = this.node.querySelector<HTMLElement>(`.pp-Field[data-path="${f.path}"]`);
+    const note = row?.querySelector<HTMLElement>('.pp-Field-error, .pp-Field-help');
+    const control = row?.querySelector<HTMLElement>('input, select');
+    if (!row || !note || !control) {
+      return;
+    }
+    const message = this._local.get(f.path);
+    row.classList.toggle('pp-mod-invalid', !!message);
+    note.className = message ? 'pp-Field-error' : 'pp-Field-help';
+    note.textContent = message ?? (f.help ? this._trans.__(f.help) : '');
+    if (message) {
+      control.setAttribute('aria-invalid', 'true');
+    } else {
+      control.removeAttribute('aria-invalid');
+    }
   }
 
   private _submit(run: boolean): void {

@@ -19,14 +19,32 @@ export class SetupsView extends RenderWidget {
     this._model = options.model;
     this._actions = options.actions;
     this._model.setupsChanged.connect(this.update, this);
-    this._model.runChanged.connect(this.update, this);
+    this._model.runChanged.connect(this._onRun, this);
     this.update();
   }
 
   dispose(): void {
     this._model.setupsChanged.disconnect(this.update, this);
-    this._model.runChanged.disconnect(this.update, this);
+    this._model.runChanged.disconnect(this._onRun, this);
     super.dispose();
+  }
+
+  /**
+   * Progress of a running run is written into its row in place: repainting the list on every
+   * per cent would replace the Cancel button under the user's pointer.
+   */
+  private _onRun(_: WorkbenchModel, r: Run): void {
+    const row = this.node.querySelector<HTMLElement>(`.pp-RunRow[data-run="${r.id}"]`);
+    if (row && r.status === 'running' && row.dataset.status === 'running') {
+      const bar = row.querySelector('progress');
+      const status = row.querySelector('.pp-RunRow-status');
+      if (bar && status) {
+        bar.value = r.progress;
+        status.textContent = statusText(this._trans, r);
+        return;
+      }
+    }
+    this.update();
   }
 
   /** The run shown in detail (its row is marked). */

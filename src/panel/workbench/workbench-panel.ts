@@ -4,7 +4,7 @@
  * the views to the model and to the actions the plugin provides (write-back, confirmations);
  * it computes nothing.
  */
-import { BoxLayout, SplitPanel, Widget } from '@lumino/widgets';
+import { PanelLayout, SplitPanel, Widget } from '@lumino/widgets';
 import type { TranslationBundle } from '@jupyterlab/translation';
 import { draftFor, type KernelHints, type WorkbenchDefaults } from '../../model/workbench/drafts';
 import { TOOL_LABELS } from '../../model/workbench/fields';
@@ -58,7 +58,7 @@ export class WorkbenchPanel extends Widget {
 
     const right = new Widget();
     right.addClass('pp-Workbench-side');
-    const rightLayout = new BoxLayout({ direction: 'top-to-bottom', spacing: 0 });
+    const rightLayout = new PanelLayout();
     rightLayout.addWidget(this._editor);
     rightLayout.addWidget(this._detail);
     right.layout = rightLayout;
@@ -69,10 +69,8 @@ export class WorkbenchPanel extends Widget {
     split.addWidget(right);
     split.setRelativeSizes([1, 1]);
 
-    const layout = new BoxLayout({ direction: 'top-to-bottom', spacing: 0 });
-    BoxLayout.setStretch(this._header, 0);
-    BoxLayout.setStretch(this._problems, 0);
-    BoxLayout.setStretch(split, 1);
+    // Header and problems in normal flow, the split taking the rest (CSS flex, style/workbench.css).
+    const layout = new PanelLayout();
     layout.addWidget(this._header);
     layout.addWidget(this._problems);
     layout.addWidget(split);
@@ -90,6 +88,8 @@ export class WorkbenchPanel extends Widget {
 
   /** Opens a new set-up of `tool` in the editor, with the defaults filled in. */
   async newSetup(tool: Tool): Promise<void> {
+    // The pickers offer what the kernel holds now.
+    this._host.refresh();
     try {
       this._hints = await this._host.hints();
     } catch {
@@ -238,6 +238,8 @@ export namespace WorkbenchPanel {
     confirmRemove(title: string): Promise<boolean>;
     writeArray(runId: string, key: string): void;
     writeRun?(runId: string): void;
+    /** Lists the notebook's arrays again (for the pickers). */
+    refresh(): void;
     /** What the kernel defines that new set-ups start from (fs, f0). */
     hints(): Promise<KernelHints>;
   }

@@ -1,0 +1,91 @@
+/**
+ * Writing a run's arrays into the notebook's kernel: the name asked in a dialog that checks it
+ * in place, the one replacement question Perpend asks, and the outcome as a notification.
+ */
+import { Dialog, Notification } from '@jupyterlab/apputils';
+import type { TranslationBundle } from '@jupyterlab/translation';
+import type { ArrayData, WriteResult } from '../../bridge';
+import type { ResultArray, Run } from '../../model/workbench/runs';
+import { confirmReplace } from '../actions';
+import { FormDialog } from '../form-dialog';
+import { SaveDialogBody } from '../hum-dialog';
+
+/** What writing needs of the kernel (the notebook's bridge). */
+export interface IKernelWriter {
+  writeArray(
+    name: string,
+    array: ArrayData,
+    options?: { overwrite?: boolean }
+  ): Promise<WriteResult>;
+}
+
+/** A Python name suggested for a run's array: `e_qr_rls_m16` style, lower case. */
+export function suggestName(run: Run, key: string): string {
+  const tool = run.params.tool === 'adaptive' ? run.params.algorithm : run.params.tool;
+  const base = `${key}_${tool}`.replace(/[^A-Za-z0-9_]+/g, '_').toLowerCase();
+  return /^[0-9]/.test(base) ? `r_${base}` : base;
+}
+
+/** Asks for a name and writes one array of a run; says what happened. */
+export async function writeRunArray(
+  trans: TranslationBundle,
+  writer: IKernelWriter | null,
+  run: Run,
+  key: string,
+  afterWrite: () => void
+): Promise<void> {
+  const a: ResultArray | undefined = run.arrays[key];
+  if (!a) {
+    return;
+  }
+  if (!writer) {
+    Notification.error(trans.__('The notebook has no running kernel to write to.'), {
+      autoClose: false
+    });
+    return;
+  }
+  const body = new SaveDialogBody({ trans, name: suggestName(run, key) });
+  const answer = await new FormDialog({
+    title: trans.__('Write %1 of %2 to the kernel', key, run.label),
+    body,
+    buttons: [Dialog.cancelButton(), Dialog.okButton({ label: trans.__('Write') })],
+    focusNodeSelector: 'input'
+  }).launch();
+  if (!answer.button.accept || !answer.value) {
+    return;
+  }
+  const array: ArrayData = {
+    data: a.data,
+    shape: a.shape,
+    complex: a.complex,
+    dtype: a.complex ? 'complex128' : 'float64'
+  };
+  try {
+    let result = await writer.writeArray(answer.value, array);
+    if (result.status !== 'written') {
+      if (!(await confirmReplace(trans, result.name, result.message))) {
+        return;
+      }
+      result = await writer.writeArray(result.name, array, { overwrite: true });
+    }
+    if (result.status === 'written') {
+      Notification.success(
+        trans.__('Wrote %1 (%2) to the kernel as %3.', key, trans.__(a.description), result.name),
+        {
+          autoClose: 5000
+        }
+      );
+      if (result.warnings.length) {
+        Notification.warning(result.warnings.join(' '), { autoClose: 8000 });
+      }
+      afterWrite();
+    }
+  } catch (e) {
+    Notification.error(
+      trans.__('Writing %1 failed: %2', key, e instanceof Error ? e.message : String(e)),
+      {
+        autoClose: false
+      }
+    );
+  }
+}

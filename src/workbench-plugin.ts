@@ -1,0 +1,277 @@
+import {
+  ILayoutRestorer,
+  type JupyterFrontEnd,
+  type JupyterFrontEndPlugin
+} from '@jupyterlab/application';
+import {
+  ICommandPalette,
+  MainAreaWidget,
+  Dialog,
+  showDialog,
+  WidgetTracker
+} from '@jupyterlab/apputils';
+import { INotebookTracker, NotebookActions, type NotebookPanel } from '@jupyterlab/notebook';
+import { ISettingRegistry } from '@jupyterlab/settingregistry';
+import { ITranslator, nullTranslator } from '@jupyterlab/translation';
+import {
+  BUILTIN_DEFAULTS,
+  type KernelHints,
+  type WorkbenchDefaults
+} from './model/workbench/drafts';
+import { PoolRunner } from './model/workbench/pool-runner';
+import { notebookTarget } from './panel/notebook-target';
+import { perpendIcon } from './panel/icons';
+import { WorkbenchManager } from './panel/workbench/workbench-manager';
+import { WorkbenchPanel } from './panel/workbench/workbench-panel';
+import { writeRunArray } from './panel/workbench/write-back';
+import { createBrowserWorkerPool } from './worker/client';
+import type { WorkerPool } from './worker/pool';
+import { DEFAULT_SETTINGS, IPerpend, type IPerpendSettings } from './tokens';
+import type { KernelBridge } from './bridge';
+
+const PLUGIN_ID = 'perpend:workbench';
+
+/**
+ * The workbench plugin: a main-area tab per notebook where set-ups are made, run off the page
+ * in a pool of workers, and kept in the notebook's metadata. Registers the commands, restores
+ * open workbenches on reload, and connects executions to the set-ups that follow their
+ * sources. Menus and shortcuts are declared in schema/workbench.json.
+ */
+const plugin: JupyterFrontEndPlugin<void> = {
+  id: PLUGIN_ID,
+  description: 'The Perpend workbench: adaptive filters, interference removal and subspace tools.',
+  autoStart: true,
+  requires: [INotebookTracker],
+  optional: [ICommandPalette, ISettingRegistry, ILayoutRestorer, ITranslator, IPerpend],
+  activate: (
+    app: JupyterFrontEnd,
+    notebooks: INotebookTracker,
+    palette: ICommandPalette | null,
+    settingRegistry: ISettingRegistry | null,
+    restorer: ILayoutRestorer | null,
+    translator: ITranslator | null,
+    perpend: IPerpend | null
+  ): void => {
+    const trans = (translator ?? nullTranslator).load('perpend');
+    const withTranslator = (v: IPerpendSettings): Partial<KernelBridge.IOptions> => ({
+      ...Private.bridgeOptions(v),
+      translator: translator ?? undefined
+    });
+    let bridgeOptions = withTranslator(DEFAULT_SETTINGS);
+    let defaults: WorkbenchDefaults = { ...BUILTIN_DEFAULTS };
+    let poolSize = 0;
+    let memoryMiB = 1024;
+    let pool: WorkerPool | null = null;
+    const getPool = (): WorkerPool => {
+      pool ??= createBrowserWorkerPool({
+        size: poolSize > 0 ? poolSize : undefined,
+        memoryLimitBytes: memoryMiB * 2 ** 20
+      });
+      return pool;
+    };
+    const manager = new WorkbenchManager({
+      trans,
+      runner: new PoolRunner(getPool, trans),
+      target: notebookTarget,
+      bridgeOptions: () => bridgeOptions
+    });
+    const tracker = new WidgetTracker<MainAreaWidget<WorkbenchPanel>>({
+      namespace: 'perpend-workbench'
+    });
+    const widgets = new Map<NotebookPanel, MainAreaWidget<WorkbenchPanel>>();
+
+    const open = (panel: NotebookPanel, activate = true): MainAreaWidget<WorkbenchPanel> => {
+      let widget = widgets.get(panel);
+      if (!widget || widget.isDisposed) {
+        const entry = manager.entryFor(panel);
+        const content = new WorkbenchPanel({
+          trans,
+          model: entry.model,
+          catalog: entry.kernel,
+          defaults: () => defaults,
+          host: {
+            confirmRemove: async title =>
+              (
+                await showDialog({
+                  title: trans.__('Remove the set-up %1?', title),
+                  body: trans.__(
+                    'The set-up and its runs leave this workbench; arrays already written to the kernel stay.'
+                  ),
+                  buttons: [Dialog.cancelButton(), Dialog.warnButton({ label: trans.__('Remove') })]
+                })
+              ).button.accept,
+            writeArray: (runId, key) => {
+              const run = entry.model.runs.find(r => r.id === runId);
+              if (run) {
+                void writeRunArray(
+                  trans,
+                  entry.listing.bridge,
+                  run,
+                  key,
+                  () => void entry.listing.refresh()
+                );
+              }
+            },
+            hints: () => Private.kernelHints(entry.listing.bridge),
+            refresh: () => void entry.listing.refresh()
+          }
+        });
+        widget = new MainAreaWidget({ content });
+        widget.id = `perpend-workbench-${panel.id}`;
+        widget.title.label = trans.__(
+          'Workbench · %1',
+          panel.context.localPath.split('/').pop() ?? ''
+        );
+        widget.title.caption = trans.__('Perpend workbench of %1', panel.context.path);
+        widget.title.icon = perpendIcon;
+        widget.title.closable = true;
+        widgets.set(panel, widget);
+        panel.disposed.connect(() => widget?.dispose());
+        void tracker.add(widget);
+        app.shell.add(widget, 'main', { mode: 'split-right', ref: panel.id });
+      }
+      if (activate) {
+        app.shell.activateById(widget.id);
+      }
+      return widget;
+    };
+
+    const currentWorkbench = (): MainAreaWidget<WorkbenchPanel> | null => tracker.currentWidget;
+
+    app.commands.addCommand(CommandIDs.open, {
+      label: trans.__('Open Perpend Workbench'),
+      caption: trans.__(
+        "Open the active notebook's workbench beside it: adaptive filters, interference removal, subspace tools"
+      ),
+      icon: perpendIcon,
+      isEnabled: () => notebooks.currentWidget !== null,
+      execute: args => {
+        const path = typeof args.path === 'string' ? args.path : null;
+        const panel = path ? notebooks.find(p => p.context.path === path) : notebooks.currentWidget;
+        if (panel) {
+          open(panel, args.activate !== false);
+        }
+      }
+    });
+    app.commands.addCommand(CommandIDs.runAll, {
+      label: trans.__('Run All Set-ups Again'),
+      caption: trans.__('Read every set-up’s sources again from the kernel and recompute'),
+      isEnabled: () => currentWorkbench() !== null,
+      execute: () => currentWorkbench()?.content.model.runAll()
+    });
+    app.commands.addCommand(CommandIDs.cancelAll, {
+      label: trans.__('Cancel Running Set-ups'),
+      caption: trans.__('Stop every run of this workbench at its next chunk'),
+      isEnabled: () =>
+        currentWorkbench()?.content.model.runs.some(
+          r => r.status === 'reading' || r.status === 'running'
+        ) ?? false,
+      execute: () => currentWorkbench()?.content.model.cancelAll()
+    });
+    if (palette) {
+      const category = trans.__('Perpend');
+      for (const command of [CommandIDs.open, CommandIDs.runAll, CommandIDs.cancelAll]) {
+        palette.addItem({ command, category });
+      }
+    }
+    if (restorer) {
+      void restorer.restore(tracker, {
+        command: CommandIDs.open,
+        args: widget => ({ path: notebookPathOf(widget, widgets), activate: false }),
+        name: widget => notebookPathOf(widget, widgets)
+      });
+    }
+
+    NotebookActions.executed.connect((_, { notebook, cell }) => {
+      const panel = notebooks.find(p => p.content === notebook);
+      if (panel) {
+        manager.cellExecuted(panel, cell);
+      }
+    });
+    perpend?.settingsChanged.connect((_, values) => {
+      bridgeOptions = withTranslator(values);
+      manager.setBridgeOptions(bridgeOptions);
+    });
+
+    if (settingRegistry) {
+      void settingRegistry
+        .load(PLUGIN_ID)
+        .then(settings => {
+          const apply = (): void => {
+            const c = settings.composite as Record<string, unknown>;
+            defaults = {
+              taps: Number(c.taps ?? BUILTIN_DEFAULTS.taps),
+              lambda: Number(c.lambda ?? BUILTIN_DEFAULTS.lambda),
+              delta: Number(c.delta ?? BUILTIN_DEFAULTS.delta),
+              mu: Number(c.mu ?? BUILTIN_DEFAULTS.mu),
+              epsilon: Number(c.epsilon ?? BUILTIN_DEFAULTS.epsilon),
+              precision: c.precision === 'float32' ? 'float32' : 'float64'
+            };
+            const size = Number(c.workers ?? 0);
+            const mem = Number(c.runMemoryMiB ?? 1024);
+            if (size !== poolSize || mem !== memoryMiB) {
+              poolSize = size;
+              memoryMiB = mem;
+              // The next run makes a pool of the new size; runs in flight finish on the old one.
+              const old = pool;
+              pool = null;
+              if (old) {
+                setTimeout(() => old.dispose(), 60_000);
+              }
+            }
+          };
+          apply();
+          settings.changed.connect(apply);
+        })
+        .catch(reason => console.error('Perpend: could not load the workbench settings.', reason));
+    }
+  }
+};
+
+namespace CommandIDs {
+  /** Open (or show) the active notebook's workbench. */
+  export const open = 'perpend:open-workbench';
+  /** Re-read every set-up's sources and recompute. */
+  export const runAll = 'perpend:workbench-run-all';
+  /** Cancel every run in flight in the current workbench. */
+  export const cancelAll = 'perpend:workbench-cancel-all';
+}
+
+namespace Private {
+  /** The bridge options the main plugin's settings give. */
+  export function bridgeOptions(v: IPerpendSettings): Partial<KernelBridge.IOptions> {
+    return { timeoutMs: v.requestTimeoutSeconds * 1000, maxBytes: v.maxArrayMiB * 1024 * 1024 };
+  }
+
+  /** What new set-ups start from: a kernel variable `fs` to name, a mains fundamental `f0`. */
+  export async function kernelHints(
+    bridge: Pick<KernelBridge, 'readScalar'> | null
+  ): Promise<KernelHints> {
+    if (!bridge) {
+      return {};
+    }
+    const [fs, f0] = await Promise.all([
+      bridge.readScalar('fs').catch(() => null),
+      bridge.readScalar('f0').catch(() => null)
+    ]);
+    return {
+      fsName: fs !== null && fs > 0 ? 'fs' : null,
+      f0: f0 !== null && f0 > 0 ? f0 : null
+    };
+  }
+}
+
+/** The path of the notebook a workbench belongs to (for restoring it after a reload). */
+function notebookPathOf(
+  widget: MainAreaWidget<WorkbenchPanel>,
+  widgets: Map<NotebookPanel, MainAreaWidget<WorkbenchPanel>>
+): string {
+  for (const [panel, w] of widgets) {
+    if (w === widget) {
+      return panel.context.path;
+    }
+  }
+  return '';
+}
+
+export default plugin;
