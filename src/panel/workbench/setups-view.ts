@@ -47,6 +47,15 @@ export class SetupsView extends RenderWidget {
     this.update();
   }
 
+  /** The runs ticked for comparison. */
+  get compared(): string[] {
+    return [...this._compared];
+  }
+  set compared(ids: string[]) {
+    this._compared = new Set(ids);
+    this.update();
+  }
+
   /** The run shown in detail (its row is marked). */
   set selectedRun(id: string | null) {
     if (this._selected !== id) {
@@ -158,7 +167,20 @@ export class SetupsView extends RenderWidget {
       .slice(0, 3)
       .map(f => formatFigure(trans, f))
       .join(' · ');
-    row.append(status, label, figs);
+    const tick = document.createElement('input');
+    tick.type = 'checkbox';
+    tick.className = 'pp-RunRow-compare';
+    tick.checked = this._compared.has(r.id);
+    tick.dataset.key = `compare:${r.id}`;
+    tick.title = trans.__('Compare: overlay this run’s learning curve with the other ticked runs');
+    tick.setAttribute('aria-label', trans.__('compare %1', r.label));
+    tick.addEventListener('click', ev => ev.stopPropagation());
+    tick.addEventListener('keydown', ev => ev.stopPropagation());
+    tick.addEventListener('change', () => this._actions.compare(r.id, tick.checked));
+    const head = document.createElement('span');
+    head.className = 'pp-RunRow-head';
+    head.append(tick, status);
+    row.append(head, label, figs);
     if (r.status === 'reading' || r.status === 'running') {
       const bar = document.createElement('progress');
       bar.className = 'pp-RunRow-progress';
@@ -197,6 +219,7 @@ export class SetupsView extends RenderWidget {
   private readonly _model: WorkbenchModel;
   private readonly _actions: SetupsView.IActions;
   private _selected: string | null = null;
+  private _compared = new Set<string>();
 }
 
 export namespace SetupsView {
@@ -206,6 +229,7 @@ export namespace SetupsView {
     edit(setupId: string): void;
     remove(setupId: string): void;
     show(runId: string): void;
+    compare(runId: string, on: boolean): void;
   }
   export interface IOptions {
     trans: TranslationBundle;

@@ -12,6 +12,7 @@ import type { FieldIssue } from '../../model/workbench/rules';
 import { TOOLS, type SetupParams, type Tool } from '../../model/workbench/setup';
 import type { WorkbenchModel } from '../../model/workbench/workbench';
 import type { ISourceCatalog } from '../../model/workbench/catalog';
+import { ComparePlots, RunPlots } from '../plots';
 import { RunDetail } from './run-detail';
 import { SetupEditor } from './setup-editor';
 import { SetupsView } from './setups-view';
@@ -38,7 +39,8 @@ export class WorkbenchPanel extends Widget {
         cancelSetup: id => this._model.runsOf(id).forEach(r => this._model.cancel(r.id)),
         edit: id => this.editSetup(id),
         remove: id => void this._remove(id),
-        show: id => this.showRun(id)
+        show: id => this.showRun(id),
+        compare: (id, on) => this._setCompared(id, on)
       }
     });
     this._editor = new SetupEditor({
@@ -55,12 +57,19 @@ export class WorkbenchPanel extends Widget {
       actions: { writeArray: options.host.writeArray, writeRun: options.host.writeRun }
     });
     this._editor.hide();
+    this._plots = new RunPlots({ trans, model: this._model });
+    this._plots.addClass('pp-Workbench-plots');
+    this._compare = new ComparePlots({ trans, model: this._model });
+    this._compare.addClass('pp-Workbench-compare');
+    this._compare.hide();
 
     const right = new Widget();
     right.addClass('pp-Workbench-side');
     const rightLayout = new PanelLayout();
     rightLayout.addWidget(this._editor);
     rightLayout.addWidget(this._detail);
+    rightLayout.addWidget(this._plots);
+    rightLayout.addWidget(this._compare);
     right.layout = rightLayout;
 
     const split = new SplitPanel({ orientation: 'horizontal', spacing: 1 });
@@ -109,10 +118,24 @@ export class WorkbenchPanel extends Widget {
     }
   }
 
-  /** Shows a run in the detail view. */
+  /** Shows a run in the detail view and its plots. */
   showRun(runId: string): void {
     this._detail.runId = runId;
+    this._plots.runId = runId;
     this._list.selectedRun = runId;
+  }
+
+  /** Adds a run to the comparison (learning curves overlaid, a table beside) or takes it out. */
+  private _setCompared(runId: string, on: boolean): void {
+    const ids = new Set(this._list.compared);
+    if (on) {
+      ids.add(runId);
+    } else {
+      ids.delete(runId);
+    }
+    this._list.compared = [...ids];
+    this._compare.runIds = [...ids];
+    this._compare.setHidden(ids.size === 0);
   }
 
   private _save(
@@ -161,12 +184,14 @@ export class WorkbenchPanel extends Widget {
   private _showEditor(): void {
     this._editor.show();
     this._detail.hide();
+    this._plots.hide();
     this._editor.node.querySelector<HTMLElement>('input, select')?.focus();
   }
 
   private _closeEditor(): void {
     this._editor.hide();
     this._detail.show();
+    this._plots.show();
   }
 
   private _renderHeader(): void {
@@ -227,6 +252,8 @@ export class WorkbenchPanel extends Widget {
   private readonly _list: SetupsView;
   private readonly _editor: SetupEditor;
   private readonly _detail: RunDetail;
+  private readonly _plots: RunPlots;
+  private readonly _compare: ComparePlots;
   private readonly _defaults: () => WorkbenchDefaults;
   private _hints: KernelHints = {};
 }
