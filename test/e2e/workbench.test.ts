@@ -9,7 +9,14 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Locator, Page } from 'playwright-core';
 import { LabBrowser } from './browser';
-import { menu, openNotebook, palette, runAllCells, waitNotebookReady } from './lab-actions';
+import {
+  menu,
+  openNotebook,
+  palette,
+  runAllCells,
+  setTheme,
+  waitNotebookReady
+} from './lab-actions';
 
 // JupyterLab's own debugger says this when a kernel restarts under it (not Perpend's).
 const ALLOW: RegExp[] = [/Canceled future for debug_request/];
