@@ -127,10 +127,20 @@ export function runLabel(p: Exclude<SetupParams, { tool: 'sweep' }>): string {
       }
       return parts.join(' · ');
     }
-    case 'removal':
-      return p.basis.kind === 'harmonics'
-        ? `${p.mode === 'off' ? '−' : '∥'} ${p.basis.count} × ${p.basis.f0} Hz`
-        : `${p.mode === 'off' ? '−' : '∥'} ${p.basis.kind}`;
+    case 'removal': {
+      const verb = p.mode === 'off' ? 'remove' : 'keep only';
+      switch (p.basis.kind) {
+        case 'harmonics':
+          return `${verb} ${p.basis.count} harmonics of ${p.basis.f0} Hz`;
+        case 'array':
+          return `${verb} ${p.basis.directions.length} array directions`;
+        case 'reference':
+          return `${verb} ${p.basis.copies} delayed copies of the reference`;
+        case 'matrix':
+          return `${verb} the columns of a matrix`;
+      }
+      break;
+    }
     case 'span':
       return 'basis and null space';
     case 'lstsq':
