@@ -1,5 +1,12 @@
 import { Signal, type ISignal } from '@lumino/signaling';
-import { harmonicBasis, projectOff, summarize, Dense, type SignalSummary } from '../core';
+import {
+  harmonicBasis,
+  harmonicShares,
+  projectOff,
+  summarize,
+  Dense,
+  type SignalSummary
+} from '../core';
 import {
   parseArrayText,
   type ArrayData,
@@ -209,14 +216,16 @@ export class LoadedArraysModel {
       const basis = harmonicBasis({ ...options, samples });
       const result = projectOff(basis, x, { vectors: 'rows' });
       const e = result.energy;
+      // Each harmonic's share from least squares on its own cosine/sine pair, in the harmonics'
+      // order (the pivoted-QR basis' directions come in another order, so they cannot say it).
+      const shares = harmonicShares(x, { ...options });
       const perHarmonic: string[] = [];
       for (let k = 0; k < options.harmonics; k++) {
-        const share = e.directionEnergy[2 * k] + e.directionEnergy[2 * k + 1];
         perHarmonic.push(
           trans.__(
             '%1 Hz: %2 dB',
-            ((k + 1) * options.f0).toPrecision(4),
-            Private.db(share / e.inputEnergy)
+            shares.frequencies[k].toPrecision(4),
+            Private.db(shares.share[k])
           )
         );
       }
