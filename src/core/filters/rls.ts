@@ -120,7 +120,8 @@ export class RlsFilter extends AdaptiveFilter {
       this.flag(
         'asymmetry',
         index,
-        `P lost symmetry: ‖(P − Pᴴ)u‖/‖Pu‖ = ${asym.toExponential(3)} > ${this.options.asymmetryTolerance} at sample ${index}`
+        `P lost symmetry: ‖(P − Pᴴ)u‖/‖Pu‖ = ${asym.toExponential(3)} > ${this.options.asymmetryTolerance} at sample ${index} ` +
+          `(the unsymmetrised textbook form does not keep P Hermitian; 'rls' does)`
       );
     }
   }

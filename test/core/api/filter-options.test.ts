@@ -61,3 +61,25 @@ test('unknown and former option names are TypeErrors naming them', () => {
   ).not.toThrow();
   expect(() => runFilter(x, d, { algorithm: 'lms', taps: 2, chunkSize: 64 })).not.toThrow();
 });
+
+test('the asymmetry event of the textbook form says what it is and which form keeps P Hermitian', () => {
+  // A tolerance far below rounding makes the first rounding-level asymmetry of P visible: the
+  // unsymmetrised update does not keep P Hermitian (Verhaegen, Automatica 25(3), 1989).
+  const r = runFilter(x, d, {
+    algorithm: 'rls-textbook',
+    taps: 4,
+    lambda: 0.99,
+    asymmetryTolerance: 1e-300
+  });
+  const ev = r.health.events.find(e => e.kind === 'asymmetry');
+  expect(ev?.message).toMatch(
+    /^P lost symmetry: .* \(the unsymmetrised textbook form does not keep P Hermitian; 'rls' does\)$/
+  );
+  const sym = runFilter(x, d, {
+    algorithm: 'rls',
+    taps: 4,
+    lambda: 0.99,
+    asymmetryTolerance: 1e-300
+  });
+  expect(sym.health.events.find(e => e.kind === 'asymmetry')).toBeUndefined();
+});
