@@ -18,8 +18,7 @@ import {
   ensembleAverage,
   misadjustment,
   movingAverage,
-  squaredError,
-  steadyStateMse
+  squaredError
 } from '../../core/metrics';
 import type {
   AdaptiveFilterFigures,
@@ -287,9 +286,11 @@ export function readFigures(
     // `window` smooths the same way)
     const sm = window > 1 ? movingAverage(curve, Math.min(window, N)) : curve;
     finalMse = sm[N - 1];
-    steady = steadyStateMse(curve, tail);
-    if (steadyStateMse(sm, tail) > 0) {
-      const t = convergenceTime(sm, { marginDb, tail });
+    // the core's steadyStateMse (same sum, same order) without its finiteness pass, done above
+    steady = tailMean(curve, tail);
+    const steadySm = tailMean(sm, tail);
+    if (steadySm > 0) {
+      const t = convergenceTime(sm, { marginDb, steadyState: steadySm });
       if (t < 0) {
         warnings.push({
           kind: 'not-converged',
@@ -316,6 +317,15 @@ export function readFigures(
     tail,
     marginDb
   };
+}
+
+/** Mean of the last `tail` values, summed in order (as the core's steadyStateMse). */
+function tailMean(c: Float64Array, tail: number): number {
+  let s = 0;
+  for (let i = c.length - tail; i < c.length; i++) {
+    s += c[i];
+  }
+  return s / tail;
 }
 
 /** Equalization (1-D sources): the core's equalizer in one call, then the same figures. */
