@@ -143,6 +143,12 @@ test('(a) noise cancellation with QR-RLS, the error written back and checked in 
   await row.click();
   expect(await figure('steadyStateMseDb')).toBeLessThan(-3);
   await lab.screenshot('workbench-a-cancellation');
+  // The run's plots under its numbers (plotly loaded on this first plot).
+  const plots = bench().locator('.pp-Workbench-plots');
+  await plots.locator('.js-plotly-plot').first().waitFor({ timeout: 60000 });
+  await plots.scrollIntoViewIfNeeded();
+  await page.waitForTimeout(500);
+  await lab.screenshot('workbench-a-plots');
   await writeBack('error', 'e_qr');
   // Conventional RLS in numpy with the same initialisation (P(0) = I/δ, w(0) = 0) gives the
   // same a-priori errors as QR-RLS up to rounding (Haykin, Adaptive Filter Theory, 4th ed.,
@@ -220,11 +226,15 @@ test('(c) a λ sweep of three values beside NLMS on the same data, all runs list
   for (const row of await card('λ sweep').locator('.pp-RunRow-compare').all()) {
     await row.check();
   }
-  await bench().locator('.pp-Workbench-compare').waitFor();
-  await page.waitForTimeout(1500);
+  const compare = bench().locator('.pp-Workbench-compare');
+  await compare.waitFor();
+  await compare.locator('.js-plotly-plot').first().waitFor({ timeout: 60000 });
+  await compare.scrollIntoViewIfNeeded();
+  await page.waitForTimeout(1000);
   await lab.screenshot('workbench-c-compare-light');
   await setTheme(page, 'JupyterLab Dark');
   await page.waitForTimeout(1500);
+  await compare.scrollIntoViewIfNeeded();
   await lab.screenshot('workbench-c-compare-dark');
   await setTheme(page, 'JupyterLab Light');
   expect(labels.sort()).toEqual([
