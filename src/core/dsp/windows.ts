@@ -58,7 +58,7 @@ export function getWindow(spec: WindowSpec, m: number): Float64Array {
   }
   const symmetric = (o as { symmetric?: boolean }).symmetric ?? false;
   if (typeof symmetric !== 'boolean') {
-    throw new TypeError(`window.symmetric must be a boolean, got ${describe(symmetric)}`);
+    throw new TypeError(`window symmetric (a flag) must be a boolean, got ${describe(symmetric)}`);
   }
   const w = new Float64Array(m);
   if (m <= 1) {
@@ -73,7 +73,7 @@ export function getWindow(spec: WindowSpec, m: number): Float64Array {
   }
   if (o.name === 'tukey') {
     const alpha = checkInterval(
-      'window.alpha',
+      'window alpha (the Tukey taper fraction)',
       (o as { alpha?: number }).alpha ?? 0.5,
       0,
       Number.MAX_VALUE
