@@ -344,7 +344,7 @@ test('(h) the kernel restarts during a run: the run says so, nothing else is los
     { timeout: 300000 }
   );
   await row.click();
-  const messages = (await bench().locator('.pp-RunDetail').textContent()) ?? '';
+  const messages = (await bench().locator('.pp-RunDetail.pp-mod-summary').textContent()) ?? '';
   expect(messages).toMatch(/kernel restarted|Reading .* failed/);
   expect(await bench().locator('.pp-SetupCard').count()).toBe(setups);
   await lab.screenshot('workbench-h-restart');

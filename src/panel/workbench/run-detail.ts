@@ -18,6 +18,8 @@ export class RunDetail extends RenderWidget {
     this._trans = options.trans;
     this._model = options.model;
     this._actions = options.actions;
+    this._part = options.part ?? 'summary';
+    this.addClass(`pp-mod-${this._part}`);
     this._model.runChanged.connect(this._onRun, this);
     this.update();
   }
@@ -41,10 +43,22 @@ export class RunDetail extends RenderWidget {
     const trans = this._trans;
     const r = this._model.runs.find(x => x.id === this._runId);
     if (!r) {
+      if (this._part === 'arrays') {
+        this.node.replaceChildren();
+        return;
+      }
       const p = document.createElement('p');
       p.className = 'pp-Workbench-hint';
       p.textContent = trans.__('Choose a run to see its numbers and arrays.');
       this.node.replaceChildren(p);
+      return;
+    }
+    if (this._part === 'arrays') {
+      const keys = Object.keys(r.arrays);
+      this.node.replaceChildren(
+        ...(keys.length > 0 ? [this._arrays(r, keys)] : []),
+        this._params(r)
+      );
       return;
     }
     const head = document.createElement('h3');
@@ -73,11 +87,6 @@ export class RunDetail extends RenderWidget {
       parts.push(this._figures(r));
     }
     parts.push(this._timing(r));
-    const keys = Object.keys(r.arrays);
-    if (keys.length > 0) {
-      parts.push(this._arrays(r, keys));
-    }
-    parts.push(this._params(r));
     this.node.replaceChildren(...parts);
   }
 
@@ -188,6 +197,7 @@ export class RunDetail extends RenderWidget {
   private readonly _model: WorkbenchModel;
   private readonly _actions: RunDetail.IActions;
   private _runId: string | null = null;
+  private readonly _part: 'summary' | 'arrays';
 }
 
 export namespace RunDetail {
@@ -200,6 +210,8 @@ export namespace RunDetail {
     trans: TranslationBundle;
     model: WorkbenchModel;
     actions: RunDetail.IActions;
+    /** 'summary': status, messages, key numbers, timing; 'arrays': result arrays, parameters. */
+    part?: 'summary' | 'arrays';
   }
 }
 

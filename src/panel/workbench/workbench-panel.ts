@@ -51,11 +51,10 @@ export class WorkbenchPanel extends Widget {
       save: (p, title, id, run) => this._save(p, title, id, run),
       close: () => this._closeEditor()
     });
-    this._detail = new RunDetail({
-      trans,
-      model: this._model,
-      actions: { writeArray: options.host.writeArray, writeRun: options.host.writeRun }
-    });
+    const actions = { writeArray: options.host.writeArray, writeRun: options.host.writeRun };
+    this._detail = new RunDetail({ trans, model: this._model, actions });
+    // The run's arrays and parameters come after its plots: numbers, then pictures, then data.
+    this._arrays = new RunDetail({ trans, model: this._model, actions, part: 'arrays' });
     this._editor.hide();
     this._plots = new RunPlots({ trans, model: this._model });
     this._plots.addClass('pp-Workbench-plots');
@@ -69,6 +68,7 @@ export class WorkbenchPanel extends Widget {
     rightLayout.addWidget(this._editor);
     rightLayout.addWidget(this._detail);
     rightLayout.addWidget(this._plots);
+    rightLayout.addWidget(this._arrays);
     rightLayout.addWidget(this._compare);
     right.layout = rightLayout;
 
@@ -122,6 +122,7 @@ export class WorkbenchPanel extends Widget {
   showRun(runId: string): void {
     this._detail.runId = runId;
     this._plots.runId = runId;
+    this._arrays.runId = runId;
     this._list.selectedRun = runId;
   }
 
@@ -185,6 +186,7 @@ export class WorkbenchPanel extends Widget {
     this._editor.show();
     this._detail.hide();
     this._plots.hide();
+    this._arrays.hide();
     this._editor.node.querySelector<HTMLElement>('input, select')?.focus();
   }
 
@@ -192,6 +194,7 @@ export class WorkbenchPanel extends Widget {
     this._editor.hide();
     this._detail.show();
     this._plots.show();
+    this._arrays.show();
   }
 
   private _renderHeader(): void {
@@ -253,6 +256,7 @@ export class WorkbenchPanel extends Widget {
   private readonly _editor: SetupEditor;
   private readonly _detail: RunDetail;
   private readonly _plots: RunPlots;
+  private readonly _arrays: RunDetail;
   private readonly _compare: ComparePlots;
   private readonly _defaults: () => WorkbenchDefaults;
   private _hints: KernelHints = {};
