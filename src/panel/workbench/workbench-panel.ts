@@ -121,6 +121,12 @@ export class WorkbenchPanel extends Widget {
   /** Shows a run in the detail view and its plots. */
   showRun(runId: string): void {
     this._detail.runId = runId;
+    if (this._plots.view === null) {
+      // The first view answers the tool's question: how the filter converged, or what the
+      // projection did to the spectrum. Later the user's choice of view is kept.
+      const tool = this._model.runs.find(r => r.id === runId)?.params.tool;
+      this._plots.view = tool === 'adaptive' ? 'learning' : tool === 'removal' ? 'spectrum' : null;
+    }
     this._plots.runId = runId;
     this._arrays.runId = runId;
     this._list.selectedRun = runId;
