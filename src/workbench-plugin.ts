@@ -23,7 +23,7 @@ import { notebookTarget } from './panel/notebook-target';
 import { perpendIcon } from './panel/icons';
 import { WorkbenchManager } from './panel/workbench/workbench-manager';
 import { WorkbenchPanel } from './panel/workbench/workbench-panel';
-import { writeRunArray } from './panel/workbench/write-back';
+import { writeRunArray, writeWholeRun } from './panel/workbench/write-back';
 import { createBrowserWorkerPool } from './worker/client';
 import type { WorkerPool } from './worker/pool';
 import { DEFAULT_SETTINGS, IPerpend, type IPerpendSettings } from './tokens';
@@ -108,6 +108,17 @@ const plugin: JupyterFrontEndPlugin<void> = {
                   entry.listing.bridge,
                   run,
                   key,
+                  () => void entry.listing.refresh()
+                );
+              }
+            },
+            writeRun: runId => {
+              const run = entry.model.runs.find(r => r.id === runId);
+              if (run) {
+                void writeWholeRun(
+                  trans,
+                  entry.listing.bridge,
+                  run,
                   () => void entry.listing.refresh()
                 );
               }

@@ -246,6 +246,20 @@ export class KernelBridge implements IDisposable {
     return this._writer.write(name, array, options);
   }
 
+  /**
+   * Writes a whole result at once: every array of `arrays` and the JSON `params` as one dict
+   * bound to `name` (`name["error"]`, …, `name["params"]`), with the same checks and the same
+   * replacement question as {@link writeArray}.
+   */
+  writeRecord(
+    name: string,
+    arrays: Readonly<Record<string, ArrayData>>,
+    params: unknown,
+    options: { overwrite?: boolean } = {}
+  ): Promise<WriteResult> {
+    return this._writer.writeRecord(name, arrays, params, options);
+  }
+
   private readonly _limits: TransferLimits;
   private readonly _requests: KernelRequests;
   private readonly _channel: CommChannel;

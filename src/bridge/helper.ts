@@ -16,7 +16,7 @@
  */
 
 /** Bumped when the helper changes, so an old copy left in a kernel is replaced. */
-export const HELPER_VERSION = 3;
+export const HELPER_VERSION = 4;
 /** Key of the helper module in `sys.modules`. */
 export const HELPER_MODULE = `_perpend_bridge_${HELPER_VERSION}`;
 /** Comm target the helper registers. */
@@ -644,6 +644,7 @@ def conflicts(name, overwrite):
 # ---- staged transfers (base64 path and comm writes) ----
 stash = {}
 writes = {}
+records = {}
 
 
 def drop_old(d, keep):
@@ -678,10 +679,14 @@ def b64_close(h):
     return reply({"closed": True})
 
 
-def w_begin(h, name, shape, cplx, nbytes, overwrite):
+def w_begin(h, name, shape, cplx, nbytes, overwrite, into=None):
+    # into: a record's handle; the array is then staged as that record's entry called name (bound
+    # in the user's namespace only by w_record, as one dict).
     try:
         if not valid_name(name):
             raise Err("invalid-name")
+        if into is not None and type(into) is not int:
+            raise Err("bad-request")
         if (type(shape) is not list or not 1 <= len(shape) <= 2
                 or not all(type(s) is int and s > 0 for s in shape)):
             raise Err("bad-request")
@@ -691,10 +696,11 @@ def w_begin(h, name, shape, cplx, nbytes, overwrite):
             n *= s
         if n * (16 if cplx else 8) != nbytes:
             raise Err("bad-request")
-        c, _ = conflicts(name, overwrite)
-        if c is not None:
-            return reply({"conflict": c})
-        writes[h] = {"name": name, "shape": shape, "cplx": bool(cplx),
+        if into is None:
+            c, _ = conflicts(name, overwrite)
+            if c is not None:
+                return reply({"conflict": c})
+        writes[h] = {"name": name, "shape": shape, "cplx": bool(cplx), "into": into,
                      "buf": np.empty(nbytes, np.uint8), "got": 0, "overwrite": overwrite}
         drop_old(writes, 4)
         return reply({"ok": True})
@@ -729,6 +735,16 @@ def w_end(h):
             raise Err("stale")
         if w["got"] != w["buf"].size:
             raise Err("incomplete", got=w["got"], expected=int(w["buf"].size))
+        if w["into"] is not None:
+            arr = w["buf"].view("<c16" if w["cplx"] else "<f8").reshape(w["shape"])
+            rec = records.get(w["into"])
+            if rec is None:
+                rec = records[w["into"]] = {}
+                drop_old(records, 4)
+            rec[w["name"]] = arr
+            # Staged, not bound: nothing in the user's namespace was there or is replaced.
+            return reply({"written": True, "was": {"exists": False, "module": None,
+                                                   "builtin": False, "type": None}})
         c, info_ = conflicts(w["name"], w["overwrite"])
         if c is not None:
             return reply({"conflict": c})
@@ -742,6 +758,28 @@ def w_end(h):
 def w_abort(h):
     writes.pop(h, None)
     return reply({"aborted": True})
+
+
+def w_record(rec, name, params, overwrite):
+    # Binds the arrays staged under rec and the parameters (JSON text) as one dict.
+    try:
+        staged = records.get(rec) if type(rec) is int else None
+        if staged is None:
+            raise Err("stale")
+        if type(params) is not str:
+            raise Err("bad-request")
+        c, info_ = conflicts(name, overwrite)
+        if c is not None:
+            return reply({"conflict": c})
+        out = dict(staged)
+        out["params"] = json.loads(params)
+        records.pop(rec, None)
+        shell().user_ns[name] = out
+        return reply({"written": True, "was": info_})
+    except Err as e:
+        return reply({"error": e.code, "detail": e.detail})
+    except ValueError:
+        return reply({"error": "bad-request", "detail": {}})
 
 
 # ---- comm path ----
@@ -772,7 +810,8 @@ def on_msg(comm, msg):
             comm.send({"req": req, "op": "end"})
         elif op == "w-begin":
             r = json.loads(w_begin(req, d.get("name"), d.get("shape"), bool(d.get("complex")),
-                                   d.get("nbytes"), bool(d.get("overwrite"))).s)
+                                   d.get("nbytes"), bool(d.get("overwrite")),
+                                   d.get("into")).s)
             r.update({"req": req, "op": "w-begun"})
             comm.send(r)
         elif op == "w-chunk":

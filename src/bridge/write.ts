@@ -33,6 +33,8 @@ interface WriteJob {
   overwrite: boolean;
   /** "writing <name>", for messages and the activity line. */
   label: string;
+  /** A record's handle: the array is staged as that record's entry `name`, not bound. */
+  into?: number;
 }
 
 /** Writes arrays into the kernel's namespace. */
@@ -50,20 +52,8 @@ export class ArrayWriter {
     options: { overwrite?: boolean } = {}
   ): Promise<WriteResult> {
     const trans = this._requests.trans;
-    const check = normalizeIdentifier(name, trans);
-    if (!check.ok) {
-      throw new BridgeError(
-        'invalid-name',
-        trans.__('Cannot write to %1: %2.', JSON.stringify(String(name).slice(0, 40)), check.reason)
-      );
-    }
+    const check = this._checkName(name);
     const pyName = check.name;
-    // Not a question for the user: replacing these breaks the interpreter or IPython (the
-    // helper refuses them as well).
-    const reserved = reservedName(pyName);
-    if (reserved !== null) {
-      throw reservedError(trans, pyName, reserved);
-    }
     validateArrayData(array);
     const job: WriteJob = {
       name: pyName,
@@ -81,6 +71,95 @@ export class ArrayWriter {
     }
     const warnings = writtenWarnings(trans, pyName, check.changed, outcome.was);
     return { status: 'written', name: pyName, bytes: job.raw.byteLength, warnings };
+  }
+
+  /**
+   * Writes several arrays and JSON parameters as one dict bound to `name`: each array is staged
+   * in the kernel under its key (begin, chunks, end as for one array, on either transport), then
+   * one request binds `{key: array, …, "params": params}` with the same replacement check as a
+   * single array. Keys are Python identifiers; `params` must survive JSON.
+   */
+  async writeRecord(
+    name: string,
+    arrays: Readonly<Record<string, ArrayData>>,
+    params: unknown,
+    options: { overwrite?: boolean } = {}
+  ): Promise<WriteResult> {
+    const trans = this._requests.trans;
+    const check = this._checkName(name);
+    const pyName = check.name;
+    const keys = Object.keys(arrays);
+    if (keys.length === 0) {
+      throw badArgument('arrays must hold at least one array');
+    }
+    for (const k of keys) {
+      const c = normalizeIdentifier(k, trans);
+      if (!c.ok || c.changed || k === 'params') {
+        throw badArgument(
+          `array key ${JSON.stringify(k)} must be a Python identifier other than "params"`
+        );
+      }
+      validateArrayData(arrays[k]);
+    }
+    let paramsJson: string;
+    try {
+      paramsJson = JSON.stringify(params ?? null);
+    } catch (e) {
+      throw badArgument(`params must be JSON: ${String(e)}`);
+    }
+    const label = trans.__('writing %1', pyName);
+    const rec = this._requests.nextId();
+    let bytes = 0;
+    for (const k of keys) {
+      const a = arrays[k];
+      const job: WriteJob = {
+        name: k,
+        shape: a.shape.slice(),
+        complex: a.complex,
+        raw: new Uint8Array(a.data.buffer, a.data.byteOffset, a.data.byteLength),
+        overwrite: true,
+        label,
+        into: rec
+      };
+      bytes += job.raw.byteLength;
+      const staged = (await this._channel.use())
+        ? await this._writeComm(job)
+        : await this._writeBase64(job);
+      if ('conflict' in staged) {
+        throw malformed(trans, label);
+      }
+    }
+    const r = await this._requests.evaluate(label, {
+      r: `${HELPER_REF}.w_record(${rec}, ${pyStringLiteral(pyName)}, ${pyStringLiteral(paramsJson)}, ${options.overwrite === true ? 'True' : 'False'})`
+    });
+    const outcome = parseWriteReply(trans, parseJsonExpression(trans, r.r, label), label);
+    if (!outcome) {
+      throw malformed(trans, label);
+    }
+    if ('conflict' in outcome) {
+      return conflictResult(trans, pyName, outcome.conflict);
+    }
+    const warnings = writtenWarnings(trans, pyName, check.changed, outcome.was);
+    return { status: 'written', name: pyName, bytes, warnings };
+  }
+
+  /** A name to bind: an identifier in NFKC form, not one the interpreter or IPython keeps. */
+  private _checkName(name: string): { name: string; changed: boolean } {
+    const trans = this._requests.trans;
+    const check = normalizeIdentifier(name, trans);
+    if (!check.ok) {
+      throw new BridgeError(
+        'invalid-name',
+        trans.__('Cannot write to %1: %2.', JSON.stringify(String(name).slice(0, 40)), check.reason)
+      );
+    }
+    // Not a question for the user: replacing these breaks the interpreter or IPython (the
+    // helper refuses them as well).
+    const reserved = reservedName(check.name);
+    if (reserved !== null) {
+      throw reservedError(trans, check.name, reserved);
+    }
+    return { name: check.name, changed: check.changed };
   }
 
   /** Begin, chunks, end on the comm; a small write in one burst. */
@@ -166,7 +245,8 @@ export class ArrayWriter {
         shape: job.shape,
         complex: job.complex,
         nbytes: raw.byteLength,
-        overwrite: job.overwrite
+        overwrite: job.overwrite,
+        into: job.into ?? null
       });
       const cs = this._limits.writeChunk;
       // A small write goes in one burst (begin, data, end) without waiting for the kernel's
@@ -237,7 +317,7 @@ export class ArrayWriter {
     const h = requests.nextId();
     // 3 MiB of bytes is 4 MiB of base64: far below the 10 MiB message limit.
     const cs = Math.min(this._limits.writeChunk, 3 * MiB);
-    const beginExpr = `${HELPER_REF}.w_begin(${h}, ${pyStringLiteral(name)}, [${shape.map(s => pyIntLiteral('shape', s)).join(', ')}], ${job.complex ? 'True' : 'False'}, ${raw.byteLength}, ${job.overwrite ? 'True' : 'False'})`;
+    const beginExpr = `${HELPER_REF}.w_begin(${h}, ${pyStringLiteral(name)}, [${shape.map(s => pyIntLiteral('shape', s)).join(', ')}], ${job.complex ? 'True' : 'False'}, ${raw.byteLength}, ${job.overwrite ? 'True' : 'False'}${job.into === undefined ? '' : `, into=${pyIntLiteral('into', job.into)}`})`;
     const chunkExpr = (o: number): string =>
       `${HELPER_REF}.w_chunk(${h}, ${o}, "${encodeBase64(raw.subarray(o, Math.min(o + cs, raw.byteLength)))}")`;
     const checkChunk = (entry: unknown): void => {

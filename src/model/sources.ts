@@ -240,6 +240,7 @@ export namespace SourcesModel {
     | 'readArray'
     | 'readScalar'
     | 'writeArray'
+    | 'writeRecord'
     | 'dispose'
     | 'activity'
     | 'activityChanged'

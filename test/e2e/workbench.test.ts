@@ -168,6 +168,21 @@ test('(a) noise cancellation with QR-RLS, the error written back and checked in 
     120000
   );
   expect(out).toContain('rls-check (32000,) True');
+  // The whole run at once: one dict of its arrays and its parameters.
+  await bench().locator('.pp-RunDetail-arrays button', { hasText: 'Write the whole run' }).click();
+  const input = page.locator('.jp-Dialog input');
+  await input.waitFor();
+  await input.fill('run_qr');
+  await page.locator('.jp-Dialog-button.jp-mod-accept').click();
+  await page
+    .locator('.Toastify__toast', { hasText: 'as run_qr' })
+    .first()
+    .waitFor({ timeout: 30000 });
+  const record = await runCell(
+    "print('record-check', sorted(run_qr)[:3], run_qr['params']['setup']['taps'], bool(np.array_equal(run_qr['error'], e_qr)))",
+    /record-check/
+  );
+  expect(record).toContain("record-check ['error', 'learningCurve', 'output'] 16 True");
   await lab.screenshot('workbench-a-checked');
   expect(lab.unexpectedFaults(ALLOW)).toEqual([]);
 });

@@ -15,6 +15,7 @@ import {
   KernelBridge,
   isBridgeError,
   parseArrayText,
+  HELPER_MODULE,
   type ArrayData
 } from '../../src/bridge';
 import { RECORDING_OBJECTS } from '../bridge/recording-objects';
@@ -76,7 +77,7 @@ describe('1. the user namespace cannot switch Perpend off', () => {
           'x = _n.arange(6.0).reshape(2, 3)',
           'fs = 48000.0',
           'np = "not numpy"; numpy = 4; sys = 5; types = 6; json = 7',
-          '_perpend_sys = 8; _perpend_bridge_3 = 9',
+          `_perpend_sys = 8; ${HELPER_MODULE} = 9`,
           'globals()["__import__"] = _n.zeros(3)',
           'globals().update({k: _n.zeros(1) for k in vars(_b) if not k.startswith("__")})'
         ].join('\n')
@@ -146,7 +147,7 @@ describe('1. the user namespace cannot switch Perpend off', () => {
     kernel.anyMessage.disconnect(count);
     expect(sent).toBe(0);
     // The kernel's helper refuses them too (a request that bypasses the front end).
-    const H = `__import__('sys').modules['_perpend_bridge_3']`;
+    const H = `__import__('sys').modules['${HELPER_MODULE}']`;
     await bridge.listVariables();
     expect(await evalText(kernel, `${H}.w_begin(9001, "__name__", [2], False, 16, True)`)).toBe(
       '{"error":"reserved","detail":{"why":"dunder"}}'

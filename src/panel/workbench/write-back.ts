@@ -17,9 +17,15 @@ export interface IKernelWriter {
     array: ArrayData,
     options?: { overwrite?: boolean }
   ): Promise<WriteResult>;
+  writeRecord(
+    name: string,
+    arrays: Readonly<Record<string, ArrayData>>,
+    params: unknown,
+    options?: { overwrite?: boolean }
+  ): Promise<WriteResult>;
 }
 
-/** A Python name suggested for a run's array: `e_qr_rls_m16` style, lower case. */
+/** A Python name suggested for a run's array: `error_qr_rls` style, lower case. */
 export function suggestName(run: Run, key: string): string {
   const tool = run.params.tool === 'adaptive' ? run.params.algorithm : run.params.tool;
   const base = `${key}_${tool}`.replace(/[^A-Za-z0-9_]+/g, '_').toLowerCase();
@@ -83,6 +89,85 @@ export async function writeRunArray(
   } catch (e) {
     Notification.error(
       trans.__('Writing %1 failed: %2', key, e instanceof Error ? e.message : String(e)),
+      {
+        autoClose: false
+      }
+    );
+  }
+}
+
+/**
+ * Asks for a name and writes a whole run as one dict: every result array under its key, and
+ * `params` (the set-up's parameters, the run's label, status, key numbers and sample rate).
+ */
+export async function writeWholeRun(
+  trans: TranslationBundle,
+  writer: IKernelWriter | null,
+  run: Run,
+  afterWrite: () => void
+): Promise<void> {
+  const keys = Object.keys(run.arrays);
+  if (keys.length === 0) {
+    return;
+  }
+  if (!writer) {
+    Notification.error(trans.__('The notebook has no running kernel to write to.'), {
+      autoClose: false
+    });
+    return;
+  }
+  const body = new SaveDialogBody({ trans, name: suggestName(run, 'run') });
+  const answer = await new FormDialog({
+    title: trans.__('Write the whole run %1 to the kernel', run.label),
+    body,
+    buttons: [Dialog.cancelButton(), Dialog.okButton({ label: trans.__('Write') })],
+    focusNodeSelector: 'input'
+  }).launch();
+  if (!answer.button.accept || !answer.value) {
+    return;
+  }
+  const arrays: Record<string, ArrayData> = {};
+  for (const k of keys) {
+    const a = run.arrays[k];
+    arrays[k] = {
+      data: a.data,
+      shape: a.shape,
+      complex: a.complex,
+      dtype: a.complex ? 'complex128' : 'float64'
+    };
+  }
+  const params = {
+    setup: run.params,
+    label: run.label,
+    status: run.status,
+    fs: run.fs,
+    figures: Object.fromEntries(
+      run.figures.map(f => [f.key, { value: f.value, unit: f.unit, label: f.label }])
+    ),
+    messages: [...run.messages]
+  };
+  try {
+    let result = await writer.writeRecord(answer.value, arrays, params);
+    if (result.status !== 'written') {
+      if (!(await confirmReplace(trans, result.name, result.message))) {
+        return;
+      }
+      result = await writer.writeRecord(result.name, arrays, params, { overwrite: true });
+    }
+    if (result.status === 'written') {
+      Notification.success(
+        trans.__(
+          'Wrote the run to the kernel as %1: a dict of %2 and params.',
+          result.name,
+          keys.join(', ')
+        ),
+        { autoClose: 5000 }
+      );
+      afterWrite();
+    }
+  } catch (e) {
+    Notification.error(
+      trans.__('Writing the run failed: %1', e instanceof Error ? e.message : String(e)),
       {
         autoClose: false
       }
