@@ -157,10 +157,14 @@ test("the shortcut sends the active cell's array output to the panel", async () 
         ].join(' | ')
       )
     );
+  // The workbench plugin's schema adds its commands to the same submenu, ranked among these.
   expect(entries).toEqual([
     'Open Perpend Panel | ',
+    'Open Perpend Workbench | Ctrl+Alt+W',
     'List Notebook Arrays Again | Ctrl+Alt+R',
-    'Send Cell Output to Perpend | Ctrl+Alt+P'
+    'Send Cell Output to Perpend | Ctrl+Alt+P',
+    'Run All Set-ups Again | Ctrl+Shift+Enter',
+    'Cancel Running Set-ups | Ctrl+Shift+Esc'
   ]);
   await page.keyboard.press('Escape');
   await page.keyboard.press('Escape');

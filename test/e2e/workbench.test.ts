@@ -32,7 +32,9 @@ beforeAll(async () => {
     path.join(__dirname, '..', '..', 'demo', 'perpend-demo.ipynb'),
     path.join(lab.state.rootDir, NOTEBOOK)
   );
-  await openNotebook(page, lab.url(`/lab/tree/${NOTEBOOK}`));
+  // A workspace of its own: the layout it leaves (a second notebook, the workbench tab) is not
+  // restored into the other browser tests' default workspace.
+  await openNotebook(page, lab.url(`/lab/workspaces/perpend-workbench/tree/${NOTEBOOK}`));
   await runAllCells(page);
   await palette(page, 'Open Perpend Workbench');
   await bench().waitFor({ timeout: 30000 });
