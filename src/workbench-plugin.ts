@@ -193,6 +193,12 @@ const plugin: JupyterFrontEndPlugin<void> = {
       });
     }
 
+    // Buttons bound to these commands (the side panel's toolbar) follow the active notebook.
+    notebooks.currentChanged.connect(() => app.commands.notifyCommandChanged(CommandIDs.open));
+    tracker.currentChanged.connect(() => {
+      app.commands.notifyCommandChanged(CommandIDs.runAll);
+      app.commands.notifyCommandChanged(CommandIDs.cancelAll);
+    });
     NotebookActions.executed.connect((_, { notebook, cell }) => {
       const panel = notebooks.find(p => p.content === notebook);
       if (panel) {

@@ -9,7 +9,17 @@ import fs from 'node:fs';
 import net from 'node:net';
 import path from 'node:path';
 
-export const REPO = path.resolve(__dirname, '../..');
+/** The repository: the nearest folder above with a package.json (test/e2e, or .bench/test/e2e). */
+export const REPO = ((): string => {
+  for (let d = __dirname; ; d = path.dirname(d)) {
+    if (fs.existsSync(path.join(d, 'package.json'))) {
+      return d;
+    }
+    if (path.dirname(d) === d) {
+      return path.resolve(__dirname, '../..');
+    }
+  }
+})();
 export const ARTIFACTS = path.join(REPO, 'test-artifacts');
 export const STATE_FILE = path.join(ARTIFACTS, 'e2e-server.json');
 
