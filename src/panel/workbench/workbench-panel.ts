@@ -167,13 +167,12 @@ export class WorkbenchPanel extends Widget {
     }
     this._closeEditor();
     if (run && setupId) {
-      const started = this._model.run(setupId);
-      // Show the newest run of this set-up as soon as it exists.
+      void this._model.run(setupId);
+      // The run exists as soon as it starts reading: show it.
       const newest = this._model.runsOf(setupId).slice(-1)[0];
       if (newest) {
         this.showRun(newest.id);
       }
-      void started;
     }
     return null;
   }
