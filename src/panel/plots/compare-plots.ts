@@ -4,8 +4,9 @@
  * a column's header and saved as CSV.
  */
 import type { Message } from '@lumino/messaging';
+import { RenderWidget } from '../render-widget';
 import type { ISignal } from '@lumino/signaling';
-import { Widget } from '@lumino/widgets';
+import { type Widget } from '@lumino/widgets';
 import type { Trans } from '../../model/workbench/rules';
 import type { Run } from '../../model/workbench/runs';
 import {
@@ -22,7 +23,7 @@ import { loadPlotlyDist, type LoadPlotly } from './plotly';
 import type { IRunSource } from './run-source';
 import { DEFAULT_PLOT_SETTINGS, type PlotSettings } from './settings';
 
-export class ComparePlots extends Widget {
+export class ComparePlots extends RenderWidget {
   constructor(options: ComparePlots.IOptions) {
     super();
     this.addClass('pp-ComparePlots');
@@ -85,19 +86,8 @@ export class ComparePlots extends Widget {
     super.dispose();
   }
 
-  protected onUpdateRequest(_msg: Message): void {
-    if (!this.isVisible) {
-      this._stale = true;
-      return;
-    }
-    this._stale = false;
-    this._render();
-  }
-
-  protected onAfterShow(_msg: Message): void {
-    if (this._stale) {
-      this.update();
-    }
+  protected onAfterShow(msg: Message): void {
+    super.onAfterShow(msg);
     this._pane.onShown();
   }
 
@@ -116,7 +106,8 @@ export class ComparePlots extends Widget {
     }
   }
 
-  private _render(): void {
+  /** Paints the plot (RenderWidget calls it only while visible). */
+  protected render(): void {
     const trans = this._trans;
     const runs = this._runs();
     const rows = sortRows(compareRows(runs), this._sort.key, this._sort.direction);
@@ -255,7 +246,6 @@ export class ComparePlots extends Widget {
   };
   private _smoothing: number | null = null;
   private _plotKey: unknown[] | null = null;
-  private _stale = false;
 }
 
 export namespace ComparePlots {

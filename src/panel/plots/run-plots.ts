@@ -4,8 +4,9 @@
  * number drawn comes from the core (see ./views.ts).
  */
 import type { Message } from '@lumino/messaging';
+import { RenderWidget } from '../render-widget';
 import type { ISignal } from '@lumino/signaling';
-import { Widget } from '@lumino/widgets';
+import { type Widget } from '@lumino/widgets';
 import type { Trans } from '../../model/workbench/rules';
 import type { Run } from '../../model/workbench/runs';
 import { PlotPane } from './plot-pane';
@@ -28,7 +29,7 @@ import {
   type ViewOptions
 } from './views';
 
-export class RunPlots extends Widget {
+export class RunPlots extends RenderWidget {
   constructor(options: RunPlots.IOptions) {
     super();
     this.addClass('pp-RunPlots');
@@ -99,19 +100,8 @@ export class RunPlots extends Widget {
     super.dispose();
   }
 
-  protected onUpdateRequest(_msg: Message): void {
-    if (!this.isVisible) {
-      this._stale = true;
-      return;
-    }
-    this._stale = false;
-    this._render();
-  }
-
-  protected onAfterShow(_msg: Message): void {
-    if (this._stale) {
-      this.update();
-    }
+  protected onAfterShow(msg: Message): void {
+    super.onAfterShow(msg);
     this._pane.onShown();
   }
 
@@ -129,7 +119,8 @@ export class RunPlots extends Widget {
     }
   }
 
-  private _render(): void {
+  /** Paints the plot (RenderWidget calls it only while visible). */
+  protected render(): void {
     const trans = this._trans;
     const run = this._run();
     const views = run ? viewsOf(run) : [];
@@ -355,7 +346,6 @@ export class RunPlots extends Widget {
     view: ViewKind;
     options: ViewOptions;
   } | null = null;
-  private _stale = false;
 }
 
 export namespace RunPlots {
