@@ -233,16 +233,14 @@ export class WorkbenchModel {
 
   /** The kernel restarted: runs still reading fail by themselves; computing runs are noted. */
   kernelRestarted(): void {
+    const note = this._trans.__(
+      'The kernel restarted during this run; it goes on with the arrays read before.'
+    );
+    // A restart is announced more than once (restarting, autorestarting, a new connection):
+    // the run says it once.
     for (const r of this._runs) {
-      if (r.status === 'running') {
-        this._set(r.id, {
-          messages: [
-            ...r.messages,
-            this._trans.__(
-              'The kernel restarted during this run; it goes on with the arrays read before.'
-            )
-          ]
-        });
+      if (r.status === 'running' && !r.messages.includes(note)) {
+        this._set(r.id, { messages: [...r.messages, note] });
       }
     }
   }

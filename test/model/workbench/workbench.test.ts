@@ -337,6 +337,22 @@ describe('WorkbenchModel', () => {
     }
   });
 
+  it('a kernel restart announced several times is said once on the running run', async () => {
+    const { model, runner } = make();
+    const id = (
+      model.add(cancellation({ x: vr('reference'), d: vr('primary') }), 'nc') as { id: string }
+    ).id;
+    const p = model.run(id);
+    await tick();
+    model.kernelRestarted();
+    model.kernelRestarted();
+    model.kernelRestarted();
+    runner.jobs[0].finish(outcome);
+    const [r] = await p;
+    expect(r.status).toBe('ok');
+    expect(r.messages.filter(m => /kernel restarted/.test(m))).toHaveLength(1);
+  });
+
   it('closing the notebook cancels runs in flight and writes nothing more', async () => {
     const { model, runner, host } = make();
     const id = (
