@@ -7,6 +7,7 @@ import {
   ICommandPalette,
   MainAreaWidget,
   Dialog,
+  Notification,
   showDialog,
   WidgetTracker
 } from '@jupyterlab/apputils';
@@ -23,7 +24,8 @@ import { notebookTarget } from './panel/notebook-target';
 import { perpendIcon } from './panel/icons';
 import { WorkbenchManager } from './panel/workbench/workbench-manager';
 import { WorkbenchPanel } from './panel/workbench/workbench-panel';
-import { writeRunArray, writeWholeRun } from './panel/workbench/write-back';
+import { writePlotData, writeRunArray, writeWholeRun } from './panel/workbench/write-back';
+import { createPlotTab, plotTargetOf, type PlotTarget } from './panel/plots/plot-tab';
 import { createBrowserWorkerPool } from './worker/client';
 import type { WorkerPool } from './worker/pool';
 import { DEFAULT_SETTINGS, IPerpend, type IPerpendSettings } from './tokens';
@@ -124,7 +126,20 @@ const plugin: JupyterFrontEndPlugin<void> = {
               }
             },
             hints: () => Private.kernelHints(entry.listing.bridge),
-            refresh: () => void entry.listing.refresh()
+            refresh: () => void entry.listing.refresh(),
+            writePlot: (record, stem) =>
+              void writePlotData(
+                trans,
+                entry.listing.bridge,
+                record,
+                stem,
+                () => void entry.listing.refresh()
+              ),
+            openPlot: target =>
+              void app.commands.execute(CommandIDs.openPlot, {
+                ...target,
+                path: panel.context.path
+              })
           }
         });
         widget = new MainAreaWidget({ content });
@@ -148,6 +163,30 @@ const plugin: JupyterFrontEndPlugin<void> = {
     };
 
     const currentWorkbench = (): MainAreaWidget<WorkbenchPanel> | null => tracker.currentWidget;
+
+    let plotTabs = 0;
+    /** A view of a run, or the comparison, in a tab of its own beside the workbench. */
+    const openPlotTab = (wb: MainAreaWidget<WorkbenchPanel>, target: PlotTarget): void => {
+      const panel = [...widgets].find(([, w]) => w === wb)?.[0];
+      const entry = panel ? manager.existing(panel) : undefined;
+      const tab = createPlotTab({
+        trans,
+        model: wb.content.model,
+        target,
+        owner: wb,
+        writeData: (record, stem) =>
+          void writePlotData(
+            trans,
+            entry?.listing.bridge ?? null,
+            record,
+            stem,
+            () => void entry?.listing.refresh()
+          )
+      });
+      tab.id = `perpend-plot-${++plotTabs}`;
+      app.shell.add(tab, 'main', { mode: 'tab-after', ref: wb.id });
+      app.shell.activateById(tab.id);
+    };
 
     app.commands.addCommand(CommandIDs.open, {
       label: trans.__('Open Perpend Workbench'),
@@ -179,9 +218,39 @@ const plugin: JupyterFrontEndPlugin<void> = {
         ) ?? false,
       execute: () => currentWorkbench()?.content.model.cancelAll()
     });
+    app.commands.addCommand(CommandIDs.openPlot, {
+      label: trans.__('Open Plot in a Tab'),
+      caption: trans.__(
+        'Open the plot of the run shown in the workbench (or the given view or comparison) in a tab of its own'
+      ),
+      isEnabled: args => typeof args.path === 'string' || currentWorkbench() !== null,
+      execute: args => {
+        const path = typeof args.path === 'string' ? args.path : null;
+        const wb = path
+          ? [...widgets].find(([p, w]) => p.context.path === path && !w.isDisposed)?.[1]
+          : currentWorkbench();
+        if (!wb) {
+          return;
+        }
+        const target = plotTargetOf(args) ?? wb.content.shownPlot;
+        if (!target) {
+          Notification.warning(
+            trans.__('Show a run with plots in the workbench first, then open its plot in a tab.'),
+            { autoClose: 5000 }
+          );
+          return;
+        }
+        openPlotTab(wb, target);
+      }
+    });
     if (palette) {
       const category = trans.__('Perpend');
-      for (const command of [CommandIDs.open, CommandIDs.runAll, CommandIDs.cancelAll]) {
+      for (const command of [
+        CommandIDs.open,
+        CommandIDs.runAll,
+        CommandIDs.cancelAll,
+        CommandIDs.openPlot
+      ]) {
         palette.addItem({ command, category });
       }
     }
@@ -252,6 +321,8 @@ namespace CommandIDs {
   export const runAll = 'perpend:workbench-run-all';
   /** Cancel every run in flight in the current workbench. */
   export const cancelAll = 'perpend:workbench-cancel-all';
+  /** A view of a run, or the comparison, in a main-area tab of its own. */
+  export const openPlot = 'perpend:open-plot-tab';
 }
 
 namespace Private {

@@ -1,7 +1,7 @@
 /**
- * Runs side by side: their learning curves overlaid (the legend names each run) and beside it a
- * table of convergence time, steady-state MSE, misadjustment and run time, sorted by a click on
- * a column's header and saved as CSV.
+ * Runs side by side: their learning curves, spectra or weights' responses overlaid (the legend
+ * names each run) and beside it a table of convergence time, steady-state MSE, misadjustment
+ * and run time, sorted by a click on a column's header and saved as CSV.
  */
 import type { Message } from '@lumino/messaging';
 import { RenderWidget } from '../render-widget';
@@ -11,6 +11,7 @@ import type { Trans } from '../../model/workbench/rules';
 import type { Run } from '../../model/workbench/runs';
 import {
   cellText,
+  comparable,
   compareColumns,
   compareCsv,
   compareRows,
@@ -18,10 +19,23 @@ import {
   sortRows,
   type CompareKey
 } from './compare';
+import {
+  COMPARE_KINDS,
+  compareKindLabel,
+  compareResponseSpec,
+  compareSpectrumRequests,
+  compareSpectrumSpec,
+  responseRuns,
+  spectrumRuns,
+  type CompareKind
+} from './compare-overlays';
+import { welch } from '../../core';
 import { downloadText, PlotPane } from './plot-pane';
 import { loadPlotlyDist, type LoadPlotly } from './plotly';
 import type { IRunSource } from './run-source';
 import { DEFAULT_PLOT_SETTINGS, type PlotSettings } from './settings';
+import type { PlotSpec } from './spec';
+import type { ComputePsd } from './views';
 
 export class ComparePlots extends RenderWidget {
   constructor(options: ComparePlots.IOptions) {
@@ -30,6 +44,8 @@ export class ComparePlots extends RenderWidget {
     this._trans = options.trans;
     this._model = options.model;
     this._settings = { ...DEFAULT_PLOT_SETTINGS, ...options.settings };
+    this._computePsd = options.computePsd ?? ((signal, o) => welch(signal, o));
+    this._openTab = options.openTab ?? null;
     this._bar = document.createElement('div');
     this._bar.className = 'pp-Plots-bar';
     this._hint = document.createElement('p');
@@ -39,7 +55,8 @@ export class ComparePlots extends RenderWidget {
       trans: this._trans,
       loadPlotly: options.loadPlotly ?? loadPlotlyDist,
       settings: this._settings,
-      themeChanged: options.themeChanged
+      themeChanged: options.themeChanged,
+      writeData: options.writeData
     });
     this._table = document.createElement('div');
     this._table.className = 'pp-ComparePlots-table';
@@ -59,6 +76,18 @@ export class ComparePlots extends RenderWidget {
     this._runIds = [...ids];
     this._plotKey = null;
     this.update();
+  }
+
+  /** What is overlaid: learning curves, spectra or the final weights' responses. */
+  get kind(): CompareKind {
+    return this._kind;
+  }
+  set kind(k: CompareKind) {
+    if (k !== this._kind) {
+      this._kind = k;
+      this._plotKey = null;
+      this.update();
+    }
   }
 
   /** The sort of the table. */
@@ -106,14 +135,27 @@ export class ComparePlots extends RenderWidget {
     }
   }
 
+  /** The runs the chosen overlay can draw. */
+  private _overlaid(runs: Run[]): Run[] {
+    switch (this._kind) {
+      case 'learning':
+        return comparable(runs);
+      case 'spectrum':
+        return spectrumRuns(runs);
+      case 'response':
+        return responseRuns(runs);
+    }
+  }
+
   /** Paints the plot (RenderWidget calls it only while visible). */
   protected render(): void {
     const trans = this._trans;
     const runs = this._runs();
     const rows = sortRows(compareRows(runs), this._sort.key, this._sort.direction);
-    if (rows.length === 0) {
+    const shown = this._overlaid(runs);
+    if (runs.length === 0) {
       this._hint.textContent = trans.__(
-        'Choose adaptive-filter runs to compare their learning curves and figures.'
+        'Tick runs to compare their learning curves, spectra, weights responses and figures.'
       );
       this._hint.hidden = false;
       this._bar.replaceChildren();
@@ -122,11 +164,22 @@ export class ComparePlots extends RenderWidget {
       this._pane.show(null);
       return;
     }
-    this._hint.hidden = true;
-    this._renderBar(rows.length);
+    this._renderBar(shown.length);
     this._renderTable(rows);
-    const shown = runs.filter(r => rows.some(row => row.id === r.id));
-    const key = shown.map(r => r.arrays.learningCurve).concat([this._smoothing as never]);
+    if (shown.length === 0) {
+      this._hint.textContent =
+        this._kind === 'learning'
+          ? trans.__('None of the runs ticked has a learning curve (adaptive-filter runs do).')
+          : this._kind === 'spectrum'
+            ? trans.__('None of the runs ticked has an error or output to take a spectrum of.')
+            : trans.__('None of the runs ticked has final weights (adaptive-filter runs do).');
+      this._hint.hidden = false;
+      this._plotKey = null;
+      this._pane.show(null);
+      return;
+    }
+    this._hint.hidden = true;
+    const key: unknown[] = [this._kind, this._smoothing, ...shown.map(r => r.arrays)];
     if (
       this._plotKey &&
       this._plotKey.length === key.length &&
@@ -135,11 +188,64 @@ export class ComparePlots extends RenderWidget {
       return;
     }
     this._plotKey = key;
-    this._pane.show(compareSpec(trans, shown, this._smoothing));
+    const fail = (err: unknown): void => {
+      this._pane.show(null);
+      this._pane.showError(
+        trans.__(
+          'This comparison cannot be drawn: %1',
+          err instanceof Error ? err.message : String(err)
+        )
+      );
+    };
+    try {
+      if (this._kind === 'spectrum') {
+        this._spectraAsync(shown, key).catch(fail);
+        return;
+      }
+      const spec: PlotSpec =
+        this._kind === 'learning'
+          ? compareSpec(trans, shown, this._smoothing)
+          : compareResponseSpec(trans, shown, this._settings);
+      this._pane.show(spec);
+    } catch (err) {
+      fail(err);
+    }
+  }
+
+  /** The spectra through the PSD function (a worker job, or the core on this thread). */
+  private async _spectraAsync(runs: Run[], key: unknown[]): Promise<void> {
+    const requests = compareSpectrumRequests(this._trans, runs, this._settings);
+    this._pane.show(null);
+    this._pane.status.textContent = this._trans.__('Computing the spectra…');
+    const results = await Promise.all(
+      requests.map(r => Promise.resolve().then(() => this._computePsd(r.signal, r.options)))
+    );
+    // The latest request wins: a newer choice or result made while these ran replaces them.
+    if (this.isDisposed || this._plotKey !== key) {
+      return;
+    }
+    this._pane.show(compareSpectrumSpec(this._trans, runs, requests, results));
   }
 
   private _renderBar(count: number): void {
     const trans = this._trans;
+    const tabs = document.createElement('div');
+    tabs.className = 'pp-Plots-tabs';
+    tabs.setAttribute('role', 'tablist');
+    tabs.setAttribute('aria-label', trans.__('What the comparison overlays'));
+    for (const k of COMPARE_KINDS) {
+      const b = document.createElement('button');
+      b.type = 'button';
+      b.className = 'pp-Plots-tab';
+      b.setAttribute('role', 'tab');
+      b.setAttribute('aria-selected', String(k === this._kind));
+      b.dataset.compare = k;
+      b.textContent = compareKindLabel(trans, k);
+      b.addEventListener('click', () => {
+        this.kind = k;
+      });
+      tabs.append(b);
+    }
     const label = document.createElement('label');
     label.className = 'pp-Plots-control';
     label.append(trans.__('Smoothing (samples)') + ' ');
@@ -179,12 +285,20 @@ export class ComparePlots extends RenderWidget {
     });
     const controls = document.createElement('div');
     controls.className = 'pp-Plots-controls';
+    if (this._kind === 'learning') {
+      controls.append(label);
+    }
+    const openTab = this._openTab;
     controls.append(
-      label,
-      this._pane.exportButtons(() => 'learning-curves'),
+      this._pane.exportButtons(() => `comparison ${compareKindLabel(trans, this._kind)}`, {
+        openTab: openTab ? () => openTab([...this._runIds], this._kind) : undefined
+      }),
       csv
     );
-    this._bar.replaceChildren(title, controls);
+    const head = document.createElement('div');
+    head.className = 'pp-Plots-head';
+    head.append(tabs, title);
+    this._bar.replaceChildren(head, controls);
   }
 
   private _renderTable(rows: ReturnType<typeof compareRows>): void {
@@ -239,6 +353,9 @@ export class ComparePlots extends RenderWidget {
   private readonly _table: HTMLDivElement;
   private readonly _pane: PlotPane;
   private _settings: PlotSettings;
+  private readonly _computePsd: ComputePsd;
+  private readonly _openTab: ((runIds: string[], kind: CompareKind) => void) | null;
+  private _kind: CompareKind = 'learning';
   private _runIds: string[] = [];
   private _sort: { key: CompareKey; direction: 'ascending' | 'descending' } = {
     key: 'steadyStateMseDb',
@@ -258,5 +375,14 @@ export namespace ComparePlots {
     settings?: Partial<PlotSettings>;
     /** IThemeManager.themeChanged, when available; otherwise the body's theme name is watched. */
     themeChanged?: ISignal<unknown, unknown>;
+    /**
+     * Computes the Welch estimates of the spectra (for example as a worker job). Default: the
+     * core's `welch` on the main thread.
+     */
+    computePsd?: ComputePsd;
+    /** Writes the plotted data to the kernel (asks the name); no button without it. */
+    writeData?: PlotPane.WriteData;
+    /** Opens the comparison of these runs in a tab of its own; no button without it. */
+    openTab?: (runIds: string[], kind: CompareKind) => void;
   }
 }

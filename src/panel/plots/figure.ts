@@ -55,6 +55,12 @@ function staticTrace(s: StaticTrace, theme: PlotTheme): PlotObject {
   if (s.lower) {
     base.yaxis = 'y2';
   }
+  if (s.noLegend) {
+    base.showlegend = false;
+  }
+  if (s.group !== undefined) {
+    base.legendgroup = s.group;
+  }
   switch (s.kind) {
     case 'bar':
       return { ...base, type: 'bar', marker: { color } };
@@ -266,11 +272,13 @@ export function buildFigure(
 export class CsvTooLarge extends Error {}
 
 /**
- * CSV of what the visible x-range shows, at full resolution: every sample of each long series
- * (not the envelope) and each short trace's points inside the range. Series on one grid share
- * the x column; otherwise each gets its own x column.
+ * The columns of what the visible x-range shows, at full resolution: every sample of each long
+ * series (not the envelope) and each short trace's points inside the range, each column with
+ * its header (name and unit). Series on one grid share the x column; otherwise each gets its
+ * own x column. Throws CsvTooLarge when a series holds more than `maxRows` samples in range.
+ * The CSV export and the write to the kernel both hold these columns.
  */
-export function figureCsv(spec: PlotSpec, range: XRange, maxRows: number): string {
+export function plotColumns(spec: PlotSpec, range: XRange, maxRows: number): CsvColumn[] {
   const columns: CsvColumn[] = [];
   const xHeader = withUnit(spec.xTitle.replace(/\s*\([^)]*\)\s*$/, ''), spec.xUnit);
   const partName = (l: LineSource): string =>
@@ -286,7 +294,7 @@ export function figureCsv(spec: PlotSpec, range: XRange, maxRows: number): strin
       const [i0, i1] = indexRange(l, range);
       if (i1 - i0 > maxRows) {
         throw new CsvTooLarge(
-          `The visible range holds ${i1 - i0} samples of "${l.name}"; a CSV export takes at most ${maxRows} rows. Zoom in first.`
+          `The visible range holds ${i1 - i0} samples of "${l.name}"; an export takes at most ${maxRows} rows. Zoom in first.`
         );
       }
     }
@@ -302,6 +310,7 @@ export function figureCsv(spec: PlotSpec, range: XRange, maxRows: number): strin
   const lo = range ? Math.min(range[0], range[1]) : -Infinity;
   const hi = range ? Math.max(range[0], range[1]) : Infinity;
   for (const t of spec.traces) {
+    const numeric = t.x.length === 0 || typeof t.x[0] === 'number';
     const xs: Array<number | string> = [];
     const ys: number[] = [];
     for (let k = 0; k < t.y.length; k++) {
@@ -312,8 +321,22 @@ export function figureCsv(spec: PlotSpec, range: XRange, maxRows: number): strin
       xs.push(x);
       ys.push(t.y[k]);
     }
-    columns.push({ header: `${xHeader} · ${t.name}`, values: xs });
-    columns.push({ header: `${t.name} · ${spec.yTitle}`, values: ys });
+    if (ys.length > maxRows) {
+      throw new CsvTooLarge(
+        `The visible range holds ${ys.length} points of "${t.name}"; an export takes at most ${maxRows} rows. Zoom in first.`
+      );
+    }
+    const yTitle = t.lower && spec.y2Title !== undefined ? spec.y2Title : spec.yTitle;
+    columns.push({
+      header: `${xHeader} · ${t.name}`,
+      values: numeric ? Float64Array.from(xs as number[]) : xs
+    });
+    columns.push({ header: `${t.name} · ${yTitle}`, values: Float64Array.from(ys) });
   }
-  return csvText(columns);
+  return columns;
+}
+
+/** CSV of what the visible x-range shows, at full resolution (the columns of `plotColumns`). */
+export function figureCsv(spec: PlotSpec, range: XRange, maxRows: number): string {
+  return csvText(plotColumns(spec, range, maxRows));
 }

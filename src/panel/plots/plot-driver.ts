@@ -5,9 +5,10 @@
  * the graph on dispose. It holds no DOM of its own beyond the node it is given.
  */
 import type { IDisposable } from '@lumino/disposable';
-import { buildFigure, figureCsv, plotAreaWidth, type YRanges } from './figure';
+import { buildFigure, figureCsv, plotAreaWidth, plotColumns, type YRanges } from './figure';
 import type { XRange } from './lines';
 import type { LoadPlotly, PlotlyGraph, PlotlyLike } from './plotly';
+import { plotRecord, type PlotRecord } from './plot-record';
 import { columnsFor, type PlotSettings } from './settings';
 import type { PlotSpec } from './spec';
 import type { PlotTheme } from './theme';
@@ -114,6 +115,24 @@ export class PlotDriver implements IDisposable {
       throw new Error('nothing is plotted');
     }
     return figureCsv(this._spec, this._range, this._settings.csvMaxRows);
+  }
+
+  /**
+   * The data of the visible range as a record for the kernel (the CSV's columns as arrays).
+   * Throws CsvTooLarge past the row limit.
+   */
+  record(): PlotRecord {
+    const spec = this._spec;
+    if (!spec) {
+      throw new Error('nothing is plotted');
+    }
+    return plotRecord(plotColumns(spec, this._range, this._settings.csvMaxRows), {
+      title: spec.title,
+      xTitle: spec.xTitle,
+      yTitle: spec.yTitle,
+      y2Title: spec.y2Title,
+      range: this._range
+    });
   }
 
   /** PNG or SVG of the graph through plotly. */

@@ -11,6 +11,7 @@ import { CsvTooLarge } from './figure';
 import { fileStem } from './csv';
 import { PlotDriver } from './plot-driver';
 import type { LoadPlotly } from './plotly';
+import type { PlotRecord } from './plot-record';
 import type { PlotSettings } from './settings';
 import type { PlotSpec } from './spec';
 import { readTheme } from './theme';
@@ -33,6 +34,7 @@ export class PlotPane {
   constructor(options: PlotPane.IOptions) {
     this._owner = options.owner;
     this._trans = options.trans;
+    this._writeData = options.writeData ?? null;
     this.node = document.createElement('div');
     this.node.className = 'pp-PlotPane';
     this.graph = document.createElement('div');
@@ -114,8 +116,11 @@ export class PlotPane {
     }
   }
 
-  /** The export buttons (PNG, SVG, CSV of the visible range). */
-  exportButtons(stem: () => string): HTMLElement {
+  /**
+   * The export buttons: PNG, SVG, CSV of the visible range, the same data to the kernel (when
+   * the pane can write) and, when `openTab` is given, the view in a tab of its own.
+   */
+  exportButtons(stem: () => string, more: { openTab?: () => void } = {}): HTMLElement {
     const trans = this._trans;
     const box = document.createElement('span');
     box.className = 'pp-PlotPane-exports';
@@ -141,6 +146,20 @@ export class PlotPane {
     button('CSV', trans.__('Save the data of the visible range, every sample, as CSV'), () => {
       downloadText(this.driver.csv(), `${fileStem(stem())}.csv`);
     });
+    const write = this._writeData;
+    if (write) {
+      button(
+        trans.__('To kernel'),
+        trans.__(
+          'Write the data of the visible range, every sample, to the kernel as a dict of arrays'
+        ),
+        () => write(this.driver.record(), stem())
+      );
+    }
+    const openTab = more.openTab;
+    if (openTab) {
+      button(trans.__('Open in tab'), trans.__('Open this view in a tab of its own'), openTab);
+    }
     return box;
   }
 
@@ -214,6 +233,7 @@ export class PlotPane {
 
   private readonly _owner: Widget;
   private readonly _trans: Trans;
+  private readonly _writeData: PlotPane.WriteData | null;
   private readonly _themeChanged: ISignal<unknown, unknown> | null;
   private _themeObserver: MutationObserver | null = null;
   private _resizeObserver: ResizeObserver | null = null;
@@ -232,5 +252,10 @@ export namespace PlotPane {
     loadPlotly: LoadPlotly;
     settings: PlotSettings;
     themeChanged?: ISignal<unknown, unknown>;
+    /** Writes a plot's data to the kernel (asks the name); no button without it. */
+    writeData?: WriteData;
   }
+
+  /** Writes a plot's data (its record and a name stem to suggest) to the kernel. */
+  export type WriteData = (record: PlotRecord, stem: string) => void;
 }

@@ -37,6 +37,7 @@ export class RunPlots extends RenderWidget {
     this._model = options.model;
     this._settings = { ...DEFAULT_PLOT_SETTINGS, ...options.settings };
     this._computePsd = options.computePsd ?? null;
+    this._openTab = options.openTab ?? null;
     this._bar = document.createElement('div');
     this._bar.className = 'pp-Plots-bar';
     this._hint = document.createElement('p');
@@ -46,7 +47,8 @@ export class RunPlots extends RenderWidget {
       trans: this._trans,
       loadPlotly: options.loadPlotly ?? loadPlotlyDist,
       settings: this._settings,
-      themeChanged: options.themeChanged
+      themeChanged: options.themeChanged,
+      writeData: options.writeData
     });
     this.node.append(this._bar, this._hint, this._pane.node);
     this._model.runChanged.connect(this._onRun, this);
@@ -222,7 +224,12 @@ export class RunPlots extends RenderWidget {
       const t = run.arrays.trajectory;
       controls.append(this._tapsControl(t.shape[t.shape.length - 1]));
     }
-    controls.append(this._pane.exportButtons(() => `${run.label} ${viewLabel(trans, view)}`));
+    const openTab = this._openTab;
+    controls.append(
+      this._pane.exportButtons(() => `${run.label} ${viewLabel(trans, view)}`, {
+        openTab: openTab ? () => openTab(run.id, view) : undefined
+      })
+    );
     this._bar.replaceChildren(tabs, controls);
   }
 
@@ -337,6 +344,7 @@ export class RunPlots extends RenderWidget {
   private readonly _pane: PlotPane;
   private _settings: PlotSettings;
   private readonly _computePsd: ComputePsd | null;
+  private readonly _openTab: ((runId: string, view: ViewKind) => void) | null;
   private _runId: string | null = null;
   private _view: ViewKind | null = null;
   private _options: ViewOptions = DEFAULT_VIEW_OPTIONS;
@@ -363,5 +371,9 @@ export namespace RunPlots {
      * the core's `welch` on the main thread (~8 ms for 1e5 samples, ~0.1 s for 1e6 here).
      */
     computePsd?: ComputePsd;
+    /** Writes the plotted data to the kernel (asks the name); no button without it. */
+    writeData?: PlotPane.WriteData;
+    /** Opens a view of a run in a tab of its own; no button without it. */
+    openTab?: (runId: string, view: ViewKind) => void;
   }
 }

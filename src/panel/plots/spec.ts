@@ -15,6 +15,10 @@ export interface StaticTrace {
   dash?: 'dot' | 'dash';
   /** Second y-axis (lower subplot). */
   lower?: boolean;
+  /** Left out of the legend (a second part of a trace that has an entry). */
+  noLegend?: boolean;
+  /** Traces of one group show and hide together from the legend. */
+  group?: string;
 }
 
 /** A horizontal (y = value) or vertical (x = value) marker line with a label. */

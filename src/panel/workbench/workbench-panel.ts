@@ -13,6 +13,8 @@ import { TOOLS, type SetupParams, type Tool } from '../../model/workbench/setup'
 import type { WorkbenchModel } from '../../model/workbench/workbench';
 import type { ISourceCatalog } from '../../model/workbench/catalog';
 import { ComparePlots, RunPlots } from '../plots';
+import type { PlotPane } from '../plots/plot-pane';
+import type { PlotTarget } from '../plots/plot-tab';
 import { RunDetail } from './run-detail';
 import { SetupEditor } from './setup-editor';
 import { SetupsView } from './setups-view';
@@ -56,9 +58,21 @@ export class WorkbenchPanel extends Widget {
     // The run's arrays and parameters come after its plots: numbers, then pictures, then data.
     this._arrays = new RunDetail({ trans, model: this._model, actions, part: 'arrays' });
     this._editor.hide();
-    this._plots = new RunPlots({ trans, model: this._model });
+    const host = options.host;
+    const openPlot = host.openPlot?.bind(host);
+    this._plots = new RunPlots({
+      trans,
+      model: this._model,
+      writeData: host.writePlot?.bind(host),
+      openTab: openPlot ? (runId, view) => openPlot({ runId, view }) : undefined
+    });
     this._plots.addClass('pp-Workbench-plots');
-    this._compare = new ComparePlots({ trans, model: this._model });
+    this._compare = new ComparePlots({
+      trans,
+      model: this._model,
+      writeData: host.writePlot?.bind(host),
+      openTab: openPlot ? (runIds, compare) => openPlot({ runIds, compare }) : undefined
+    });
     this._compare.addClass('pp-Workbench-compare');
     this._compare.hide();
 
@@ -130,6 +144,17 @@ export class WorkbenchPanel extends Widget {
     this._plots.runId = runId;
     this._arrays.runId = runId;
     this._list.selectedRun = runId;
+  }
+
+  /** The view of the run shown (null: no run shown, or it has nothing to plot). */
+  get shownPlot(): PlotTarget | null {
+    const runId = this._plots.runId;
+    const views = this._plots.views;
+    if (runId === null || views.length === 0) {
+      return null;
+    }
+    const view = this._plots.view;
+    return { runId, view: view !== null && views.includes(view) ? view : views[0] };
   }
 
   /** Adds a run to the comparison (learning curves overlaid, a table beside) or takes it out. */
@@ -278,6 +303,10 @@ export namespace WorkbenchPanel {
     refresh(): void;
     /** What the kernel defines that new set-ups start from (fs, f0). */
     hints(): Promise<KernelHints>;
+    /** Writes a plot's data to the kernel (a button on every plot when given). */
+    writePlot?: PlotPane.WriteData;
+    /** Opens a view or the comparison in a tab of its own (a button on every plot when given). */
+    openPlot?(target: PlotTarget): void;
   }
   export interface IOptions {
     trans: TranslationBundle;

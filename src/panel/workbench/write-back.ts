@@ -6,6 +6,7 @@ import { Dialog, Notification } from '@jupyterlab/apputils';
 import type { TranslationBundle } from '@jupyterlab/translation';
 import type { ArrayData, WriteResult } from '../../bridge';
 import type { ResultArray, Run } from '../../model/workbench/runs';
+import { columnKey, type PlotRecord } from '../plots/plot-record';
 import { confirmReplace } from '../actions';
 import { FormDialog } from '../form-dialog';
 import { SaveDialogBody } from '../hum-dialog';
@@ -171,6 +172,73 @@ export async function writeWholeRun(
       {
         autoClose: false
       }
+    );
+  }
+}
+
+/**
+ * Asks for a name and writes a plot's data (what its CSV export holds: every sample of the
+ * visible range) as one dict of float64 arrays, with `params` naming each key's column and unit.
+ */
+export async function writePlotData(
+  trans: TranslationBundle,
+  writer: IKernelWriter | null,
+  record: PlotRecord,
+  stem: string,
+  afterWrite: () => void
+): Promise<void> {
+  const keys = Object.keys(record.arrays);
+  if (keys.length === 0) {
+    Notification.warning(trans.__('The plot shows no numbers to write.'), { autoClose: 5000 });
+    return;
+  }
+  if (!writer) {
+    Notification.error(trans.__('The notebook has no running kernel to write to.'), {
+      autoClose: false
+    });
+    return;
+  }
+  const body = new SaveDialogBody({
+    trans,
+    name: columnKey(`plot ${stem}`, new Set()).toLowerCase().slice(0, 40).replace(/_+$/, '')
+  });
+  const answer = await new FormDialog({
+    title: trans.__('Write the data of the plot %1 to the kernel', record.params.title),
+    body,
+    buttons: [Dialog.cancelButton(), Dialog.okButton({ label: trans.__('Write') })],
+    focusNodeSelector: 'input'
+  }).launch();
+  if (!answer.button.accept || !answer.value) {
+    return;
+  }
+  try {
+    let result = await writer.writeRecord(answer.value, record.arrays, record.params);
+    if (result.status !== 'written') {
+      if (!(await confirmReplace(trans, result.name, result.message))) {
+        return;
+      }
+      result = await writer.writeRecord(result.name, record.arrays, record.params, {
+        overwrite: true
+      });
+    }
+    if (result.status === 'written') {
+      Notification.success(
+        trans.__(
+          'Wrote the plotted data to the kernel as %1: a dict of %2 and params.',
+          result.name,
+          keys.join(', ')
+        ),
+        { autoClose: 5000 }
+      );
+      if (result.warnings.length) {
+        Notification.warning(result.warnings.join(' '), { autoClose: 8000 });
+      }
+      afterWrite();
+    }
+  } catch (e) {
+    Notification.error(
+      trans.__('Writing the plotted data failed: %1', e instanceof Error ? e.message : String(e)),
+      { autoClose: false }
     );
   }
 }

@@ -133,7 +133,7 @@ describe('CSV of the visible range', () => {
   test('past the row limit it refuses with what to do', () => {
     expect(() => figureCsv(spec, null, 1000)).toThrow(CsvTooLarge);
     expect(() => figureCsv(spec, null, 1000)).toThrow(
-      'The visible range holds 100000 samples of "primary d(n)"; a CSV export takes at most 1000 rows. Zoom in first.'
+      'The visible range holds 100000 samples of "primary d(n)"; an export takes at most 1000 rows. Zoom in first.'
     );
   });
 
