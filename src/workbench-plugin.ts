@@ -63,6 +63,7 @@ const plugin: JupyterFrontEndPlugin<void> = {
     let defaults: WorkbenchDefaults = { ...BUILTIN_DEFAULTS };
     let poolSize = 0;
     let memoryMiB = 1024;
+    let plotSettings = { csvMaxRows: 1_000_000 };
     let pool: WorkerPool | null = null;
     const getPool = (): WorkerPool => {
       pool ??= createBrowserWorkerPool({
@@ -142,6 +143,7 @@ const plugin: JupyterFrontEndPlugin<void> = {
               })
           }
         });
+        content.plotSettings = plotSettings;
         widget = new MainAreaWidget({ content });
         widget.id = `perpend-workbench-${panel.id}`;
         widget.title.label = trans.__(
@@ -174,6 +176,7 @@ const plugin: JupyterFrontEndPlugin<void> = {
         model: wb.content.model,
         target,
         owner: wb,
+        settings: plotSettings,
         writeData: (record, stem) =>
           void writePlotData(
             trans,
@@ -293,6 +296,15 @@ const plugin: JupyterFrontEndPlugin<void> = {
               epsilon: Number(c.epsilon ?? BUILTIN_DEFAULTS.epsilon),
               precision: c.precision === 'float32' ? 'float32' : 'float64'
             };
+            const rows = Number(c.plotExportMaxRows ?? 1_000_000);
+            if (rows !== plotSettings.csvMaxRows) {
+              plotSettings = { csvMaxRows: rows };
+              widgets.forEach(w => {
+                if (!w.isDisposed) {
+                  w.content.plotSettings = plotSettings;
+                }
+              });
+            }
             const size = Number(c.workers ?? 0);
             const mem = Number(c.runMemoryMiB ?? 1024);
             if (size !== poolSize || mem !== memoryMiB) {

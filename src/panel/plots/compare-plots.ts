@@ -29,13 +29,12 @@ import {
   spectrumRuns,
   type CompareKind
 } from './compare-overlays';
-import { welch } from '../../core';
+import { welch, type PsdResult, type SignalView, type WelchOptions } from '../../core';
 import { downloadText, PlotPane } from './plot-pane';
 import { loadPlotlyDist, type LoadPlotly } from './plotly';
 import type { IRunSource } from './run-source';
 import { DEFAULT_PLOT_SETTINGS, type PlotSettings } from './settings';
 import type { PlotSpec } from './spec';
-import type { ComputePsd } from './views';
 
 export class ComparePlots extends RenderWidget {
   constructor(options: ComparePlots.IOptions) {
@@ -44,7 +43,7 @@ export class ComparePlots extends RenderWidget {
     this._trans = options.trans;
     this._model = options.model;
     this._settings = { ...DEFAULT_PLOT_SETTINGS, ...options.settings };
-    this._computePsd = options.computePsd ?? ((signal, o) => welch(signal, o));
+    this._compute = options.compute ?? { welch: (signal, o) => welch(signal, o) };
     this._openTab = options.openTab ?? null;
     this._bar = document.createElement('div');
     this._bar.className = 'pp-Plots-bar';
@@ -218,7 +217,7 @@ export class ComparePlots extends RenderWidget {
     this._pane.show(null);
     this._pane.status.textContent = this._trans.__('Computing the spectra…');
     const results = await Promise.all(
-      requests.map(r => Promise.resolve().then(() => this._computePsd(r.signal, r.options)))
+      requests.map(r => Promise.resolve().then(() => this._compute.welch(r.signal, r.options)))
     );
     // The latest request wins: a newer choice or result made while these ran replaces them.
     if (this.isDisposed || this._plotKey !== key) {
@@ -353,7 +352,7 @@ export class ComparePlots extends RenderWidget {
   private readonly _table: HTMLDivElement;
   private readonly _pane: PlotPane;
   private _settings: PlotSettings;
-  private readonly _computePsd: ComputePsd;
+  private readonly _compute: ComparePlots.Compute;
   private readonly _openTab: ((runIds: string[], kind: CompareKind) => void) | null;
   private _kind: CompareKind = 'learning';
   private _runIds: string[] = [];
@@ -366,6 +365,10 @@ export class ComparePlots extends RenderWidget {
 }
 
 export namespace ComparePlots {
+  /** The long computation the comparison needs: Welch estimates (the core's `welch`). */
+  export interface Compute {
+    welch(signal: SignalView, options: WelchOptions): PsdResult | Promise<PsdResult>;
+  }
   export interface IOptions {
     trans: Trans;
     /** The runs (a WorkbenchModel). */
@@ -376,10 +379,10 @@ export namespace ComparePlots {
     /** IThemeManager.themeChanged, when available; otherwise the body's theme name is watched. */
     themeChanged?: ISignal<unknown, unknown>;
     /**
-     * Computes the Welch estimates of the spectra (for example as a worker job). Default: the
-     * core's `welch` on the main thread.
+     * Computes the Welch estimates of the spectra (for example as a worker job; the plots'
+     * PlotCompute seam fits). Default: the core's `welch` on the main thread.
      */
-    computePsd?: ComputePsd;
+    compute?: Compute;
     /** Writes the plotted data to the kernel (asks the name); no button without it. */
     writeData?: PlotPane.WriteData;
     /** Opens the comparison of these runs in a tab of its own; no button without it. */

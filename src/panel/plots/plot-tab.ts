@@ -17,7 +17,7 @@ import type { LoadPlotly } from './plotly';
 import type { IRunSource } from './run-source';
 import { RunPlots } from './run-plots';
 import type { PlotSettings } from './settings';
-import { viewLabel, type ComputePsd, type ViewKind } from './views';
+import { viewLabel, type ViewKind } from './views';
 
 /** What a plot tab shows: a view of one run, or a comparison of runs. */
 export type PlotTarget =
@@ -84,7 +84,6 @@ export function createPlotTab(options: PlotTab.IOptions): MainAreaWidget<PlotTab
     loadPlotly: options.loadPlotly,
     settings: options.settings,
     themeChanged: options.themeChanged,
-    computePsd: options.computePsd,
     writeData: options.writeData
   };
   let content: PlotTabContent;
@@ -133,7 +132,6 @@ export namespace PlotTab {
     loadPlotly?: LoadPlotly;
     settings?: Partial<PlotSettings>;
     themeChanged?: ISignal<unknown, unknown>;
-    computePsd?: ComputePsd;
     writeData?: PlotPane.WriteData;
   }
 }

@@ -14,6 +14,7 @@ import type { WorkbenchModel } from '../../model/workbench/workbench';
 import type { ISourceCatalog } from '../../model/workbench/catalog';
 import { ComparePlots, RunPlots } from '../plots';
 import type { PlotPane } from '../plots/plot-pane';
+import type { PlotSettings } from '../plots/settings';
 import type { PlotTarget } from '../plots/plot-tab';
 import { RunDetail } from './run-detail';
 import { SetupEditor } from './setup-editor';
@@ -144,6 +145,12 @@ export class WorkbenchPanel extends Widget {
     this._plots.runId = runId;
     this._arrays.runId = runId;
     this._list.selectedRun = runId;
+  }
+
+  /** Settings of the run's plots and the comparison (from the workbench's settings). */
+  set plotSettings(s: Partial<PlotSettings>) {
+    this._plots.settings = s;
+    this._compare.settings = s;
   }
 
   /** The view of the run shown (null: no run shown, or it has nothing to plot). */
