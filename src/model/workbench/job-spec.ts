@@ -7,6 +7,7 @@
 import type { ArrayData as KernelArray } from '../../bridge';
 import type { ArrayData, BasisSpec, JobSpec } from '../../worker/protocol';
 import type { RunInputs } from './runs';
+import { jobArrayInSlices, macrotaskPause, type Pause } from './job-arrays';
 import type { SetupParams, SourcePick } from './setup';
 
 type Params = Exclude<SetupParams, { tool: 'sweep' }>;
@@ -36,15 +37,52 @@ export function jobArray(a: KernelArray, pick: SourcePick | null): ArrayData {
   return { data: out, shape: [cols, rows], complex: a.complex };
 }
 
-/** The job spec of one run. Throws (a sentence) only when an input the set-up needs is missing. */
+/** Gives the job's array for an input field (`field#2` asks for a second copy of `field`). */
+type ArrayOf = (field: string, pick: SourcePick | null) => ArrayData;
+
+function readInput(inputs: RunInputs, field: string): KernelArray {
+  const a = inputs.arrays[field.split('#')[0]];
+  if (!a) {
+    throw new Error(`internal: the input ${field} was not read`);
+  }
+  return a;
+}
+
+/**
+ * The job spec of one run, its arrays copied here and now. Throws (a sentence) only when an
+ * input the set-up needs is missing.
+ */
 export function jobSpec(p: Params, inputs: RunInputs): JobSpec {
-  const arr = (field: string, pick: SourcePick | null): ArrayData => {
-    const a = inputs.arrays[field];
-    if (!a) {
-      throw new Error(`internal: the input ${field} was not read`);
-    }
-    return jobArray(a, pick);
-  };
+  return buildSpec(p, inputs, (field, pick) => jobArray(readInput(inputs, field), pick));
+}
+
+/**
+ * The job spec of one run with its arrays copied a slice at a time (see ./job-arrays): the
+ * page stays responsive while tens of megabytes are copied for the worker. Throws
+ * CopyCancelled when `cancelled()` turns true between slices.
+ */
+export async function jobSpecInSlices(
+  p: Params,
+  inputs: RunInputs,
+  pause: Pause = macrotaskPause,
+  cancelled: () => boolean = () => false
+): Promise<JobSpec> {
+  // A first pass names the arrays the spec takes; each is then copied in slices.
+  const wanted: Array<[string, SourcePick | null]> = [];
+  const none: ArrayData = { data: new Float64Array(0), shape: [0], complex: false };
+  buildSpec(p, inputs, (field, pick) => {
+    readInput(inputs, field);
+    wanted.push([field, pick]);
+    return none;
+  });
+  const copies = new Map<string, ArrayData>();
+  for (const [field, pick] of wanted) {
+    copies.set(field, await jobArrayInSlices(readInput(inputs, field), pick, pause, cancelled));
+  }
+  return buildSpec(p, inputs, field => copies.get(field)!);
+}
+
+function buildSpec(p: Params, inputs: RunInputs, arr: ArrayOf): JobSpec {
   const fs = inputs.fs ?? undefined;
   switch (p.tool) {
     case 'adaptive': {
@@ -67,7 +105,8 @@ export function jobSpec(p: Params, inputs: RunInputs): JobSpec {
               trainingLength: p.trainingLength,
               decisionDirected: p.decisionDirected,
               constellation: p.constellation,
-              symbols: { data: d.data.slice(), shape: [...d.shape], complex: d.complex }
+              // its own buffer: both are transferred to the worker
+              symbols: arr('d#symbols', p.d)
             };
           }
         }

@@ -5,7 +5,9 @@
  * with the reason; the pool's memory estimate is checked before anything is dispatched.
  */
 import type { WorkerPool } from '../../worker/pool';
-import { jobSpec } from './job-spec';
+import type { JobSpec } from '../../worker/protocol';
+import { CopyCancelled, macrotaskPause, type Pause } from './job-arrays';
+import { jobSpecInSlices } from './job-spec';
 import { outcomeOf } from './outcome';
 import type { Trans } from './rules';
 import type { IRunner, RunHandle, RunInputs, RunOutcome } from './runs';
@@ -14,7 +16,8 @@ import type { SetupParams } from './setup';
 export class PoolRunner implements IRunner {
   constructor(
     private readonly _pool: () => Pick<WorkerPool, 'run'>,
-    private readonly _trans: Trans
+    private readonly _trans: Trans,
+    private readonly _pause: Pause = macrotaskPause
   ) {}
 
   start(
@@ -23,21 +26,50 @@ export class PoolRunner implements IRunner {
     onProgress: (fraction: number) => void
   ): RunHandle {
     const trans = this._trans;
-    // jobSpec copies every array, so handing the copies over to the worker loses nothing.
-    const job = this._pool().run(jobSpec(params, inputs), {
-      transfer: true,
-      onProgress: p => onProgress(p.fraction)
+    let cancelled = false;
+    let job: ReturnType<Pick<WorkerPool, 'run'>['run']> | null = null;
+    const ended = (status: 'failed' | 'cancelled', messages: string[] = []): RunOutcome => ({
+      status,
+      messages,
+      figures: [],
+      arrays: {},
+      computeMs: 0
     });
-    const result = job.outcome.then((o): RunOutcome => {
+    const result = (async (): Promise<RunOutcome> => {
+      let spec: JobSpec;
+      try {
+        // The worker's own copies, a slice at a time: the page keeps painting meanwhile.
+        spec = await jobSpecInSlices(params, inputs, this._pause, () => cancelled);
+      } catch (e) {
+        if (e instanceof CopyCancelled) {
+          return ended('cancelled');
+        }
+        return ended('failed', [e instanceof Error ? e.message : String(e)]);
+      }
+      if (cancelled) {
+        return ended('cancelled');
+      }
+      // The copies are the job's own, so handing them over to the worker loses nothing.
+      job = this._pool().run(spec, {
+        transfer: true,
+        onProgress: p => onProgress(p.fraction)
+      });
+      const o = await job.outcome;
       switch (o.status) {
         case 'done':
           return outcomeOf(trans, o.result, o.timing);
         case 'failed':
-          return { status: 'failed', messages: [o.reason], figures: [], arrays: {}, computeMs: 0 };
+          return ended('failed', [o.reason]);
         case 'cancelled':
-          return { status: 'cancelled', messages: [], figures: [], arrays: {}, computeMs: 0 };
+          return ended('cancelled');
       }
-    });
-    return { result, cancel: () => job.cancel() };
+    })();
+    return {
+      result,
+      cancel: () => {
+        cancelled = true;
+        job?.cancel();
+      }
+    };
   }
 }
