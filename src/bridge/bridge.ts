@@ -55,7 +55,10 @@ export namespace KernelBridge {
     ledger?: SessionLedger;
     /** 'auto' (comm, else base64), 'comm' or 'base64'. Default 'auto'. */
     transport?: Transport;
-    /** Bytes per binary chunk, kernel to Perpend. Default 8 MiB. */
+    /**
+     * Bytes per binary chunk, kernel to Perpend. Default 1 MiB: the page decodes each websocket
+     * message on its main thread, and an 8 MiB message froze it for about 50 ms.
+     */
     readChunkBytes?: number;
     /** Bytes per binary chunk, Perpend to kernel (kept far below 10 MiB). Default 4 MiB. */
     writeChunkBytes?: number;
@@ -87,7 +90,7 @@ export class KernelBridge implements IDisposable {
     this._limits = {
       maxBytes,
       maxBytesSetting: options.maxBytesSetting ?? 'maxArrayMiB',
-      readChunk: clampChunk('readChunkBytes', options.readChunkBytes ?? 8 * MiB, 64 * MiB),
+      readChunk: clampChunk('readChunkBytes', options.readChunkBytes ?? 1 * MiB, 64 * MiB),
       writeChunk: clampChunk('writeChunkBytes', options.writeChunkBytes ?? 4 * MiB, 8 * MiB)
     };
     const ledger = options.ledger ?? null;
