@@ -15,9 +15,22 @@ export interface SourceOption {
   complex: boolean;
 }
 
+/** Where the listing behind the pickers stands, in a sentence for the user. */
+export interface CatalogState {
+  /** 'listed': the options are the kernel's arrays now; 'busy': a listing is under way or waits
+   * for the kernel; 'error': the last listing failed; 'none': no kernel to list. */
+  state: 'listed' | 'busy' | 'error' | 'none';
+  message: string;
+}
+
 export interface ISourceCatalog {
   options(): ReadonlyArray<SourceOption>;
+  /** Fires when the options or the state change. */
   readonly changed: ISignal<unknown, void>;
+  /** Where the listing stands (absent: always listed). */
+  state?(): CatalogState;
+  /** Lists the kernel's arrays again (the user asked). */
+  relist?(): void;
 }
 
 /** A stable key of a source reference (for select values and maps). */

@@ -7,7 +7,7 @@
 import { Signal, type ISignal } from '@lumino/signaling';
 import type { ArrayData, ArrayInfo } from '../../bridge';
 import type { SourcesModel } from '../sources';
-import type { ISourceCatalog, SourceOption } from './catalog';
+import type { CatalogState, ISourceCatalog, SourceOption } from './catalog';
 import { refKey } from './catalog';
 import type { IWorkbenchReader } from './runs';
 import type { SourceRef } from './setup';
@@ -34,6 +34,26 @@ export class KernelSources implements IWorkbenchReader, ISourceCatalog {
 
   options(): ReadonlyArray<SourceOption> {
     return this._options;
+  }
+
+  state(): CatalogState {
+    const s = this._sources;
+    switch (s.status) {
+      case 'waiting':
+      case 'refreshing':
+        return { state: 'busy', message: s.message };
+      case 'error':
+        return { state: 'error', message: s.message };
+      case 'none':
+      case 'no-kernel':
+        return { state: 'none', message: s.message || this._noKernel };
+      default:
+        return { state: 'listed', message: '' };
+    }
+  }
+
+  relist(): void {
+    void this._sources.refresh();
   }
 
   facts(ref: SourceRef): SourceFacts | null {
@@ -107,9 +127,12 @@ export class KernelSources implements IWorkbenchReader, ISourceCatalog {
     const same =
       options.length === this._options.length &&
       options.every((o, i) => JSON.stringify(o) === JSON.stringify(this._options[i]));
+    const state = JSON.stringify(this.state());
+    const sameState = state === this._state;
+    this._state = state;
     this._byKey = next;
     this._options = options;
-    if (!same) {
+    if (!same || !sameState) {
       this._changed.emit();
     }
     if (changed.length > 0) {
@@ -117,18 +140,25 @@ export class KernelSources implements IWorkbenchReader, ISourceCatalog {
     }
   }
 
-  private readonly _sources: Pick<SourcesModel, 'changed' | 'variables' | 'cellResults' | 'bridge'>;
+  private readonly _sources: Pick<
+    SourcesModel,
+    'changed' | 'variables' | 'cellResults' | 'bridge' | 'status' | 'message' | 'refresh'
+  >;
   private readonly _notListed: (cellId: string) => string;
   private readonly _noKernel: string;
   private _byKey = new Map<string, { option: SourceOption; info: ArrayInfo; stamp: string }>();
   private _options: SourceOption[] = [];
+  private _state = '';
   private readonly _changed = new Signal<this, void>(this);
   private readonly _sourcesChanged = new Signal<this, SourceRef[]>(this);
 }
 
 export namespace KernelSources {
   export interface IOptions {
-    sources: Pick<SourcesModel, 'changed' | 'variables' | 'cellResults' | 'bridge'>;
+    sources: Pick<
+      SourcesModel,
+      'changed' | 'variables' | 'cellResults' | 'bridge' | 'status' | 'message' | 'refresh'
+    >;
     /** The sentence when a cell's result is not listed (translated by the caller). */
     notListed: (cellId: string) => string;
     /** The sentence when the notebook has no kernel. */

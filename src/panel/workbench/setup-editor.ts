@@ -39,6 +39,7 @@ export class SetupEditor extends Widget {
     this._close = options.close;
     this._hints = options.hints ?? (() => ({}));
     this._catalog.changed.connect(this._onCatalog, this);
+    this.node.addEventListener('focusout', ev => this._onFocusOut(ev));
   }
 
   dispose(): void {
@@ -75,6 +76,40 @@ export class SetupEditor extends Widget {
     this._focusFirstIssue();
   }
 
+  /**
+   * A line saying why the pickers offer nothing yet (the kernel is being listed, the listing
+   * failed, no kernel), with a button to list again; null when the listing is current.
+   */
+  private _listingLine(): HTMLElement | null {
+    const trans = this._trans;
+    const st = this._catalog.state?.() ?? { state: 'listed' as const, message: '' };
+    const empty = this._catalog.options().length === 0;
+    if (st.state === 'listed' && !empty) {
+      return null;
+    }
+    const line = document.createElement('div');
+    line.className = 'pp-Editor-listing';
+    line.dataset.state = st.state;
+    line.setAttribute('role', 'status');
+    const text = document.createElement('span');
+    text.textContent =
+      st.state === 'listed'
+        ? trans.__(
+            'The kernel holds no array Perpend can read: run the cells that make them, then list again.'
+          )
+        : st.message;
+    line.append(text);
+    if (this._catalog.relist && st.state !== 'busy') {
+      const again = document.createElement('button');
+      again.type = 'button';
+      again.className = 'jp-Button jp-mod-styled jp-mod-reject';
+      again.textContent = trans.__('List the arrays again');
+      again.addEventListener('click', () => this._catalog.relist?.());
+      line.append(again);
+    }
+    return line;
+  }
+
   private _render(): void {
     const trans = this._trans;
     const p = this._draft;
@@ -105,6 +140,7 @@ export class SetupEditor extends Widget {
       this._dirty = true;
     });
     head.append(tool, title);
+    const listing = this._listingLine();
 
     const shown = new Set<string>();
     const main = document.createElement('div');
@@ -146,7 +182,7 @@ export class SetupEditor extends Widget {
       this._button(trans.__('Save'), '', false, () => this._submit(false)),
       this._button(trans.__('Close'), '', false, () => this._close())
     );
-    form.append(head, banner, main);
+    form.append(head, ...(listing ? [listing] : []), banner, main);
     if (moreBody.childElementCount > 0) {
       form.append(more);
     }
@@ -396,11 +432,63 @@ export class SetupEditor extends Widget {
     this._dirty = false;
   }
 
+  /**
+   * The listing changed: the pickers must offer what the kernel holds now, even while the user
+   * types the set-up's name or a value (the form is repainted and the caret put back where it
+   * was). Only an open picker is left alone until it loses the focus.
+   */
   private _onCatalog(): void {
-    // Re-render only while no field has the focus (typing is never interrupted).
-    if (this._draft && !this.node.contains(document.activeElement)) {
-      this._render();
+    if (!this._draft) {
+      return;
     }
+    const active = document.activeElement as HTMLElement | null;
+    if (!active || !this.node.contains(active)) {
+      this._render();
+      return;
+    }
+    if (active instanceof HTMLSelectElement) {
+      this._catalogStale = true;
+      return;
+    }
+    const path = active.closest<HTMLElement>('.pp-Field')?.dataset.path;
+    const isTitle = active.classList.contains('pp-Editor-title');
+    const caret =
+      active instanceof HTMLInputElement && active.type === 'text'
+        ? [active.selectionStart, active.selectionEnd]
+        : null;
+    this._render();
+    const again = isTitle
+      ? this.node.querySelector<HTMLInputElement>('.pp-Editor-title')
+      : path
+        ? this.node.querySelector<HTMLInputElement>(`.pp-Field[data-path="${path}"] input`)
+        : null;
+    again?.focus();
+    if (again && caret && caret[0] !== null && caret[1] !== null && again.type === 'text') {
+      again.setSelectionRange(caret[0], caret[1]);
+    }
+  }
+
+  /** An open picker lost the focus after the listing changed: repaint then (see _onCatalog). */
+  private _onFocusOut(ev: FocusEvent): void {
+    if (!this._catalogStale || !(ev.target instanceof HTMLSelectElement)) {
+      return;
+    }
+    this._catalogStale = false;
+    const next = ev.relatedTarget as HTMLElement | null;
+    const path =
+      next && this.node.contains(next)
+        ? next.closest<HTMLElement>('.pp-Field')?.dataset.path
+        : undefined;
+    // After the focus has moved (the DOM is not changed inside a focus event).
+    setTimeout(() => {
+      if (this.isDisposed || !this._draft) {
+        return;
+      }
+      this._render();
+      if (path) {
+        this._focus(path);
+      }
+    }, 0);
   }
 
   private _clearIssue(path: string): void {
@@ -432,6 +520,7 @@ export class SetupEditor extends Widget {
 
   private readonly _trans: TranslationBundle;
   private readonly _catalog: ISourceCatalog;
+  private _catalogStale = false;
   private readonly _validate: (p: SetupParams) => FieldIssue[];
   private readonly _save: SetupEditor.SaveFn;
   private readonly _close: () => void;

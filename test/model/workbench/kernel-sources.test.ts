@@ -17,6 +17,10 @@ class Listing {
   changed = new Signal<this, void>(this);
   variables: ArrayInfo[] = [];
   cellResults: ArrayInfo[] = [];
+  status = 'idle';
+  message = '';
+  refreshes = 0;
+  refresh = async () => void this.refreshes++;
   reads: ArraySource[] = [];
   bridge: any = {
     readArray: async (s: ArraySource) => {
@@ -47,6 +51,31 @@ function make() {
 }
 
 describe('KernelSources', () => {
+  it('says where the listing stands, tells the pickers when that changes, and lists again', () => {
+    const { listing, ks, changes } = make();
+    expect(ks.state()).toEqual({ state: 'listed', message: '' });
+    const before = changes();
+    listing.status = 'refreshing';
+    listing.message = 'Reading the list of arrays from the kernel…';
+    listing.changed.emit();
+    expect(ks.state()).toEqual({
+      state: 'busy',
+      message: 'Reading the list of arrays from the kernel…'
+    });
+    // The options did not change, the state did: the pickers repaint.
+    expect(changes()).toBe(before + 1);
+    listing.status = 'error';
+    listing.message = 'Could not list the arrays: timed out';
+    listing.changed.emit();
+    expect(ks.state().state).toBe('error');
+    listing.status = 'no-kernel';
+    listing.message = '';
+    listing.changed.emit();
+    expect(ks.state()).toEqual({ state: 'none', message: 'no kernel' });
+    ks.relist();
+    expect(listing.refreshes).toBe(1);
+  });
+
   it('offers variables and cell results, with facts for the checks', () => {
     const { listing, ks } = make();
     listing.set(
