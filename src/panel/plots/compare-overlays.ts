@@ -31,6 +31,31 @@ export function compareKindLabel(trans: Trans, kind: CompareKind): string {
   }
 }
 
+/**
+ * A sentence naming the ticked runs the overlay leaves out and why (null when none is), so a
+ * comparison never drops a run silently.
+ */
+export function leftOutNote(
+  trans: Trans,
+  kind: CompareKind,
+  runs: ReadonlyArray<Run>,
+  shown: ReadonlyArray<Run>
+): string | null {
+  const out = runs.filter(r => !shown.includes(r));
+  if (out.length === 0) {
+    return null;
+  }
+  const names = out.map(r => r.label).join('; ');
+  switch (kind) {
+    case 'learning':
+      return trans.__('Left out, without a learning curve: %1.', names);
+    case 'spectrum':
+      return trans.__('Left out, without an error or output: %1.', names);
+    case 'response':
+      return trans.__('Left out, without final weights: %1.', names);
+  }
+}
+
 /** The runs that have a spectrum to overlay: adaptive runs with an error, removals with an output. */
 export function spectrumRuns(runs: ReadonlyArray<Run>): Run[] {
   return runs.filter(r =>

@@ -25,6 +25,7 @@ import {
   compareResponseSpec,
   compareSpectrumRequests,
   compareSpectrumSpec,
+  leftOutNote,
   responseRuns,
   spectrumRuns,
   type CompareKind
@@ -198,21 +199,21 @@ export class ComparePlots extends RenderWidget {
     };
     try {
       if (this._kind === 'spectrum') {
-        this._spectraAsync(shown, key).catch(fail);
+        this._spectraAsync(runs, shown, key).catch(fail);
         return;
       }
       const spec: PlotSpec =
         this._kind === 'learning'
           ? compareSpec(trans, shown, this._smoothing)
           : compareResponseSpec(trans, shown, this._settings);
-      this._pane.show(spec);
+      this._pane.show(this._noted(spec, runs, shown));
     } catch (err) {
       fail(err);
     }
   }
 
   /** The spectra through the PSD function (a worker job, or the core on this thread). */
-  private async _spectraAsync(runs: Run[], key: unknown[]): Promise<void> {
+  private async _spectraAsync(ticked: Run[], runs: Run[], key: unknown[]): Promise<void> {
     const requests = compareSpectrumRequests(this._trans, runs, this._settings);
     this._pane.show(null);
     this._pane.status.textContent = this._trans.__('Computing the spectra…');
@@ -223,7 +224,15 @@ export class ComparePlots extends RenderWidget {
     if (this.isDisposed || this._plotKey !== key) {
       return;
     }
-    this._pane.show(compareSpectrumSpec(this._trans, runs, requests, results));
+    this._pane.show(
+      this._noted(compareSpectrumSpec(this._trans, runs, requests, results), ticked, runs)
+    );
+  }
+
+  /** The spec with a sentence on the ticked runs it leaves out, if any. */
+  private _noted(spec: PlotSpec, ticked: Run[], shown: Run[]): PlotSpec {
+    const left = leftOutNote(this._trans, this._kind, ticked, shown);
+    return left ? { ...spec, note: spec.note ? `${spec.note} ${left}` : left } : spec;
   }
 
   private _renderBar(count: number): void {

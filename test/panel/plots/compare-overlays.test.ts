@@ -11,6 +11,7 @@ import {
   compareResponseSpec,
   compareSpectrumRequests,
   compareSpectrumSpec,
+  leftOutNote,
   responseRuns,
   spectrumRuns
 } from '../../../src/panel/plots/compare-overlays';
@@ -237,4 +238,13 @@ describe('the data of a plot, as CSV and as a record for the kernel', () => {
     expect(rec.params.labels).toEqual({ direction: ['50 Hz', '100 Hz'] });
     expect(rec.params.x_range).toBeNull();
   });
+});
+
+test('the runs an overlay leaves out are named with the reason', () => {
+  const a = cancellationRun(100, 1000, { id: 'a', label: 'RLS · M 4 · λ 0.99' });
+  const r = makeRun(removal(), { id: 'c', label: 'remove 3 harmonics of 50 Hz' });
+  expect(leftOutNote(trans, 'response', [a, r], responseRuns([a, r]))).toBe(
+    'Left out, without final weights: remove 3 harmonics of 50 Hz.'
+  );
+  expect(leftOutNote(trans, 'response', [a], [a])).toBeNull();
 });
