@@ -107,3 +107,19 @@ describe('copies in slices', () => {
     expect(b.configuration.primary.data.buffer).not.toBe(inputs.arrays.d.data.buffer);
   });
 });
+
+describe('the default pause', () => {
+  it('gives the event loop back: a timer set before the copy fires before it ends', async () => {
+    const { macrotaskPause } = await import('../../../src/model/workbench/job-arrays');
+    const order: string[] = [];
+    setTimeout(() => order.push('timer'), 0);
+    const a = kernel(
+      Array.from({ length: 40 }, (_, i) => i),
+      [40]
+    );
+    const c = await jobArrayInSlices(a, null, macrotaskPause, () => false, 4);
+    order.push('copied');
+    expect(Array.from(c.data)).toEqual(Array.from(a.data));
+    expect(order).toEqual(['timer', 'copied']);
+  });
+});
