@@ -14,6 +14,7 @@ import {
   type SpectralInfo,
   type SpectralOptions
 } from './segments';
+import { checkInteger } from '../errors';
 import { checkSignal } from './signal';
 
 export interface SpectrogramOptions extends SpectralOptions {
@@ -80,4 +81,46 @@ export function spectrogram(x: unknown, options: SpectrogramOptions = {}): Spect
     rows,
     cols: nseg
   };
+}
+
+/**
+ * A spectrogram with at most `maxColumns` columns: groups of g = ⌈cols/maxColumns⌉ adjacent
+ * columns averaged into one (their mean power; a group's time is the mean of its columns'
+ * times, and the last group may hold fewer columns). Averaging the power of neighbouring
+ * segments is Welch's averaging over a shorter stretch (common practice for display), so a
+ * 1e6-sample signal draws as a few hundred columns without dropping any segment. A result
+ * with at most `maxColumns` columns is returned as it is.
+ */
+export function poolSpectrogram(s: SpectrogramResult, maxColumns: number): SpectrogramResult {
+  const max = checkInteger('maxColumns', maxColumns, 1);
+  const { rows, cols } = s;
+  if (cols <= max) {
+    return s;
+  }
+  const g = Math.ceil(cols / max);
+  const out = Math.ceil(cols / g);
+  const sxx = new Float64Array(rows * out);
+  const time = new Float64Array(out);
+  for (let c = 0; c < out; c++) {
+    const c0 = c * g;
+    const c1 = Math.min(cols, c0 + g);
+    let t = 0;
+    for (let k = c0; k < c1; k++) {
+      t += s.time[k];
+    }
+    time[c] = t / (c1 - c0);
+  }
+  for (let i = 0; i < rows; i++) {
+    const row = i * cols;
+    for (let c = 0; c < out; c++) {
+      const c0 = c * g;
+      const c1 = Math.min(cols, c0 + g);
+      let p = 0;
+      for (let k = c0; k < c1; k++) {
+        p += s.sxx[row + k];
+      }
+      sxx[i * out + c] = p / (c1 - c0);
+    }
+  }
+  return { ...s, sxx, time, cols: out };
 }

@@ -9,3 +9,4 @@ export * from './nullspace';
 export * from './lstsq';
 export * from './angles';
 export * from './builders';
+export * from './beam';
