@@ -6,7 +6,7 @@
 import { csvText, withUnit, type CsvColumn } from './csv';
 import { fullPoints, indexRange, linePoints, type LineSource, type XRange } from './lines';
 import type { PlotObject } from './plotly';
-import type { PlotSpec, StaticTrace } from './spec';
+import type { HeatmapSpec, PlotSpec, StaticTrace } from './spec';
 import { seriesColor, themeLayout, type PlotTheme } from './theme';
 
 export interface Figure {
@@ -81,6 +81,36 @@ function staticTrace(s: StaticTrace, theme: PlotTheme): PlotObject {
   }
 }
 
+/**
+ * A heatmap trace: z as rows (plotly's z[row][col]), a perceptually uniform colour scale
+ * (viridis, readable on light and dark backgrounds) and a colour bar titled with the unit.
+ */
+function heatmapTrace(h: HeatmapSpec, theme: PlotTheme): PlotObject {
+  const z: Float64Array[] = [];
+  for (let i = 0; i < h.rows; i++) {
+    z.push(h.z.subarray(i * h.cols, (i + 1) * h.cols));
+  }
+  return {
+    type: 'heatmap',
+    name: h.name,
+    x: h.x,
+    y: h.y,
+    z,
+    zmin: h.zRange[0],
+    zmax: h.zRange[1],
+    zauto: false,
+    colorscale: 'Viridis',
+    showlegend: false,
+    hovertemplate: '%{x}, %{y}: %{z:.1f}<extra></extra>',
+    colorbar: {
+      title: { text: h.zTitle, side: 'right', font: { color: theme.foreground } },
+      tickfont: { color: theme.foreground },
+      outlinewidth: 0,
+      thickness: 12
+    }
+  };
+}
+
 /** A CSS colour with an alpha, for band fills (hex and rgb() forms; others as they are). */
 export function withAlpha(color: string, alpha: number): string {
   const c = color.trim();
@@ -143,6 +173,7 @@ export function buildFigure(
   yRanges: YRanges = {}
 ): Figure {
   const data: PlotObject[] = [
+    ...(spec.heatmap ? [heatmapTrace(spec.heatmap, theme)] : []),
     ...spec.lines.map(l => lineTrace(l, theme, range, columns)),
     ...spec.traces.map(t => staticTrace(t, theme))
   ];
@@ -180,7 +211,12 @@ export function buildFigure(
     ...base,
     width: size.width,
     height: size.height,
-    margin: { ...MARGIN, t: 28 + 22 * legendRows(data, theme.fontSize, size.width) },
+    margin: {
+      ...MARGIN,
+      // room for the colour bar and its title beside a heatmap
+      r: spec.heatmap ? MARGIN.r + 72 : MARGIN.r,
+      t: 28 + 22 * legendRows(data, theme.fontSize, size.width)
+    },
     title: {
       text: spec.title,
       x: 0,
@@ -309,6 +345,34 @@ export function plotColumns(spec: PlotSpec, range: XRange, maxRows: number): Csv
   }
   const lo = range ? Math.min(range[0], range[1]) : -Infinity;
   const hi = range ? Math.max(range[0], range[1]) : Infinity;
+  if (spec.heatmap) {
+    // One row per cell inside the range: x, y and the value (long form).
+    const h = spec.heatmap;
+    const cols: number[] = [];
+    for (let c = 0; c < h.cols; c++) {
+      if (h.x[c] >= lo && h.x[c] <= hi) {
+        cols.push(c);
+      }
+    }
+    if (cols.length * h.rows > maxRows) {
+      throw new CsvTooLarge(
+        `The visible range holds ${cols.length * h.rows} cells of "${h.name}"; a CSV export takes at most ${maxRows} rows. Zoom in first.`
+      );
+    }
+    const xs: number[] = [];
+    const ys: number[] = [];
+    const zs: number[] = [];
+    for (const c of cols) {
+      for (let i = 0; i < h.rows; i++) {
+        xs.push(h.x[c]);
+        ys.push(h.y[i]);
+        zs.push(h.z[i * h.cols + c]);
+      }
+    }
+    columns.push({ header: xHeader, values: xs });
+    columns.push({ header: spec.yTitle, values: ys });
+    columns.push({ header: h.zTitle, values: zs });
+  }
   for (const t of spec.traces) {
     const numeric = t.x.length === 0 || typeof t.x[0] === 'number';
     const xs: Array<number | string> = [];

@@ -13,15 +13,17 @@ import { PlotPane } from './plot-pane';
 import { loadPlotlyDist, type LoadPlotly } from './plotly';
 import type { IRunSource } from './run-source';
 import { DEFAULT_PLOT_SETTINGS, type PlotSettings } from './settings';
+import { mainThreadCompute, type PlotCompute } from './compute';
+import { computeView } from './computed-views';
 import {
+  beforeOf,
   buildView,
   DEFAULT_VIEW_OPTIONS,
   defaultSmoothing,
+  isComputedView,
   parseTaps,
   rowsOf,
-  spectrumRequests,
-  spectrumSpec,
-  type ComputePsd,
+  type ComputedView,
   viewLabel,
   viewsOf,
   type ComplexAs,
@@ -36,7 +38,7 @@ export class RunPlots extends RenderWidget {
     this._trans = options.trans;
     this._model = options.model;
     this._settings = { ...DEFAULT_PLOT_SETTINGS, ...options.settings };
-    this._computePsd = options.computePsd ?? null;
+    this._compute = options.compute ?? mainThreadCompute;
     this._openTab = options.openTab ?? null;
     this._bar = document.createElement('div');
     this._bar.className = 'pp-Plots-bar';
@@ -161,8 +163,12 @@ export class RunPlots extends RenderWidget {
       );
     };
     try {
-      if (view === 'spectrum' && this._computePsd) {
-        this._spectrumAsync(run, key, this._computePsd).catch(fail);
+      if (isComputedView(view)) {
+        this._computeAsync(run, key, view).catch(err => {
+          if (!this.isDisposed && this._shown === key) {
+            fail(err);
+          }
+        });
         return;
       }
       this._pane.show(buildView(trans, run, view, this._options, this._settings));
@@ -171,20 +177,26 @@ export class RunPlots extends RenderWidget {
     }
   }
 
-  /** The spectrum through the given PSD function (a worker job); the latest request wins. */
-  private async _spectrumAsync(
+  /** A view whose numbers come through the PlotCompute (maybe a worker); the latest wins. */
+  private async _computeAsync(
     run: Run,
     key: NonNullable<RunPlots['_shown']>,
-    compute: ComputePsd
+    view: ComputedView
   ): Promise<void> {
-    const requests = spectrumRequests(this._trans, run, this._settings, this._options.row);
     this._pane.show(null);
-    this._pane.status.textContent = this._trans.__('Computing the spectrum…');
-    const results = await Promise.all(requests.map(r => compute(r.signal, r.options)));
+    this._pane.status.textContent = this._trans.__('Computing %1…', viewLabel(this._trans, view));
+    const spec = await computeView(
+      this._trans,
+      run,
+      view,
+      this._options,
+      this._settings,
+      this._compute
+    );
     if (this.isDisposed || this._shown !== key) {
       return;
     }
-    this._pane.show(spectrumSpec(this._trans, run, requests, results));
+    this._pane.show(spec);
   }
 
   private _renderBar(run: Run, views: ViewKind[], view: ViewKind): void {
@@ -217,8 +229,11 @@ export class RunPlots extends RenderWidget {
     }
     if (view === 'learning') {
       controls.append(this._smoothingControl(run));
-    } else if (view !== 'energy' && view !== 'angles' && rowsOf(run) > 1) {
+    } else if (view !== 'energy' && view !== 'angles' && view !== 'beam' && rowsOf(run) > 1) {
       controls.append(this._rowControl(rowsOf(run)));
+    }
+    if (view === 'spectrogram' && beforeOf(run)) {
+      controls.append(this._spectrogramControl(run));
     }
     if (view === 'trajectories' && run.arrays.trajectory) {
       const t = run.arrays.trajectory;
@@ -253,6 +268,33 @@ export class RunPlots extends RenderWidget {
     }
     sel.addEventListener('change', () => {
       this._setOptions({ complexAs: sel.value as ComplexAs });
+    });
+    label.append(sel);
+    return label;
+  }
+
+  /** Which signal of the run the spectrogram shows: before or after. */
+  private _spectrogramControl(run: Run): HTMLElement {
+    const trans = this._trans;
+    const label = document.createElement('label');
+    label.className = 'pp-Plots-control';
+    label.append(trans.__('Signal') + ' ');
+    const sel = document.createElement('select');
+    sel.className = 'jp-mod-styled pp-Plots-signal';
+    const before = beforeOf(run);
+    const opts: Array<['before' | 'after', string]> = [
+      ['before', before ? trans.__(before.name) : trans.__('input')],
+      ['after', run.params.tool === 'adaptive' ? trans.__('error e(n)') : trans.__('output')]
+    ];
+    for (const [v, text] of opts) {
+      const o = document.createElement('option');
+      o.value = v;
+      o.textContent = text;
+      o.selected = v === this._options.spectrogramOf;
+      sel.append(o);
+    }
+    sel.addEventListener('change', () => {
+      this._setOptions({ spectrogramOf: sel.value as 'before' | 'after' });
     });
     label.append(sel);
     return label;
@@ -343,7 +385,7 @@ export class RunPlots extends RenderWidget {
   private readonly _hint: HTMLParagraphElement;
   private readonly _pane: PlotPane;
   private _settings: PlotSettings;
-  private readonly _computePsd: ComputePsd | null;
+  private readonly _compute: PlotCompute;
   private readonly _openTab: ((runId: string, view: ViewKind) => void) | null;
   private _runId: string | null = null;
   private _view: ViewKind | null = null;
@@ -367,10 +409,11 @@ export namespace RunPlots {
     /** IThemeManager.themeChanged, when available; otherwise the body's theme name is watched. */
     themeChanged?: ISignal<unknown, unknown>;
     /**
-     * Computes the Welch estimates of the spectrum view (for example as a worker job). Default:
-     * the core's `welch` on the main thread (~8 ms for 1e5 samples, ~0.1 s for 1e6 here).
+     * Runs the long computations of the spectrum, cancellation-bound and spectrogram views
+     * (for example as worker jobs). Default: the core on the main thread (a Welch PSD takes
+     * ~8 ms for 1e5 samples, ~0.1 s for 1e6 here).
      */
-    computePsd?: ComputePsd;
+    compute?: PlotCompute;
     /** Writes the plotted data to the kernel (asks the name); no button without it. */
     writeData?: PlotPane.WriteData;
     /** Opens a view of a run in a tab of its own; no button without it. */

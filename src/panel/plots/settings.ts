@@ -10,6 +10,8 @@ export interface PlotSettings {
   constellationPoints: number;
   /** Frequencies at which a weight vector's response is evaluated. */
   responsePoints: number;
+  /** Most time columns a spectrogram draws (neighbouring segments are averaged into one). */
+  spectrogramColumns: number;
 }
 
 export const DEFAULT_PLOT_SETTINGS: PlotSettings = {
@@ -17,7 +19,8 @@ export const DEFAULT_PLOT_SETTINGS: PlotSettings = {
   csvMaxRows: 1_000_000,
   welchSegment: 1024,
   constellationPoints: 2000,
-  responsePoints: 512
+  responsePoints: 512,
+  spectrogramColumns: 400
 };
 
 /** Pixel columns of a plot area `width` px wide for a budget of `pointsPerPixel` per column. */

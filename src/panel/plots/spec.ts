@@ -30,6 +30,20 @@ export interface MarkerLine {
   lower?: boolean;
 }
 
+/** A grid of values drawn as colours (a spectrogram): z[row·cols + col] at (x[col], y[row]). */
+export interface HeatmapSpec {
+  name: string;
+  x: Float64Array;
+  y: Float64Array;
+  z: Float64Array;
+  rows: number;
+  cols: number;
+  /** What the colour measures, with its unit (the colour bar's title). */
+  zTitle: string;
+  /** The colour range (values outside are drawn at its ends). */
+  zRange: [number, number];
+}
+
 export interface PlotSpec {
   /** Plot title (what it shows). */
   title: string;
@@ -43,6 +57,8 @@ export interface PlotSpec {
   lines: LineSource[];
   traces: StaticTrace[];
   markers: MarkerLine[];
+  /** A heatmap under the traces (one per plot). */
+  heatmap?: HeatmapSpec;
   /** Equal scales on x and y (a constellation). */
   equalAxes?: boolean;
   /** A sentence under the plot (what was computed and how). */

@@ -12,6 +12,7 @@ import {
   type SignalView,
   type WelchOptions
 } from '../../core';
+import { beamView } from './beam-view';
 import type { Trans } from '../../model/workbench/rules';
 import type { ResultArray, Run } from '../../model/workbench/runs';
 import { rowCount, rowOf, type LinePart, type LineSignal, type LineSource } from './lines';
@@ -27,7 +28,17 @@ export type ViewKind =
   | 'spectrum'
   | 'energy'
   | 'constellation'
-  | 'angles';
+  | 'angles'
+  | 'cancellation'
+  | 'spectrogram'
+  | 'beam';
+
+/** Views whose numbers come from long computations (through a `PlotCompute`, see ./compute.ts). */
+export type ComputedView = 'spectrum' | 'cancellation' | 'spectrogram';
+
+export function isComputedView(v: ViewKind): v is ComputedView {
+  return v === 'spectrum' || v === 'cancellation' || v === 'spectrogram';
+}
 
 /** How complex values are drawn: magnitude and phase, or real and imaginary parts. */
 export type ComplexAs = 'polar' | 'cartesian';
@@ -40,17 +51,20 @@ export interface ViewOptions {
   taps: number[] | null;
   /** Row (trial or channel, from 0) of K×N results drawn; arrays with fewer rows use their last. */
   row: number;
+  /** Which signal the spectrogram shows: the one the run started from, or its result. */
+  spectrogramOf: 'before' | 'after';
 }
 
 export const DEFAULT_VIEW_OPTIONS: ViewOptions = {
   complexAs: 'polar',
   smoothing: null,
   taps: null,
-  row: 0
+  row: 0,
+  spectrogramOf: 'before'
 };
 
 /** Row `row` of an array, or its last row when it has fewer (a 1-D input beside K×N results). */
-function rowIn(a: ResultArray, row: number): LineSignal {
+export function rowIn(a: ResultArray, row: number): LineSignal {
   return rowOf(a, Math.max(0, Math.min(row, rowCount(a) - 1)));
 }
 
@@ -87,6 +101,12 @@ export function viewLabel(trans: Trans, v: ViewKind): string {
       return trans.__('Constellation');
     case 'angles':
       return trans.__('Angles');
+    case 'cancellation':
+      return trans.__('Cancellation bound');
+    case 'spectrogram':
+      return trans.__('Spectrogram');
+    case 'beam':
+      return trans.__('Beam pattern');
   }
 }
 
@@ -115,15 +135,30 @@ export function viewsOf(run: Run): ViewKind[] {
     if (a.error && beforeOf(run)) {
       out.push('spectrum');
     }
-    if (run.params.use === 'equalization' && a.output && a.output.complex) {
+    const use = run.params.use;
+    if (
+      (use === 'cancellation' || use === 'identification') &&
+      a.error &&
+      run.inputs.x &&
+      run.inputs.d
+    ) {
+      out.push('cancellation');
+    }
+    if (a.error && beforeOf(run)) {
+      out.push('spectrogram');
+    }
+    if (use === 'equalization' && a.output && a.output.complex) {
       out.push('constellation');
     }
   } else if (run.params.tool === 'removal') {
     if (a.output) {
-      out.push('signals', 'spectrum');
+      out.push('signals', 'spectrum', 'spectrogram');
     }
     if (run.figures.some(f => f.key.startsWith('dir:'))) {
       out.push('energy');
+    }
+    if (a.output && run.params.basis.kind === 'array') {
+      out.push('beam');
     }
   } else if (run.params.tool === 'angles') {
     if (run.figures.some(f => /^angle\d+$/.test(f.key))) {
@@ -154,7 +189,7 @@ export function frequencyAxis(
 }
 
 /** The signal a run started from (desired, primary, the predicted signal, the input) and its name. */
-function beforeOf(run: Run): { array: ResultArray; name: string } | null {
+export function beforeOf(run: Run): { array: ResultArray; name: string } | null {
   const p = run.params;
   if (p.tool === 'adaptive') {
     if (p.use === 'prediction') {
@@ -188,7 +223,7 @@ function partTitles(trans: Trans, as: ComplexAs): [string, string] {
     : [trans.__('real part'), trans.__('imaginary part')];
 }
 
-function need(run: Run, key: string): ResultArray {
+export function need(run: Run, key: string): ResultArray {
   const a = run.arrays[key];
   if (!a) {
     throw new Error(`run "${run.label}" has no array '${key}' to plot`);
@@ -413,15 +448,6 @@ export interface PsdRequest {
   options: WelchOptions;
 }
 
-/**
- * Computes a Welch PSD (the core's `welch`, on the main thread by default; the workbench can
- * pass one that runs it in a worker).
- */
-export type ComputePsd = (
-  signal: SignalView,
-  options: WelchOptions
-) => PsdResult | Promise<PsdResult>;
-
 /** The estimates the spectrum view of a run needs: before (when known) and after. */
 export function spectrumRequests(trans: Trans, run: Run, s: PlotSettings, row = 0): PsdRequest[] {
   const before = beforeOf(run);
@@ -586,11 +612,15 @@ function constellationView(trans: Trans, run: Run, o: ViewOptions, s: PlotSettin
   return spec;
 }
 
-/** The plot of one view of a run. Throws with a sentence when the run lacks what it needs. */
+/**
+ * The plot of one view of a run, computed here on the main thread. Throws with a sentence when
+ * the run lacks what it needs. The cancellation bound and the spectrogram are built by
+ * `computeView` (./computed-views.ts) through a `PlotCompute`; the spectrum either way.
+ */
 export function buildView(
   trans: Trans,
   run: Run,
-  view: ViewKind,
+  view: Exclude<ViewKind, 'cancellation' | 'spectrogram'>,
   options: ViewOptions,
   settings: PlotSettings
 ): PlotSpec {
@@ -611,6 +641,8 @@ export function buildView(
       return constellationView(trans, run, options, settings);
     case 'angles':
       return anglesView(trans, run);
+    case 'beam':
+      return beamView(trans, run);
   }
 }
 

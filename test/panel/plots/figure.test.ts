@@ -152,3 +152,41 @@ describe('CSV of the visible range', () => {
     );
   });
 });
+
+describe('a heatmap (spectrogram)', () => {
+  const spec: PlotSpec = {
+    ...{ title: 'S', xTitle: 'time (s)', xUnit: 's', yTitle: 'frequency (Hz)' },
+    lines: [],
+    traces: [],
+    markers: [],
+    heatmap: {
+      name: 'x',
+      x: Float64Array.from([0.5, 1.5, 2.5]),
+      y: Float64Array.from([0, 10]),
+      z: Float64Array.from([1, 2, 3, 4, 5, 6]),
+      rows: 2,
+      cols: 3,
+      zTitle: 'power (dB/Hz)',
+      zRange: [-80, 6]
+    }
+  };
+  test('z as rows, the colour range fixed, the colour bar titled with the unit', () => {
+    const f = buildFigure(spec, theme, null, 100, { width: 600, height: 300 });
+    const h = f.data[0];
+    expect(h.type).toBe('heatmap');
+    expect((h.z as Float64Array[]).map(r => Array.from(r))).toEqual([
+      [1, 2, 3],
+      [4, 5, 6]
+    ]);
+    expect([h.zmin, h.zmax]).toEqual([-80, 6]);
+    expect((h.colorbar as { title: { text: string } }).title.text).toBe('power (dB/Hz)');
+    expect((f.layout.margin as { r: number }).r).toBeGreaterThan(60);
+  });
+  test('CSV: one row per cell inside the visible range, and the row limit', () => {
+    const csv = figureCsv(spec, [1, 3], 100);
+    expect(csv).toBe(
+      'time (s),frequency (Hz),power (dB/Hz)\r\n1.5,0,2\r\n1.5,10,5\r\n2.5,0,3\r\n2.5,10,6\r\n'
+    );
+    expect(() => figureCsv(spec, null, 5)).toThrow(CsvTooLarge);
+  });
+});

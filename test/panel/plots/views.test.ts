@@ -40,7 +40,9 @@ describe('which views a run has', () => {
       'learning',
       'response',
       'trajectories',
-      'spectrum'
+      'spectrum',
+      'cancellation',
+      'spectrogram'
     ]);
   });
   test('a run without results has none; a removal has signals, spectrum and energy', () => {
@@ -50,7 +52,7 @@ describe('which views a run has', () => {
       inputs: { signal: vec(new Float64Array(8)) },
       figures: [{ key: 'dir:50 Hz', label: 'energy along 50 Hz', value: -3, unit: 'dB' }]
     });
-    expect(viewsOf(r)).toEqual(['signals', 'spectrum', 'energy']);
+    expect(viewsOf(r)).toEqual(['signals', 'spectrum', 'spectrogram', 'energy']);
   });
   test('a complex equalizer adds its constellation', () => {
     const y = new Float64Array(20);
