@@ -1,3 +1,4 @@
 export * from './learning';
 export * from './ensemble';
 export * from './display';
+export * from './misalignment';

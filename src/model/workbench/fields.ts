@@ -172,6 +172,15 @@ function adaptiveFields(prefix: string): FieldSpec[] {
       more: true
     },
     {
+      path: `${prefix}truth`,
+      kind: 'source',
+      label: 'true response',
+      help: 'if known: a 1-D array with the impulse response from x to d; the weights are compared with it (misalignment) and its response drawn over theirs',
+      optional: true,
+      more: true,
+      when: on(a => a.use === 'identification' || a.use === 'cancellation')
+    },
+    {
       path: `${prefix}fs`,
       kind: 'rate',
       label: 'sample rate',

@@ -236,7 +236,8 @@ class Reader {
       'precision',
       'keepEvery',
       'minMseDb',
-      'fs'
+      'fs',
+      'truth'
     ];
     const o = this.record(field, v, keys);
     const f = (k: string): string => (field ? `${field}.${k}` : k);
@@ -270,7 +271,11 @@ class Reader {
       precision: this.oneOf<Precision>(f('precision'), o.precision, ['float64', 'float32']),
       keepEvery: this.number(f('keepEvery'), o.keepEvery),
       minMseDb: this.numberOrNull(f('minMseDb'), o.minMseDb),
-      fs: this.rate(f('fs'), o.fs)
+      fs: this.rate(f('fs'), o.fs),
+      // Optional: absent (or null) when no true response is known; written only when set.
+      ...(o.truth === undefined || o.truth === null
+        ? {}
+        : { truth: this.pick(f('truth'), o.truth) })
     };
   }
 

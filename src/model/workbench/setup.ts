@@ -72,6 +72,12 @@ export interface AdaptiveSetup {
   minMseDb: number | null;
   /** The sample rate for seconds on results, or null for samples only. */
   fs: RateRef | null;
+  /**
+   * identification and cancellation: a 1-D kernel array holding the true impulse response of
+   * the unknown system (the path from x to d), when known; absent when not. The weights are
+   * compared with it (misalignment) and its response is drawn over theirs.
+   */
+  truth?: SourcePick;
 }
 
 /** The interference basis of a removal. */
@@ -157,16 +163,24 @@ export interface Setup {
   params: SetupParams;
 }
 
+/** Whether an adaptive set-up's use has a true response to compare with (an unknown system). */
+export function usesTruth(p: AdaptiveSetup): boolean {
+  return p.use === 'identification' || p.use === 'cancellation';
+}
+
 /** Every source a set-up reads, with the field path it sits under (for messages). */
 export function setupSources(p: SetupParams): Array<{ field: string; pick: SourcePick }> {
   switch (p.tool) {
-    case 'adaptive':
-      return p.d
-        ? [
-            { field: 'x', pick: p.x },
-            { field: 'd', pick: p.d }
-          ]
-        : [{ field: 'x', pick: p.x }];
+    case 'adaptive': {
+      const out = [{ field: 'x', pick: p.x }];
+      if (p.d) {
+        out.push({ field: 'd', pick: p.d });
+      }
+      if (p.truth && usesTruth(p)) {
+        out.push({ field: 'truth', pick: p.truth });
+      }
+      return out;
+    }
     case 'sweep':
       return setupSources(p.base).map(s => ({ field: `base.${s.field}`, pick: s.pick }));
     case 'removal': {

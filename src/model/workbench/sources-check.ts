@@ -204,6 +204,28 @@ export function checkSources(
           )
         );
       }
+      const ft = facts.get('truth');
+      if (a.truth && ft) {
+        if (ft.shape.length !== 1 || ft.shape[0] < 1) {
+          add(
+            `${pre}truth`,
+            trans.__(
+              'The true response %1 must be a 1-D array of taps, got shape %2.',
+              refLabel(trans, a.truth.ref),
+              shapeText(ft.shape)
+            )
+          );
+        } else if (ft.complex && fx && !fx.complex) {
+          add(
+            `${pre}truth`,
+            trans.__(
+              'The true response %1 is complex but %2 is real: a system from real x to real d has a real impulse response.',
+              refLabel(trans, a.truth.ref),
+              refLabel(trans, a.x.ref)
+            )
+          );
+        }
+      }
       if (x && Number.isInteger(a.taps) && a.taps > x.samples) {
         add(
           `${pre}taps`,

@@ -26,6 +26,7 @@ import {
   type SourceRef
 } from './setup';
 import { checkSources, refLabel } from './sources-check';
+import { truthOutcome } from './truth';
 
 /** Where the set-ups are stored: the notebook's metadata under the project's key. */
 export interface IMetadataHost {
@@ -333,13 +334,17 @@ export class WorkbenchModel {
     }
     this._handles.delete(run.id);
     if (this._live(run.id, 'running')) {
-      const prior = this._run(run.id)!.messages;
+      const now = this._run(run.id)!;
+      const prior = now.messages;
       const cancelled = out.status === 'cancelled';
+      const truth = cancelled
+        ? { figures: [], messages: [] }
+        : truthOutcome(this._trans, run.params, now.inputs, out.arrays);
       this._set(run.id, {
         status: out.status,
         progress: cancelled ? 0 : 1,
-        messages: [...prior, ...out.messages],
-        figures: cancelled ? [] : out.figures,
+        messages: [...prior, ...out.messages, ...truth.messages],
+        figures: cancelled ? [] : [...out.figures, ...truth.figures],
         arrays: cancelled ? {} : out.arrays,
         computeMs: out.computeMs
       });

@@ -15,6 +15,7 @@ import {
 import { beamView } from './beam-view';
 import type { Trans } from '../../model/workbench/rules';
 import type { ResultArray, Run } from '../../model/workbench/runs';
+import { optimumWeights } from '../../model/workbench/truth';
 import { rowCount, rowOf, type LinePart, type LineSignal, type LineSource } from './lines';
 import type { PlotSettings } from './settings';
 import { emptySpec, type MarkerLine, type PlotSpec } from './spec';
@@ -391,8 +392,48 @@ function responseView(trans: Trans, run: Run, o: ViewOptions, s: PlotSettings): 
   spec.y2Title = trans.__('phase (rad, unwrapped)');
   spec.traces.push({ name: trans.__('|H|'), kind: 'line', x, y: r.magnitudeDb, color: 0 });
   spec.traces.push({ name: trans.__('arg H'), kind: 'line', x, y: r.phase, color: 1, lower: true });
+  const notes: string[] = [];
   if (rowCount(wArr) > 1) {
-    spec.note = trans.__('Final weights of row %1 (trial or channel).', row + 1);
+    notes.push(trans.__('Final weights of row %1 (trial or channel).', row + 1));
+  }
+  const h = run.inputs.truth;
+  if (h && !(h.complex && !wArr.complex)) {
+    // The true impulse response h as weights w_o = conj(h) (y = wᴴu), on the same grid.
+    const t = firResponse(optimumWeights(h, wArr.complex), {
+      complex: wArr.complex,
+      points: s.responsePoints + 1
+    });
+    spec.traces.push({
+      name: trans.__('|H| true'),
+      kind: 'line',
+      x,
+      y: t.magnitudeDb,
+      color: 2,
+      dash: 'dash'
+    });
+    spec.traces.push({
+      name: trans.__('arg H true'),
+      kind: 'line',
+      x,
+      y: t.phase,
+      color: 3,
+      dash: 'dash',
+      lower: true
+    });
+    const mis = figure(run, 'misalignmentDb');
+    notes.push(
+      mis === null
+        ? trans.__('Dashed: the true response %1 (%2 taps).', h.description, h.shape[0])
+        : trans.__(
+            'Dashed: the true response %1 (%2 taps); misalignment of the weights %3 dB.',
+            h.description,
+            h.shape[0],
+            Number(mis.toFixed(1))
+          )
+    );
+  }
+  if (notes.length > 0) {
+    spec.note = notes.join(' ');
   }
   return spec;
 }

@@ -295,7 +295,14 @@ export class SetupEditor extends Widget {
     const options = this._catalog.options();
     const current =
       pick && !(pick.ref.kind === 'variable' && pick.ref.name === '') ? refKey(pick.ref) : '';
-    select.append(new Option(trans.__('choose an array…'), '', false, current === ''));
+    select.append(
+      new Option(
+        f.optional ? trans.__('none') : trans.__('choose an array…'),
+        '',
+        false,
+        current === ''
+      )
+    );
     let listed = false;
     for (const o of options) {
       const key = refKey(o.ref);
@@ -312,13 +319,15 @@ export class SetupEditor extends Widget {
       this._dirty = true;
       this._clearIssue(f.path);
       const o = options.find(x => refKey(x.ref) === select.value);
-      const next: SourcePick = o
+      const next: SourcePick | undefined = o
         ? {
             ref: o.ref,
             shape: [...o.shape],
             layout: o.shape.length === 2 ? { samplesAxis: 1, rows: 'trials' } : null
           }
-        : { ref: { kind: 'variable', name: '' }, shape: null, layout: null };
+        : f.optional
+          ? undefined
+          : { ref: { kind: 'variable', name: '' }, shape: null, layout: null };
       this._draft = setPath(this._draft!, f.path, next);
       this._render();
       this._focus(f.path);

@@ -29,9 +29,14 @@ function demoSetups(): Setup[] {
         rankTolerance: null
       }
     },
+    setup(
+      'nc-truth',
+      cancellation({ use: 'identification', truth: variable('path', [12]) }),
+      'motor path, against the true response'
+    ),
     setup('sweep-lambda', {
       tool: 'sweep',
-      base: cancellation(),
+      base: cancellation({ truth: variable('path', [12]) }),
       parameter: 'lambda',
       values: [0.99, 0.995, 0.999]
     }),
@@ -154,7 +159,15 @@ describe('notebook metadata of the workbench', () => {
       [s => (s.follow = 'yes'), 'follow'],
       [s => (s.params.algorithm = 'magic'), 'params.algorithm'],
       [s => (s.params.__proto__ = { polluted: true }), ''],
-      [s => (s.params = []), 'params.tool']
+      [s => (s.params = []), 'params.tool'],
+      // the optional true response: a pick like any other source, or absent
+      [s => (s.params.truth = 'path'), 'params.truth'],
+      [
+        s => (s.params.truth = { ref: { kind: 'variable', name: 'os.system("x")' } }),
+        'params.truth.ref.name'
+      ],
+      [s => (s.params.truth = { ...s.params.x, code: 'print(1)' }), 'params.truth.code'],
+      [s => (s.params.truth = { ...s.params.x, shape: [-2] }), 'params.truth.shape[0]']
     ];
     for (const [spoil, field] of cases) {
       const stored = serializeWorkbench([setup('a', cancellation())]) as {
@@ -173,6 +186,18 @@ describe('notebook metadata of the workbench', () => {
       expect(r.problems).toHaveLength(1);
       expect(r.problems[0]).toContain(`"${field}"`);
     }
+  });
+
+  it('reads a set-up without a true response (or with null) as having none, and writes none', () => {
+    const stored = serializeWorkbench([setup('a', cancellation())]) as {
+      version: number;
+      setups: any[];
+    };
+    expect('truth' in stored.setups[0].params).toBe(false);
+    stored.setups[0].params.truth = null;
+    const r = loadWorkbench(trans, stored);
+    expect(r.problems).toEqual([]);
+    expect('truth' in r.setups[0].params).toBe(false);
   });
 
   it('refuses a key named __proto__ in stored JSON as an unknown field', () => {

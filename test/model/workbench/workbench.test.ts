@@ -197,6 +197,50 @@ describe('WorkbenchModel', () => {
     expect(run.readMs).not.toBeNull();
   });
 
+  it('a true response is read with the inputs and the run reports the misalignment', async () => {
+    const { model, reader, runner } = make();
+    reader.table.path = {
+      data: Float64Array.from([1, 0.5]),
+      shape: [2],
+      complex: false,
+      dtype: 'float64'
+    };
+    const pick = { ref: { kind: 'variable' as const, name: 'path' }, shape: [2], layout: null };
+    const id = (model.add(cancellation({ taps: 3, truth: pick }), 'nc') as { id: string }).id;
+    const done = model.run(id);
+    await tick();
+    expect(reader.reads).toContain('path');
+    // w = (1, 0.4, 0.1) against w_o = (1, 0.5) padded: ‖(0, −0.1, 0.1)‖²/‖w_o‖² = 0.02/1.25
+    const w = Float64Array.from([1, 0.4, 0.1]);
+    runner.jobs[0].finish({
+      arrays: { weights: { data: w, shape: [3], complex: false, description: 'final weights w' } }
+    });
+    const [run] = await done;
+    expect(run.inputs.truth.shape).toEqual([2]);
+    const f = run.figures.find(x => x.key === 'misalignmentDb')!;
+    expect(f.unit).toBe('dB');
+    expect(f.value).toBeCloseTo(10 * Math.log10(0.02 / 1.25), 12);
+    expect(run.messages.join(' ')).toMatch(/the shorter padded with zeros/);
+  });
+
+  it('a true response of the wrong shape fails the run with a sentence naming it', async () => {
+    const { model, reader, runner } = make();
+    reader.table.path2 = {
+      data: new Float64Array(4),
+      shape: [2, 2],
+      complex: false,
+      dtype: 'float64'
+    };
+    const pick = { ref: { kind: 'variable' as const, name: 'path2' }, shape: [2, 2], layout: null };
+    const id = (model.add(cancellation({ truth: pick }), 'bad truth') as { id: string }).id;
+    const [run] = await model.run(id);
+    expect(runner.jobs).toHaveLength(0);
+    expect(run.status).toBe('failed');
+    expect(run.messages).toEqual([
+      'The true response path2 must be a 1-D array of taps, got shape 2×2.'
+    ]);
+  });
+
   it('cancel: status cancelled, no result arrays, parameters kept; a re-run completes', async () => {
     const { model, runner } = make();
     const id = (model.add(cancellation(), 'nc') as { id: string }).id;

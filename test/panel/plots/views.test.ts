@@ -280,3 +280,30 @@ describe('rows of K×N results (trials or channels)', () => {
     expect(t.lines[0].signal).toMatchObject({ n: 2, stride: 2, offset: 5 });
   });
 });
+
+describe('weights response against a known true response', () => {
+  test('the true response h = (1, 0.5) dashed over the weights: |H| = 1.5 at 0, 0.5 at Nyquist', () => {
+    // H(e^{jω}) = 1 + 0.5·e^{−jω} (Oppenheim and Schafer, 3rd ed., §5.1): |H(0)| = 1.5, |H(π)| = 0.5
+    const run = cancellationRun(2000, 1000, {
+      inputs: {
+        x: vec(new Float64Array(2000)),
+        d: vec(new Float64Array(2000)),
+        truth: { ...vec(Float64Array.from([1, 0.5])), description: 'path' }
+      },
+      figures: [{ key: 'misalignmentDb', label: 'misalignment', value: -31.25, unit: 'dB' }]
+    });
+    const spec = buildView(trans, run, 'response', O, S);
+    expect(spec.traces.map(t => [t.name, t.dash ?? 'solid', t.lower ?? false])).toEqual([
+      ['|H|', 'solid', false],
+      ['arg H', 'solid', true],
+      ['|H| true', 'dash', false],
+      ['arg H true', 'dash', true]
+    ]);
+    const true_ = spec.traces[2].y;
+    expect(true_[0]).toBeCloseTo(20 * Math.log10(1.5), 10);
+    expect(true_[true_.length - 1]).toBeCloseTo(20 * Math.log10(0.5), 10);
+    expect(spec.note).toBe(
+      'Dashed: the true response path (2 taps); misalignment of the weights -31.3 dB.'
+    );
+  });
+});
