@@ -259,10 +259,13 @@ export class SetupEditor extends Widget {
         select.addEventListener('change', () => {
           this._dirty = true;
           this._clearIssue(f.path);
-          if (f.path === 'basis.kind' && p.tool === 'removal') {
-            this._draft = { ...p, basis: basisDraft(select.value as never, this._hints()) };
+          // The draft as it is now (a layout or a typed value may have changed it since this
+          // control was drawn), not as it was then.
+          const now = this._draft!;
+          if (f.path === 'basis.kind' && now.tool === 'removal') {
+            this._draft = { ...now, basis: basisDraft(select.value as never, this._hints()) };
           } else {
-            this._draft = setPath(p, f.path, select.value);
+            this._draft = setPath(now, f.path, select.value);
           }
           this._render();
           this._focus(f.path);
