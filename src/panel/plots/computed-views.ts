@@ -126,9 +126,9 @@ async function cancellationView(
       : trans.__('Error reduction: bound from the coherence, and achieved'),
     f.title,
     f.unit,
-    trans.__('power taken off d (dB)')
+    trans.__('cancellation (dB)')
   );
-  spec.y2Title = trans.__('coherence γ² (no unit)');
+  spec.y2Title = trans.__('coherence γ²');
   spec.traces.push({
     name: trans.__('bound −10·log₁₀(1 − γ²)'),
     kind: 'line',
@@ -243,12 +243,18 @@ async function spectrogramView(
   };
   const group = Math.ceil(r.segments / r.cols);
   spec.note = trans.__(
-    'Short-time power of %1: Tukey window (α = 0.25), %2-sample segments overlapping by %3, mean removed per segment; %4 segments in all, %5 neighbouring segments averaged per column. Colours span the top %6 dB.',
+    'Short-time power of %1: Tukey window (α = 0.25), %2-sample segments overlapping by %3, mean removed per segment; %4. Colours span the top %5 dB.',
     trans.__(pick.name),
     r.nperseg,
     r.noverlap,
-    r.segments,
-    group,
+    group > 1
+      ? trans.__(
+          '%1 segments in all, averaged %2 neighbours per column into %3 columns',
+          r.segments,
+          group,
+          r.cols
+        )
+      : trans.__('one column per segment (%1)', r.segments),
     SPECTROGRAM_RANGE_DB
   );
   return spec;

@@ -101,8 +101,8 @@ describe('cancellation bound', () => {
     const spec = await computeView(trans, run, 'cancellation', O, S, compute);
     expect(calls.sort()).toEqual(['coherence', 'welch', 'welch']);
     expect(spec.xTitle).toBe('frequency (Hz)');
-    expect(spec.yTitle).toBe('power taken off d (dB)');
-    expect(spec.y2Title).toBe('coherence γ² (no unit)');
+    expect(spec.yTitle).toBe('cancellation (dB)');
+    expect(spec.y2Title).toBe('coherence γ²');
     const [bound, achieved, coh] = spec.traces;
     expect(bound.name).toBe('bound −10·log₁₀(1 − γ²)');
     expect(coh.lower).toBe(true);
@@ -175,6 +175,10 @@ describe('spectrogram', () => {
     expect(h.zRange[1] - h.zRange[0]).toBe(80);
     expect(spec.title).toBe('Spectrogram of primary d(n)');
     expect(spec.note).toMatch(/256-sample segments overlapping by 32/);
+    // ⌊(1e6 − 32)/224⌋ = 4464 segments (SciPy's count), 12 per column → 372 columns
+    expect(spec.note).toMatch(
+      /4464 segments in all, averaged 12 neighbours per column into 372 columns/
+    );
   });
   test('the selector picks the signal after; the segment follows short signals', async () => {
     const run = whiteRun(2048, 0.25, null);
