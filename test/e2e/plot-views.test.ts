@@ -146,6 +146,10 @@ test('noise cancellation against the true path: response, cancellation bound, sp
   // bearing tone in d are not correlated with x and only perturb them).
   const mis = await figure('misalignmentDb');
   expect(mis).toBeLessThan(-15);
+  await bench().locator('.pp-RunDetail-params summary').click();
+  await expect(bench().locator('.pp-RunDetail-params').textContent()).resolves.toMatch(
+    /true response\s*path · 12/
+  );
   await plots().locator('.js-plotly-plot').first().waitFor({ timeout: 60000 });
   expect(await plots().locator('.pp-Plots-tab').allTextContents()).toEqual(
     expect.arrayContaining(['Weights response', 'Cancellation bound', 'Spectrogram'])

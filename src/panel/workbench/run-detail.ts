@@ -219,7 +219,11 @@ export namespace RunDetail {
 function paramText(trans: TranslationBundle, f: FieldSpec, v: unknown): string {
   switch (f.kind) {
     case 'source': {
-      const p = v as SourcePick;
+      const p = v as SourcePick | null | undefined;
+      if (!p) {
+        // An optional source left empty (the true response).
+        return trans.__('none');
+      }
       const name = p.ref.kind === 'variable' ? p.ref.name : trans.__('cell %1', p.ref.cellId);
       const layout = p.layout
         ? trans.__(
