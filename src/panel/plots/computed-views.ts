@@ -5,13 +5,14 @@
  */
 import type { PsdResult, SignalView, SpectrogramResult } from '../../core';
 import type { Trans } from '../../model/workbench/rules';
-import type { ResultArray, Run } from '../../model/workbench/runs';
+import type { Run } from '../../model/workbench/runs';
 import type { PlotCompute } from './compute';
 import type { LineSignal } from './lines';
 import type { PlotSettings } from './settings';
 import { emptySpec, type PlotSpec } from './spec';
 import {
   beforeOf,
+  coherencePair,
   frequencyAxis,
   need,
   rowIn,
@@ -74,20 +75,15 @@ async function cancellationView(
   s: PlotSettings,
   compute: PlotCompute
 ): Promise<PlotSpec> {
-  const p = run.params;
-  if (p.tool !== 'adaptive') {
-    throw new Error(trans.__('run "%1" is not an adaptive filter', run.label));
+  const pair = coherencePair(run);
+  if (!pair) {
+    throw new Error(
+      trans.__('run "%1" has no reference, signal and residual to compare', run.label)
+    );
   }
-  const input = (key: string): ResultArray => {
-    const a = run.inputs[key];
-    if (!a) {
-      throw new Error(trans.__('run "%1" has no input %2 to plot', run.label, key));
-    }
-    return a;
-  };
-  const x = rowIn(input('x'), o.row);
-  const d = rowIn(input('d'), o.row);
-  const e = rowIn(need(run, 'error'), o.row);
+  const x = rowIn(pair.x, o.row);
+  const d = rowIn(pair.d, o.row);
+  const e = rowIn(pair.e, o.row);
   if (x.n !== d.n || e.n !== d.n) {
     throw new Error(
       trans.__(
@@ -119,11 +115,11 @@ async function cancellationView(
     achieved[k] = 10 * Math.log10(pd.psd[k] / pe.psd[k]);
   }
   const f = frequencyAxis(trans, fs);
-  const cancel = p.use === 'cancellation';
+  const use = pair.use;
   const spec = emptySpec(
-    cancel
-      ? trans.__('Cancellation: bound from the coherence, and achieved')
-      : trans.__('Error reduction: bound from the coherence, and achieved'),
+    use === 'identification'
+      ? trans.__('Error reduction: bound from the coherence, and achieved')
+      : trans.__('Cancellation: bound from the coherence, and achieved'),
     f.title,
     f.unit,
     trans.__('cancellation (dB)')
@@ -154,8 +150,16 @@ async function cancellationView(
   });
   spec.note = trans.__(
     'γ²(f): magnitude-squared coherence of %1 and %2. A linear filter of x can take at most −10·log₁₀(1 − γ²) dB off d at each frequency (drawn up to %3 dB); the run took 10·log₁₀(PSD_d/PSD_e). Welch estimates: Hann window, %4-sample segments, 50 % overlap, mean removed per segment.',
-    cancel ? trans.__('the reference x') : trans.__('the input x'),
-    cancel ? trans.__('the primary d') : trans.__('the desired d'),
+    use === 'cancellation'
+      ? trans.__('the reference x')
+      : use === 'removal'
+        ? trans.__('the reference channel x')
+        : trans.__('the input x'),
+    use === 'cancellation'
+      ? trans.__('the primary d')
+      : use === 'removal'
+        ? trans.__('the signal d')
+        : trans.__('the desired d'),
     BOUND_CAP_DB,
     coh.nperseg
   );

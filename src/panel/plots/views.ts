@@ -137,12 +137,7 @@ export function viewsOf(run: Run): ViewKind[] {
       out.push('spectrum');
     }
     const use = run.params.use;
-    if (
-      (use === 'cancellation' || use === 'identification') &&
-      a.error &&
-      run.inputs.x &&
-      run.inputs.d
-    ) {
+    if (coherencePair(run)) {
       out.push('cancellation');
     }
     if (a.error && beforeOf(run)) {
@@ -158,6 +153,9 @@ export function viewsOf(run: Run): ViewKind[] {
     if (run.figures.some(f => f.key.startsWith('dir:'))) {
       out.push('energy');
     }
+    if (coherencePair(run)) {
+      out.push('cancellation');
+    }
     if (a.output && run.params.basis.kind === 'array') {
       out.push('beam');
     }
@@ -167,6 +165,35 @@ export function viewsOf(run: Run): ViewKind[] {
     }
   }
   return out;
+}
+
+/**
+ * The signals a cancellation bound compares: the reference x, the signal d it is taken off and
+ * what is left e — an adaptive canceller's (or identifier's) x, d and error, or a removal's
+ * reference channel, signal and output when the removal takes delayed copies of a reference off
+ * the signal (a least-squares FIR of the reference). Null when the run has no such three.
+ */
+export function coherencePair(
+  run: Run
+): {
+  x: ResultArray;
+  d: ResultArray;
+  e: ResultArray;
+  use: 'cancellation' | 'identification' | 'removal';
+} | null {
+  const p = run.params;
+  if (p.tool === 'adaptive' && (p.use === 'cancellation' || p.use === 'identification')) {
+    const { x, d } = run.inputs;
+    const e = run.arrays.error;
+    return x && d && e ? { x, d, e, use: p.use } : null;
+  }
+  if (p.tool === 'removal' && p.basis.kind === 'reference' && p.mode === 'off') {
+    const x = run.inputs['basis.reference'];
+    const d = run.inputs.signal;
+    const e = run.arrays.output;
+    return x && d && e ? { x, d, e, use: 'removal' } : null;
+  }
+  return null;
 }
 
 /** The time axis: seconds when the run's sample rate is known, samples otherwise. */

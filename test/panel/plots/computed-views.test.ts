@@ -245,3 +245,34 @@ describe('beam pattern', () => {
     expect(spec.markers[0].label).toBe('kept 30°');
   });
 });
+
+describe('cancellation bound of a removal by delayed copies of a reference', () => {
+  test('reference, signal and output are x, d and e; other removals have no bound', async () => {
+    const w = whiteRun(1 << 14, 0.25, 4000);
+    const run = makeRun(
+      removal({
+        basis: { kind: 'reference', reference: variable('ref', [1 << 14]), copies: 4 }
+      }),
+      {
+        fs: 4000,
+        arrays: { output: w.arrays.error },
+        inputs: { signal: w.inputs.d, 'basis.reference': w.inputs.x }
+      }
+    );
+    expect(viewsOf(run)).toContain('cancellation');
+    const spec = await computeView(trans, run, 'cancellation', O, S, mainThreadCompute);
+    expect(spec.title).toBe('Cancellation: bound from the coherence, and achieved');
+    expect(spec.note).toMatch(/coherence of the reference channel x and the signal d/);
+    // the same white case as above: both near 10·log₁₀(1.25/0.25) = 6.99 dB at a middle bin
+    const c = coherence(w.inputs.x.data, w.inputs.d.data, { fs: 4000, nperseg: 1024 });
+    expect(spec.traces[0].y[200]).toBeCloseTo(-10 * Math.log10(1 - c.coherence[200]), 10);
+    const onto = makeRun(
+      removal({
+        mode: 'onto',
+        basis: { kind: 'reference', reference: variable('ref', [1 << 14]), copies: 4 }
+      }),
+      { arrays: run.arrays, inputs: run.inputs }
+    );
+    expect(viewsOf(onto)).not.toContain('cancellation');
+  });
+});
