@@ -173,9 +173,7 @@ export function viewsOf(run: Run): ViewKind[] {
  * reference channel, signal and output when the removal takes delayed copies of a reference off
  * the signal (a least-squares FIR of the reference). Null when the run has no such three.
  */
-export function coherencePair(
-  run: Run
-): {
+export function coherencePair(run: Run): {
   x: ResultArray;
   d: ResultArray;
   e: ResultArray;
