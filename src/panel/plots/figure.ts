@@ -85,7 +85,7 @@ function staticTrace(s: StaticTrace, theme: PlotTheme): PlotObject {
  * A heatmap trace: z as rows (plotly's z[row][col]), a perceptually uniform colour scale
  * (viridis, readable on light and dark backgrounds) and a colour bar titled with the unit.
  */
-function heatmapTrace(h: HeatmapSpec, theme: PlotTheme): PlotObject {
+function heatmapTrace(spec: PlotSpec, h: HeatmapSpec, theme: PlotTheme): PlotObject {
   const z: Float64Array[] = [];
   for (let i = 0; i < h.rows; i++) {
     z.push(h.z.subarray(i * h.cols, (i + 1) * h.cols));
@@ -101,7 +101,8 @@ function heatmapTrace(h: HeatmapSpec, theme: PlotTheme): PlotObject {
     zauto: false,
     colorscale: 'Viridis',
     showlegend: false,
-    hovertemplate: '%{x}, %{y}: %{z:.1f}<extra></extra>',
+    // Each number with what it is and its unit (the axis titles and the colour bar's).
+    hovertemplate: `${hoverText(spec.xTitle)} %{x}<br>${hoverText(spec.yTitle)} %{y}<br>${hoverText(h.zTitle)} %{z:.1f}<extra></extra>`,
     colorbar: {
       title: { text: h.zTitle, side: 'right', font: { color: theme.foreground } },
       tickfont: { color: theme.foreground },
@@ -109,6 +110,11 @@ function heatmapTrace(h: HeatmapSpec, theme: PlotTheme): PlotObject {
       thickness: 12
     }
   };
+}
+
+/** Text for a hover template, its HTML made literal (plotly renders a few tags in hover labels). */
+function hoverText(t: string): string {
+  return t.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;');
 }
 
 /** A CSS colour with an alpha, for band fills (hex and rgb() forms; others as they are). */
@@ -173,7 +179,7 @@ export function buildFigure(
   yRanges: YRanges = {}
 ): Figure {
   const data: PlotObject[] = [
-    ...(spec.heatmap ? [heatmapTrace(spec.heatmap, theme)] : []),
+    ...(spec.heatmap ? [heatmapTrace(spec, spec.heatmap, theme)] : []),
     ...spec.lines.map(l => lineTrace(l, theme, range, columns)),
     ...spec.traces.map(t => staticTrace(t, theme))
   ];

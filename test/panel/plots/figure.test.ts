@@ -181,6 +181,9 @@ describe('a heatmap (spectrogram)', () => {
     expect([h.zmin, h.zmax]).toEqual([-80, 6]);
     expect((h.colorbar as { title: { text: string } }).title.text).toBe('power (dB/Hz)');
     expect((f.layout.margin as { r: number }).r).toBeGreaterThan(60);
+    expect(h.hovertemplate).toBe(
+      'time (s) %{x}<br>frequency (Hz) %{y}<br>power (dB/Hz) %{z:.1f}<extra></extra>'
+    );
   });
   test('CSV: one row per cell inside the visible range, and the row limit', () => {
     const csv = figureCsv(spec, [1, 3], 100);
