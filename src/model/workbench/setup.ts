@@ -173,7 +173,8 @@ export function setupSources(p: SetupParams): Array<{ field: string; pick: Sourc
   switch (p.tool) {
     case 'adaptive': {
       const out = [{ field: 'x', pick: p.x }];
-      if (p.d) {
+      // prediction reads x alone (its d is x ahead of itself): a d left in the draft is not asked for
+      if (p.d && p.use !== 'prediction') {
         out.push({ field: 'd', pick: p.d });
       }
       if (p.truth && usesTruth(p)) {

@@ -116,6 +116,13 @@ describe('checks against the sources', () => {
     expect(checkSources(trans, cancellation(), demo)).toEqual([]);
   });
 
+  it('asks nothing of d in a prediction (a d left from another use in the form is not read)', () => {
+    const p = cancellation({ use: 'prediction', x: variable('baseband'), d: variable('') });
+    expect(checkSources(trans, p, demo)).toEqual([]);
+    // the same d in a cancellation is asked for, on its field
+    expect(fields(checkSources(trans, { ...p, use: 'cancellation' }, demo))).toEqual(['d']);
+  });
+
   it('says x and d differ in length, naming both', () => {
     const issues = checkSources(trans, cancellation({ d: variable('short') }), demo);
     expect(fields(issues)).toEqual(['d']);
