@@ -69,6 +69,17 @@ export class SetupEditor extends Widget {
     this._render();
   }
 
+  /** Shows a line instead of a form while a new set-up's form is being prepared. */
+  prepare(text: string): void {
+    this._draft = null;
+    this._setupId = null;
+    this._dirty = false;
+    const p = document.createElement('p');
+    p.className = 'pp-Workbench-hint pp-Editor-preparing';
+    p.textContent = text;
+    this.node.replaceChildren(p);
+  }
+
   /** Marks the given issues on their fields (after a failed save, say). */
   showIssues(issues: ReadonlyArray<FieldIssue>): void {
     this._issues = [...issues];
@@ -84,7 +95,8 @@ export class SetupEditor extends Widget {
     const trans = this._trans;
     const st = this._catalog.state?.() ?? { state: 'listed' as const, message: '' };
     const empty = this._catalog.options().length === 0;
-    if (st.state === 'listed' && !empty) {
+    // A refresh under way while arrays are listed says nothing (the list stays usable).
+    if (!empty && (st.state === 'listed' || st.state === 'busy')) {
       return null;
     }
     const line = document.createElement('div');
@@ -110,7 +122,17 @@ export class SetupEditor extends Widget {
     return line;
   }
 
+  /** What the form shows of the catalog: its options and the listing line. */
+  private _catalogKey(): string {
+    const line = this._listingLine();
+    return JSON.stringify([
+      this._catalog.options().map(o => [refKey(o.ref), o.label, o.shape, o.dtype]),
+      line ? [line.dataset.state, line.textContent] : null
+    ]);
+  }
+
   private _render(): void {
+    this._shownCatalog = this._catalogKey();
     const trans = this._trans;
     const p = this._draft;
     if (!p) {
@@ -453,6 +475,11 @@ export class SetupEditor extends Widget {
     if (!this._draft) {
       return;
     }
+    // Only a change the form shows repaints it (a listing's state passes often).
+    const seen = this._catalogKey();
+    if (seen === this._shownCatalog) {
+      return;
+    }
     const active = document.activeElement as HTMLElement | null;
     if (!active || !this.node.contains(active)) {
       this._render();
@@ -533,6 +560,7 @@ export class SetupEditor extends Widget {
   private readonly _trans: TranslationBundle;
   private readonly _catalog: ISourceCatalog;
   private _catalogStale = false;
+  private _shownCatalog = '';
   private readonly _validate: (p: SetupParams) => FieldIssue[];
   private readonly _save: SetupEditor.SaveFn;
   private readonly _close: () => void;

@@ -13,6 +13,7 @@ import { TOOLS, type SetupParams, type Tool } from '../../model/workbench/setup'
 import type { WorkbenchModel } from '../../model/workbench/workbench';
 import type { ISourceCatalog } from '../../model/workbench/catalog';
 import { ComparePlots, RunPlots } from '../plots';
+import type { PlotCompute } from '../plots/compute';
 import type { PlotPane } from '../plots/plot-pane';
 import type { PlotSettings } from '../plots/settings';
 import type { PlotTarget } from '../plots/plot-tab';
@@ -64,6 +65,7 @@ export class WorkbenchPanel extends Widget {
     this._plots = new RunPlots({
       trans,
       model: this._model,
+      compute: options.compute,
       writeData: host.writePlot?.bind(host),
       openTab: openPlot ? (runId, view) => openPlot({ runId, view }) : undefined
     });
@@ -71,6 +73,7 @@ export class WorkbenchPanel extends Widget {
     this._compare = new ComparePlots({
       trans,
       model: this._model,
+      compute: options.compute,
       writeData: host.writePlot?.bind(host),
       openTab: openPlot ? (runIds, compare) => openPlot({ runIds, compare }) : undefined
     });
@@ -114,10 +117,18 @@ export class WorkbenchPanel extends Widget {
   async newSetup(tool: Tool): Promise<void> {
     // The pickers offer what the kernel holds now.
     this._host.refresh();
+    // The form shown so far goes at once (nothing typed now could land in it), and the new one
+    // comes with the kernel's hints (fs, f0); the latest click wins.
+    const token = ++this._newSetups;
+    this._editor.prepare(this._trans.__('Preparing a new %1 set-up…', TOOL_LABELS[tool]));
+    this._showEditor();
     try {
       this._hints = await this._host.hints();
     } catch {
       // No kernel or nothing defined: the draft starts from the defaults alone.
+    }
+    if (token !== this._newSetups || this.isDisposed) {
+      return;
     }
     const params = draftFor(tool, this._defaults(), this._hints);
     this._editor.edit(params, '', null);
@@ -126,6 +137,7 @@ export class WorkbenchPanel extends Widget {
 
   /** Opens an existing set-up in the editor. */
   editSetup(id: string): void {
+    ++this._newSetups; // a new set-up's form still being prepared does not replace this one
     const s = this._model.setup(id);
     if (s) {
       this._editor.edit(s.params, s.title, id);
@@ -297,6 +309,7 @@ export class WorkbenchPanel extends Widget {
   private readonly _compare: ComparePlots;
   private readonly _defaults: () => WorkbenchDefaults;
   private _hints: KernelHints = {};
+  private _newSetups = 0;
 }
 
 export namespace WorkbenchPanel {
@@ -321,5 +334,7 @@ export namespace WorkbenchPanel {
     catalog: ISourceCatalog;
     host: IHost;
     defaults: () => WorkbenchDefaults;
+    /** Where the plots' long estimates run (a worker; default the main thread). */
+    compute?: PlotCompute;
   }
 }
