@@ -28,6 +28,7 @@ import { writePlotData, writeRunArray, writeWholeRun } from './panel/workbench/w
 import { createPlotTab, plotTargetOf, type PlotTarget } from './panel/plots/plot-tab';
 import { createBrowserWorkerPool } from './worker/client';
 import type { WorkerPool } from './worker/pool';
+import { workerSpectralCompute } from './worker/spectral-client';
 import { DEFAULT_SETTINGS, IPerpend, type IPerpendSettings } from './tokens';
 import type { KernelBridge } from './bridge';
 
@@ -72,6 +73,11 @@ const plugin: JupyterFrontEndPlugin<void> = {
       });
       return pool;
     };
+    // The plots' spectral estimates run in a worker of their own: never queued behind runs.
+    let plotPool: WorkerPool | null = null;
+    const plotCompute = workerSpectralCompute(
+      () => (plotPool ??= createBrowserWorkerPool({ size: 1, memoryLimitBytes: 2 ** 30 }))
+    );
     const manager = new WorkbenchManager({
       trans,
       runner: new PoolRunner(getPool, trans),
@@ -92,6 +98,7 @@ const plugin: JupyterFrontEndPlugin<void> = {
           model: entry.model,
           catalog: entry.kernel,
           defaults: () => defaults,
+          compute: plotCompute,
           host: {
             confirmRemove: async title =>
               (
@@ -177,6 +184,7 @@ const plugin: JupyterFrontEndPlugin<void> = {
         target,
         owner: wb,
         settings: plotSettings,
+        compute: plotCompute,
         writeData: (record, stem) =>
           void writePlotData(
             trans,

@@ -16,3 +16,4 @@ export {
 export type { TransportFactory, WorkerTransport } from './transport';
 export * from './protocol';
 export { estimateJobBytes, expandSweep, type MemoryEstimate } from './jobs';
+export { workerSpectralCompute, contiguousRow, type SpectralCompute } from './spectral-client';

@@ -18,6 +18,13 @@
  *                                            in the transfer list.
  * No type here depends on the DOM, the WebWorker lib or JupyterLab.
  */
+import type {
+  CoherenceResult,
+  PsdResult,
+  SpectrogramOptions,
+  SpectrogramResult,
+  WelchOptions
+} from '../core/dsp';
 import type { Algorithm, Constellation, Precision } from '../core/filters';
 
 /** Version of this protocol; the worker announces it in `ready`. */
@@ -159,8 +166,30 @@ export interface AnglesSpec {
 
 export type SubspaceSpec = BasisJobSpec | LeastSquaresSpec | AnglesSpec;
 
+/**
+ * A spectral estimate a plot needs (DESIGN §5: long computations leave the page's thread): a
+ * Welch PSD of x, the coherence of x and y, or a spectrogram of x pooled to at most
+ * `maxColumns` columns. x and y are 1-D (one row of a result), the options the core's.
+ */
+export type SpectralSpec =
+  | { kind: 'spectral'; op: 'welch'; x: ArrayData; options: WelchOptions }
+  | {
+      kind: 'spectral';
+      op: 'coherence';
+      x: ArrayData;
+      y: ArrayData;
+      options: Omit<WelchOptions, 'average' | 'scaling'>;
+    }
+  | {
+      kind: 'spectral';
+      op: 'spectrogram';
+      x: ArrayData;
+      options: SpectrogramOptions;
+      maxColumns: number;
+    };
+
 /** A job the worker runs. */
-export type JobSpec = AdaptiveFilterSpec | InterferenceSpec | SubspaceSpec;
+export type JobSpec = AdaptiveFilterSpec | InterferenceSpec | SubspaceSpec | SpectralSpec;
 
 /** The parameters a sweep can vary. */
 export type SweepParameter = 'taps' | 'lambda' | 'delta' | 'mu' | 'epsilon' | 'algorithm';
@@ -333,7 +362,15 @@ export interface AnglesJobResult {
   rankB: number;
 }
 
+/** The estimate of a SpectralSpec, as the core returns it. */
+export type SpectralJobResult = { kind: 'spectral'; status: 'ok'; warnings: JobWarning[] } & (
+  | { op: 'welch'; psd: PsdResult }
+  | { op: 'coherence'; coherence: CoherenceResult }
+  | { op: 'spectrogram'; spectrogram: SpectrogramResult }
+);
+
 export type JobResult =
+  | SpectralJobResult
   | AdaptiveFilterResult
   | InterferenceResult
   | BasisJobResult

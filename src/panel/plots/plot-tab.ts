@@ -11,6 +11,7 @@ import type { Trans } from '../../model/workbench/rules';
 import { perpendIcon } from '../icons';
 import { ComparePlots } from './compare-plots';
 import type { PlotPane } from './plot-pane';
+import type { PlotCompute } from './compute';
 import type { LoadPlotly } from './plotly';
 import type { IRunSource } from './run-source';
 import { RunPlots } from './run-plots';
@@ -32,7 +33,8 @@ export function createPlotTab(options: PlotTab.IOptions): MainAreaWidget<PlotTab
     loadPlotly: options.loadPlotly,
     settings: options.settings,
     themeChanged: options.themeChanged,
-    writeData: options.writeData
+    writeData: options.writeData,
+    compute: options.compute
   };
   let content: PlotTabContent;
   if ('runId' in target) {
@@ -81,5 +83,7 @@ export namespace PlotTab {
     settings?: Partial<PlotSettings>;
     themeChanged?: ISignal<unknown, unknown>;
     writeData?: PlotPane.WriteData;
+    /** Where the long estimates run (the workbench's plot worker; default the main thread). */
+    compute?: PlotCompute;
   }
 }

@@ -66,6 +66,12 @@ export function estimateJobBytes(spec: JobSpec): MemoryEstimate {
         detail: `projected signal ${mb(out)}, basis and its factors ${mb(basis)}`
       };
     }
+    case 'spectral': {
+      // detrended, windowed segments and their spectra are small; a strided or float32 row
+      // may be copied once
+      const bytes = 8 * (size(spec.x) + (spec.op === 'coherence' ? size(spec.y) : 0));
+      return { bytes, detail: `a working copy of the signal ${mb(bytes)}` };
+    }
     default: {
       const a = spec.kind === 'basis' ? spec.matrix : spec.a;
       const bb = spec.kind === 'basis' ? undefined : spec.b;

@@ -3,12 +3,14 @@ import type { JobResult, JobSpec } from '../protocol';
 import { runAdaptiveFilter } from './adaptive-filter';
 import type { JobContext } from './context';
 import { runInterference } from './interference';
+import { runSpectral } from './spectral';
 import { runAngles, runBasis, runLeastSquares } from './subspace';
 
 export { JobCancelled, directContext, type JobContext } from './context';
 export { runAdaptiveFilter, readFigures, filterOptions, defaultChunk } from './adaptive-filter';
 export { runInterference } from './interference';
 export { runAngles, runBasis, runLeastSquares } from './subspace';
+export { runSpectral } from './spectral';
 export { expandSweep, specDataBytes } from './sweep';
 export { estimateJobBytes, type MemoryEstimate } from './estimate';
 
@@ -28,10 +30,12 @@ export function runJob(spec: JobSpec, ctx: JobContext): Promise<JobResult> {
       return runLeastSquares(spec, ctx);
     case 'angles':
       return runAngles(spec, ctx);
+    case 'spectral':
+      return runSpectral(spec, ctx);
     default:
       return Promise.reject(
         new RangeError(
-          `spec.kind must be adaptive-filter, interference, basis, least-squares or angles, got ${JSON.stringify((spec as { kind: unknown }).kind)}`
+          `spec.kind must be adaptive-filter, interference, basis, least-squares, angles or spectral, got ${JSON.stringify((spec as { kind: unknown }).kind)}`
         )
       );
   }

@@ -1,0 +1,106 @@
+/**
+ * Spectral estimates for the plots computed in a worker of a pool: the plots' `PlotCompute`
+ * seam (src/panel/plots/compute.ts) implemented with `spectral` jobs. Each call copies the row
+ * it needs into a buffer of its own (contiguous float64, transferred, so the run keeps its
+ * arrays) and resolves with the core's result, or rejects with the worker's reason.
+ */
+import {
+  checkSignal,
+  type CoherenceResult,
+  type PsdResult,
+  type SignalView,
+  type SpectrogramOptions,
+  type SpectrogramResult,
+  type WelchOptions
+} from '../core/dsp';
+import type { WorkerPool } from './pool';
+import type { ArrayData, JobResult, SpectralSpec } from './protocol';
+
+/** The spectral estimates the plots ask for (the same shape as the plots' PlotCompute). */
+export interface SpectralCompute {
+  welch(signal: SignalView, options: WelchOptions): Promise<PsdResult>;
+  coherence(
+    x: SignalView,
+    y: SignalView,
+    options: Omit<WelchOptions, 'average' | 'scaling'>
+  ): Promise<CoherenceResult>;
+  spectrogram(
+    signal: SignalView,
+    options: SpectrogramOptions,
+    maxColumns: number
+  ): Promise<SpectrogramResult>;
+}
+
+/** The samples a view names, as a contiguous float64 array of their own (1-D). */
+export function contiguousRow(name: string, view: SignalView): ArrayData {
+  const s = checkSignal(name, view, view.complex ?? false);
+  const W = s.complex ? 2 : 1;
+  const out = new Float64Array(s.n * W);
+  if (s.stride === 1 && s.data instanceof Float64Array) {
+    out.set(s.data.subarray(s.offset * W, (s.offset + s.n) * W));
+  } else {
+    for (let i = 0; i < s.n; i++) {
+      const q = (s.offset + i * s.stride) * W;
+      out[i * W] = s.data[q];
+      if (W === 2) {
+        out[i * W + 1] = s.data[q + 1];
+      }
+    }
+  }
+  return { data: out, shape: [s.n], complex: s.complex };
+}
+
+/** PlotCompute on the pool `pool()` (a pool of its own keeps plots from queueing behind runs). */
+export function workerSpectralCompute(pool: () => Pick<WorkerPool, 'run'>): SpectralCompute {
+  const run = async (spec: SpectralSpec): Promise<JobResult> => {
+    const o = await pool().run(spec, { transfer: true }).outcome;
+    switch (o.status) {
+      case 'done':
+        return o.result;
+      case 'failed':
+        throw new Error(o.reason);
+      case 'cancelled':
+        throw new Error('the spectral estimate was cancelled');
+    }
+  };
+  return {
+    welch: async (signal, options) => {
+      const r = await run({
+        kind: 'spectral',
+        op: 'welch',
+        x: contiguousRow('signal', signal),
+        options
+      });
+      if (r.kind !== 'spectral' || r.op !== 'welch') {
+        throw new Error('internal: the worker answered a Welch estimate with another result');
+      }
+      return r.psd;
+    },
+    coherence: async (x, y, options) => {
+      const r = await run({
+        kind: 'spectral',
+        op: 'coherence',
+        x: contiguousRow('x', x),
+        y: contiguousRow('y', y),
+        options
+      });
+      if (r.kind !== 'spectral' || r.op !== 'coherence') {
+        throw new Error('internal: the worker answered a coherence estimate with another result');
+      }
+      return r.coherence;
+    },
+    spectrogram: async (signal, options, maxColumns) => {
+      const r = await run({
+        kind: 'spectral',
+        op: 'spectrogram',
+        x: contiguousRow('signal', signal),
+        options,
+        maxColumns
+      });
+      if (r.kind !== 'spectral' || r.op !== 'spectrogram') {
+        throw new Error('internal: the worker answered a spectrogram with another result');
+      }
+      return r.spectrogram;
+    }
+  };
+}
