@@ -39,7 +39,8 @@ export function adaptiveDraft(d: WorkbenchDefaults): AdaptiveSetup {
     decisionDelay: 0,
     trainingLength: 500,
     decisionDirected: true,
-    constellation: 'bpsk',
+    // BPSK decisions on complex data would drag a QPSK equalizer off its symbols
+    constellation: 'auto',
     algorithm: 'qr-rls',
     taps: d.taps,
     lambda: d.lambda,

@@ -106,6 +106,7 @@ function adaptiveFields(prefix: string): FieldSpec[] {
       kind: 'choice',
       label: 'constellation',
       options: [
+        ['auto', 'from the data: BPSK if real, QPSK if complex'],
         ['bpsk', 'BPSK (±1)'],
         ['pam4', 'PAM-4 (±1, ±3)'],
         ['qpsk', 'QPSK (unit energy)'],

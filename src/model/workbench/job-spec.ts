@@ -104,7 +104,7 @@ function buildSpec(p: Params, inputs: RunInputs, arr: ArrayOf): JobSpec {
               delay: p.decisionDelay,
               trainingLength: p.trainingLength,
               decisionDirected: p.decisionDirected,
-              constellation: p.constellation,
+              constellation: p.constellation === 'auto' ? undefined : p.constellation,
               // its own buffer: both are transferred to the worker
               symbols: arr('d#symbols', p.d)
             };

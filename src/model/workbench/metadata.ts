@@ -256,7 +256,8 @@ class Reader {
       decisionDelay: this.number(f('decisionDelay'), o.decisionDelay),
       trainingLength: this.number(f('trainingLength'), o.trainingLength),
       decisionDirected: this.boolean(f('decisionDirected'), o.decisionDirected),
-      constellation: this.oneOf<Constellation>(f('constellation'), o.constellation, [
+      constellation: this.oneOf<Constellation | 'auto'>(f('constellation'), o.constellation, [
+        'auto',
         'bpsk',
         'qpsk',
         'pam4',

@@ -57,7 +57,8 @@ export interface AdaptiveSetup {
   trainingLength: number;
   /** equalization: continue with decisions after the training symbols. */
   decisionDirected: boolean;
-  constellation: Constellation;
+  /** 'auto': BPSK for real data, QPSK for complex (the core's default). */
+  constellation: Constellation | 'auto';
   algorithm: Algorithm;
   /** Number of taps M. */
   taps: number;

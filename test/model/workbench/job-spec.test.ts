@@ -121,4 +121,24 @@ describe('job specs', () => {
       )
     ).toThrow(/sample rate/);
   });
+
+  it('leaves the constellation to the data when the set-up says auto (QPSK for complex)', () => {
+    const inputs = {
+      arrays: { x: kernel([1, 0, 0, 1], [2], true), d: kernel([1, 0, 0, 1], [2], true) },
+      fs: null
+    };
+    const auto = jobSpec(cancellation({ use: 'equalization', constellation: 'auto' }), inputs);
+    const named = jobSpec(cancellation({ use: 'equalization', constellation: 'qam16' }), inputs);
+    if (
+      auto.kind !== 'adaptive-filter' ||
+      auto.configuration.kind !== 'equalization' ||
+      named.kind !== 'adaptive-filter' ||
+      named.configuration.kind !== 'equalization'
+    ) {
+      throw new Error('expected equalization jobs');
+    }
+    // undefined: the core decides by the data (bpsk real, qpsk complex)
+    expect(auto.configuration.constellation).toBeUndefined();
+    expect(named.configuration.constellation).toBe('qam16');
+  });
 });

@@ -80,6 +80,7 @@ describe('notebook metadata of the workbench', () => {
           taps: fc.integer({ min: 1, max: 4096 }),
           lambda: fc.double({ min: 1e-6, max: 1, noNaN: true }),
           delta: fc.double({ min: 1e-9, max: 1e9, noNaN: true }),
+          constellation: fc.constantFrom('auto', 'bpsk', 'qpsk', 'pam4', 'qam16' as const),
           algorithm: fc.constantFrom(
             'qr-rls',
             'inverse-qr-rls',
@@ -99,7 +100,8 @@ describe('notebook metadata of the workbench', () => {
               taps: r.taps,
               lambda: r.lambda,
               delta: r.delta,
-              algorithm: r.algorithm
+              algorithm: r.algorithm,
+              constellation: r.constellation
             })
           };
           const back = loadWorkbench(trans, JSON.parse(JSON.stringify(serializeWorkbench([s]))));
