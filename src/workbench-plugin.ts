@@ -82,7 +82,8 @@ const plugin: JupyterFrontEndPlugin<void> = {
       trans,
       runner: new PoolRunner(getPool, trans),
       target: notebookTarget,
-      bridgeOptions: () => bridgeOptions
+      bridgeOptions: () => bridgeOptions,
+      shelf: perpend?.loaded ?? null
     });
     const tracker = new WidgetTracker<MainAreaWidget<WorkbenchPanel>>({
       namespace: 'perpend-workbench'
@@ -96,7 +97,7 @@ const plugin: JupyterFrontEndPlugin<void> = {
         const content = new WorkbenchPanel({
           trans,
           model: entry.model,
-          catalog: entry.kernel,
+          catalog: entry.sources,
           defaults: () => defaults,
           compute: plotCompute,
           host: {

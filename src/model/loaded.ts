@@ -22,7 +22,7 @@ import { planOutputRead, type IOutputSnapshot } from './output-source';
 /** One array held by the panel: read from the kernel, parsed from an output, or a result. */
 export interface ILoadedArray {
   readonly id: string;
-  /** What the user sees: `primary`, `Out[3]`, `primary − hum`. */
+  /** What the user sees: `primary`, `Out[3]`, `primary − hum`; unique on the shelf. */
   readonly label: string;
   readonly origin: 'kernel' | 'output-text' | 'result';
   /** Where it came from in the kernel (origin 'kernel'). */
@@ -305,12 +305,24 @@ export class LoadedArraysModel {
   private _add(entry: Omit<ILoadedArray, 'id' | 'summary'>): ILoadedArray {
     const item: ILoadedArray = {
       ...entry,
+      // Labels are unique on the shelf: a set-up of the workbench names a shelf array by it.
+      label: this._freeLabel(entry.label),
       id: `a${++this._counter}`,
       summary: summarize(entry.array.data, entry.array.complex)
     };
     this._items = [...this._items, item];
     this._setStatus('idle', this._trans.__('Loaded %1.', item.label), true);
     return item;
+  }
+
+  /** `label`, or `label (2)`, `label (3)`, … when the shelf already holds that label. */
+  private _freeLabel(label: string): string {
+    const taken = new Set(this._items.map(i => i.label));
+    let free = label;
+    for (let n = 2; taken.has(free); n++) {
+      free = `${label} (${n})`;
+    }
+    return free;
   }
 
   /**

@@ -7,7 +7,7 @@ import type { SourceRef } from './setup';
 
 export interface SourceOption {
   ref: SourceRef;
-  /** `primary`, `Out[3]`. */
+  /** `primary`, `Out[3]`, `primary − hum` (a shelf array). */
   label: string;
   shape: ReadonlyArray<number>;
   /** numpy's dtype name in the kernel. */
@@ -35,5 +35,12 @@ export interface ISourceCatalog {
 
 /** A stable key of a source reference (for select values and maps). */
 export function refKey(ref: SourceRef): string {
-  return ref.kind === 'variable' ? `v:${ref.name}` : `c:${ref.cellId}`;
+  switch (ref.kind) {
+    case 'variable':
+      return `v:${ref.name}`;
+    case 'cell':
+      return `c:${ref.cellId}`;
+    case 'shelf':
+      return `s:${ref.label}`;
+  }
 }

@@ -69,6 +69,10 @@ export class KernelSources implements IWorkbenchReader, ISourceCatalog {
     if (ref.kind === 'variable') {
       return bridge.readArray({ kind: 'variable', name: ref.name });
     }
+    if (ref.kind === 'shelf') {
+      // The panel's arrays are not the kernel's (CombinedSources sends them to the shelf).
+      throw new Error(this._notListed(ref.label));
+    }
     const listed = this._byKey.get(refKey(ref));
     if (!listed) {
       throw new Error(this._notListed(ref.cellId));

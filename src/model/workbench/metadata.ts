@@ -10,6 +10,7 @@ import type { Algorithm, Constellation, Precision } from '../../core';
 import { normalizeIdentifier } from '../../bridge/names';
 import { ALGORITHMS, checkParams, MAX_LIST, type Trans } from './rules';
 import {
+  MAX_SHELF_LABEL,
   SETUP_SCHEMA_VERSION,
   type AdaptiveSetup,
   type AdaptiveUse,
@@ -148,11 +149,21 @@ class Reader {
   }
 
   ref(field: string, v: unknown): SourceRef {
-    const o = this.record(field, v, ['kind', 'name', 'cellId']);
-    const kind = this.oneOf(`${field}.kind`, o.kind, ['variable', 'cell'] as const);
+    const o = this.record(field, v, ['kind', 'name', 'cellId', 'label']);
+    const kind = this.oneOf(`${field}.kind`, o.kind, ['variable', 'cell', 'shelf'] as const);
     if (kind === 'variable') {
       this.record(field, v, ['kind', 'name']);
       return { kind, name: this.name(`${field}.name`, o.name) };
+    }
+    if (kind === 'shelf') {
+      // A label on the panel's shelf: plain text, looked up among the shelf's labels and never
+      // evaluated; an empty label names nothing.
+      this.record(field, v, ['kind', 'label']);
+      const label = this.text(`${field}.label`, o.label, MAX_SHELF_LABEL);
+      if (label.trim() === '') {
+        this.fail(`${field}.label`, this._trans.__('the label of an array on the panel'), label);
+      }
+      return { kind, label };
     }
     this.record(field, v, ['kind', 'cellId']);
     if (typeof o.cellId !== 'string' || !ID.test(o.cellId)) {

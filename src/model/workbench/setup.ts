@@ -12,8 +12,19 @@ export const SETUP_SCHEMA_VERSION = 1;
 /** The notebook metadata key the set-ups live under. */
 export const METADATA_KEY = 'perpend';
 
-/** Where an array comes from: a kernel variable (dotted path allowed) or a cell's result. */
-export type SourceRef = { kind: 'variable'; name: string } | { kind: 'cell'; cellId: string };
+/**
+ * Where an array comes from: a kernel variable (dotted path allowed), a cell's result, or an
+ * array on the Perpend panel's shelf (a result computed there, say `primary − hum`), named by
+ * its label on the shelf. The shelf lives in the page's memory: after a reload the label finds
+ * nothing and the set-up says so; the stored form holds the label only, never the data.
+ */
+export type SourceRef =
+  | { kind: 'variable'; name: string }
+  | { kind: 'cell'; cellId: string }
+  | { kind: 'shelf'; label: string };
+
+/** Longest shelf label a set-up stores (the shelf's labels are shorter in practice). */
+export const MAX_SHELF_LABEL = 120;
 
 /**
  * How a 2-D source maps onto the convention K×N (samples along the last axis): which axis

@@ -17,9 +17,31 @@ export interface SourceFacts {
 /** Finds a source's facts, or null when the kernel does not list it (deleted, restarted). */
 export type SourceLookup = (ref: SourceRef) => SourceFacts | null;
 
-/** The label of a source in messages: the variable's name, or "the result of cell <id>". */
+/**
+ * The label of a source in messages: the variable's name, "the result of cell <id>", or
+ * "“<label>” on the Perpend panel".
+ */
 export function refLabel(trans: Trans, ref: SourceRef): string {
-  return ref.kind === 'variable' ? ref.name : trans.__('the result of cell %1', ref.cellId);
+  switch (ref.kind) {
+    case 'variable':
+      return ref.name;
+    case 'cell':
+      return trans.__('the result of cell %1', ref.cellId);
+    case 'shelf':
+      return trans.__('“%1” on the Perpend panel', ref.label);
+  }
+}
+
+/** A source's short name for lists and fields: `primary`, `cell ab12`, `panel: primary − hum`. */
+export function refShortName(trans: Trans, ref: SourceRef): string {
+  switch (ref.kind) {
+    case 'variable':
+      return ref.name;
+    case 'cell':
+      return trans.__('cell %1', ref.cellId);
+    case 'shelf':
+      return trans.__('panel: %1', ref.label);
+  }
 }
 
 /** Samples per signal and signals (trials or channels) of a source under its layout. */
@@ -86,10 +108,15 @@ export function checkSources(
     if (!f) {
       add(
         at,
-        trans.__(
-          '%1 is not in the kernel now (deleted, renamed, or the kernel restarted?). Run the cell that makes it, or pick another source.',
-          name
-        )
+        pick.ref.kind === 'shelf'
+          ? trans.__(
+              '%1 is gone: the panel keeps its arrays in the page’s memory only, so a reload (or removing it there) loses it. Make it again on the panel, or pick another source.',
+              name
+            )
+          : trans.__(
+              '%1 is not in the kernel now (deleted, renamed, or the kernel restarted?). Run the cell that makes it, or pick another source.',
+              name
+            )
       );
       continue;
     }

@@ -25,6 +25,7 @@ import {
   type SetupParams,
   type SourceRef
 } from './setup';
+import { refKey } from './catalog';
 import { checkSources, refLabel } from './sources-check';
 import { truthOutcome } from './truth';
 
@@ -477,10 +478,6 @@ export namespace WorkbenchModel {
 
 function clone<T>(v: T): T {
   return JSON.parse(JSON.stringify(v));
-}
-
-function refKey(r: SourceRef): string {
-  return r.kind === 'variable' ? `v:${r.name}` : `c:${r.cellId}`;
 }
 
 /** The set-up field a source was read under (for the second check on the arrays read). */

@@ -10,6 +10,7 @@ import { formatShape, formatValue } from '../format';
 import { formatDuration, statusText } from './run-text';
 import { fieldsOf, getPath, type FieldSpec } from '../../model/workbench/fields';
 import type { RateRef, SourcePick } from '../../model/workbench/setup';
+import { refShortName } from '../../model/workbench/sources-check';
 
 export class RunDetail extends RenderWidget {
   constructor(options: RunDetail.IOptions) {
@@ -224,7 +225,7 @@ function paramText(trans: TranslationBundle, f: FieldSpec, v: unknown): string {
         // An optional source left empty (the true response).
         return trans.__('none');
       }
-      const name = p.ref.kind === 'variable' ? p.ref.name : trans.__('cell %1', p.ref.cellId);
+      const name = refShortName(trans, p.ref);
       const layout = p.layout
         ? trans.__(
             ' (samples along axis %1, the other axis holds %2)',

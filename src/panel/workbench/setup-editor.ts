@@ -18,6 +18,7 @@ import {
 import type { FieldIssue } from '../../model/workbench/rules';
 import type { RateRef, SetupParams, SourcePick } from '../../model/workbench/setup';
 import { refKey, type ISourceCatalog, type SourceOption } from '../../model/workbench/catalog';
+import { refShortName } from '../../model/workbench/sources-check';
 import { formatShape } from '../format';
 
 /** The four ways a 2-D source can hold its samples (DESIGN §3: K×N, samples along the last axis). */
@@ -329,15 +330,26 @@ export class SetupEditor extends Widget {
       )
     );
     let listed = false;
+    // The kernel's arrays first, then the panel's (results computed there), each in a group.
+    const kernelGroup = document.createElement('optgroup');
+    kernelGroup.label = trans.__('In the kernel');
+    const shelfGroup = document.createElement('optgroup');
+    shelfGroup.label = trans.__('On the Perpend panel (this page only)');
     for (const o of options) {
       const key = refKey(o.ref);
       listed ||= key === current;
-      select.append(new Option(optionText(trans, o), key, false, key === current));
+      (o.ref.kind === 'shelf' ? shelfGroup : kernelGroup).append(
+        new Option(optionText(trans, o), key, false, key === current)
+      );
+    }
+    for (const g of [kernelGroup, shelfGroup]) {
+      if (g.childElementCount > 0) {
+        select.append(g);
+      }
     }
     if (current && !listed) {
       // The set-up names a source the kernel does not list now: keep it, and say so.
-      const label =
-        pick.ref.kind === 'variable' ? pick.ref.name : trans.__('cell %1', pick.ref.cellId);
+      const label = refShortName(trans, pick.ref);
       select.append(new Option(trans.__('%1 (not listed now)', label), current, false, true));
     }
     select.addEventListener('change', () => {

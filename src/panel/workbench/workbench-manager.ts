@@ -9,6 +9,7 @@ import type { TranslationBundle } from '@jupyterlab/translation';
 import type { Cell } from '@jupyterlab/cells';
 import type { KernelBridge } from '../../bridge';
 import { KernelSources } from '../../model/workbench/kernel-sources';
+import { CombinedSources, ShelfSources, type IShelf } from '../../model/workbench/shelf-sources';
 import type { IRunner } from '../../model/workbench/runs';
 import { METADATA_KEY, setupSources, type SourceRef } from '../../model/workbench/setup';
 import { WorkbenchModel } from '../../model/workbench/workbench';
@@ -19,7 +20,10 @@ export interface IWorkbenchEntry {
   readonly panel: NotebookPanel;
   readonly model: WorkbenchModel;
   readonly kernel: KernelSources;
+  /** The notebook's listing and the panel's shelf together: what the pickers offer. */
+  readonly sources: CombinedSources;
   readonly listing: SourcesModel;
+  readonly shelf: ShelfSources | null;
 }
 
 export class WorkbenchManager {
@@ -28,6 +32,7 @@ export class WorkbenchManager {
     this._runner = options.runner;
     this._target = options.target;
     this._bridgeOptions = options.bridgeOptions;
+    this._shelf = options.shelf ?? null;
   }
 
   /** The notebook's workbench, made on first use. */
@@ -47,10 +52,17 @@ export class WorkbenchManager {
         ),
       noKernel: trans.__('The notebook has no running kernel.')
     });
+    const gone = (label: string): string =>
+      trans.__(
+        '“%1” is no longer on the Perpend panel (its arrays live in this page only).',
+        label
+      );
+    const shelf = this._shelf ? new ShelfSources({ shelf: this._shelf, gone }) : null;
+    const sources = new CombinedSources(kernel, shelf, gone);
     const model = new WorkbenchModel({
       trans,
       runner: this._runner,
-      reader: kernel,
+      reader: sources,
       host: {
         read: () => panel.model?.getMetadata(METADATA_KEY),
         write: value => panel.model?.setMetadata(METADATA_KEY, value as never)
@@ -68,7 +80,7 @@ export class WorkbenchManager {
         model.kernelRestarted();
       }
     });
-    entry = { panel, model, kernel, listing };
+    entry = { panel, model, kernel, sources, listing, shelf };
     this._entries.set(panel, entry);
     panel.disposed.connect(() => this._drop(panel));
     return entry;
@@ -112,6 +124,8 @@ export class WorkbenchManager {
     if (e) {
       this._entries.delete(panel);
       e.model.dispose();
+      e.sources.dispose();
+      e.shelf?.dispose();
       e.kernel.dispose();
       e.listing.dispose();
     }
@@ -121,6 +135,7 @@ export class WorkbenchManager {
   private readonly _runner: IRunner;
   private readonly _target: WorkbenchManager.IOptions['target'];
   private readonly _bridgeOptions: () => Partial<KernelBridge.IOptions>;
+  private readonly _shelf: IShelf | null;
   private readonly _entries = new Map<NotebookPanel, IWorkbenchEntry>();
 }
 
@@ -131,6 +146,8 @@ export namespace WorkbenchManager {
     /** Adapts a notebook to the listing's target (`kernelChanged` after each change of kernel). */
     target: (panel: NotebookPanel, kernelChanged: () => void) => INotebookTarget;
     bridgeOptions: () => Partial<KernelBridge.IOptions>;
+    /** The Perpend panel's arrays (its shelf), offered as sources beside the kernel's. */
+    shelf?: IShelf | null;
   }
 }
 

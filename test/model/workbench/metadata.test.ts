@@ -202,6 +202,54 @@ describe('notebook metadata of the workbench', () => {
     expect('truth' in r.setups[0].params).toBe(false);
   });
 
+  it('round-trips a set-up whose source is an array on the panel (its label only)', () => {
+    const s = setup('dehum-nc', {
+      ...cancellation(),
+      d: { ref: { kind: 'shelf', label: 'primary − hum' }, shape: [32000], layout: null }
+    });
+    const stored = JSON.parse(JSON.stringify(serializeWorkbench([s])));
+    // What the notebook keeps: the label, never the array's values.
+    expect(stored.setups[0].params.d.ref).toEqual({ kind: 'shelf', label: 'primary − hum' });
+    const back = loadWorkbench(trans, stored);
+    expect(back.problems).toEqual([]);
+    expect(back.setups).toEqual([s]);
+  });
+
+  it('refuses hostile panel references by field: data, code keys, control characters, size', () => {
+    const cases: Array<[unknown, string]> = [
+      [{ kind: 'shelf', label: [1, 2, 3] }, 'params.x.ref.label'],
+      [{ kind: 'shelf', label: { data: [0.1, 0.2] } }, 'params.x.ref.label'],
+      [{ kind: 'shelf', label: 'x'.repeat(121) }, 'params.x.ref.label'],
+      [{ kind: 'shelf', label: 'primary\u001b[31m' }, 'params.x.ref.label'],
+      [{ kind: 'shelf', label: '   ' }, 'params.x.ref.label'],
+      [{ kind: 'shelf' }, 'params.x.ref.label'],
+      [{ kind: 'shelf', label: 'a', code: "__import__('os')" }, 'params.x.ref.code'],
+      [{ kind: 'shelf', label: 'a', name: 'primary' }, 'params.x.ref.name'],
+      [{ kind: 'shelf', label: 'a', data: [1, 2] }, 'params.x.ref.data'],
+      [{ kind: 'panel', label: 'a' }, 'params.x.ref.kind']
+    ];
+    for (const [ref, field] of cases) {
+      const stored = serializeWorkbench([setup('a', cancellation())]) as {
+        version: number;
+        setups: any[];
+      };
+      stored.setups[0].params.x.ref = ref;
+      const r = loadWorkbench(trans, JSON.parse(JSON.stringify(stored)));
+      expect(r.setups).toEqual([]);
+      expect(r.problems).toHaveLength(1);
+      expect(r.problems[0]).toContain(`"${field}"`);
+    }
+    // Code in a label is only a label: it loads as text and is matched against the panel's
+    // labels, never run (the check below finds nothing and says the array is gone).
+    const stored = serializeWorkbench([setup('a', cancellation())]) as { setups: any[] };
+    stored.setups[0].params.x.ref = { kind: 'shelf', label: "__import__('os').system('rm')" };
+    const r = loadWorkbench(trans, JSON.parse(JSON.stringify(stored)));
+    expect(r.problems).toEqual([]);
+    expect(r.setups[0].params).toMatchObject({
+      x: { ref: { kind: 'shelf', label: "__import__('os').system('rm')" } }
+    });
+  });
+
   it('refuses a key named __proto__ in stored JSON as an unknown field', () => {
     const text = JSON.stringify(serializeWorkbench([setup('a', cancellation())])).replace(
       '"tool":"adaptive"',

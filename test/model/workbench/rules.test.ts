@@ -9,7 +9,13 @@ import { cancellation, trans, variable } from './fixtures';
 
 function lookup(table: Record<string, SourceFacts>) {
   return (ref: SourceRef): SourceFacts | null =>
-    table[ref.kind === 'variable' ? ref.name : `cell:${ref.cellId}`] ?? null;
+    table[
+      ref.kind === 'variable'
+        ? ref.name
+        : ref.kind === 'cell'
+          ? `cell:${ref.cellId}`
+          : `shelf:${ref.label}`
+    ] ?? null;
 }
 
 const fields = (issues: { field: string }[]) => issues.map(i => i.field);

@@ -55,7 +55,7 @@ class Reader implements IWorkbenchReader {
   }
   async readArray(ref: SourceRef): Promise<ArrayData> {
     await Promise.resolve();
-    const name = ref.kind === 'variable' ? ref.name : ref.cellId;
+    const name = ref.kind === 'variable' ? ref.name : ref.kind === 'cell' ? ref.cellId : ref.label;
     this.reads.push(name);
     if (this.fail) {
       throw this.fail;
