@@ -24,8 +24,14 @@ import { notebookTarget } from './panel/notebook-target';
 import { perpendIcon } from './panel/icons';
 import { WorkbenchManager } from './panel/workbench/workbench-manager';
 import { WorkbenchPanel } from './panel/workbench/workbench-panel';
-import { writePlotData, writeRunArray, writeWholeRun } from './panel/workbench/write-back';
+import {
+  chooseArray,
+  writePlotData,
+  writeRunArray,
+  writeWholeRun
+} from './panel/workbench/write-back';
 import { createPlotTab, plotTargetOf, type PlotTarget } from './panel/plots/plot-tab';
+import { addWorkbenchCommands, paletteItems, WORKBENCH_COMMANDS } from './workbench-commands';
 import { createBrowserWorkerPool } from './worker/client';
 import type { WorkerPool } from './worker/pool';
 import { workerSpectralCompute } from './worker/spectral-client';
@@ -100,6 +106,7 @@ const plugin: JupyterFrontEndPlugin<void> = {
           catalog: entry.sources,
           defaults: () => defaults,
           compute: plotCompute,
+          commands: app.commands,
           host: {
             confirmRemove: async title =>
               (
@@ -111,22 +118,23 @@ const plugin: JupyterFrontEndPlugin<void> = {
                   buttons: [Dialog.cancelButton(), Dialog.warnButton({ label: trans.__('Remove') })]
                 })
               ).button.accept,
-            writeArray: (runId, key) => {
+            writeArray: async (runId, key) => {
               const run = entry.model.runs.find(r => r.id === runId);
-              if (run) {
-                void writeRunArray(
+              const chosen = run ? (key ?? (await chooseArray(trans, run))) : null;
+              if (run && chosen !== null) {
+                await writeRunArray(
                   trans,
                   entry.listing.bridge,
                   run,
-                  key,
+                  chosen,
                   () => void entry.listing.refresh()
                 );
               }
             },
-            writeRun: runId => {
+            writeRun: async runId => {
               const run = entry.model.runs.find(r => r.id === runId);
               if (run) {
-                void writeWholeRun(
+                await writeWholeRun(
                   trans,
                   entry.listing.bridge,
                   run,
@@ -255,6 +263,13 @@ const plugin: JupyterFrontEndPlugin<void> = {
         openPlotTab(wb, target);
       }
     });
+    // Every action of the workbench tab (src/workbench-commands.ts): on the workbench its
+    // arguments name, else on the current one.
+    const workbenchOf = (args: { workbench?: unknown }): WorkbenchPanel | null =>
+      typeof args.workbench === 'string'
+        ? (tracker.find(w => w.content.id === args.workbench)?.content ?? null)
+        : (currentWorkbench()?.content ?? null);
+    addWorkbenchCommands(app.commands, trans, workbenchOf);
     if (palette) {
       const category = trans.__('Perpend');
       for (const command of [
@@ -264,6 +279,9 @@ const plugin: JupyterFrontEndPlugin<void> = {
         CommandIDs.openPlot
       ]) {
         palette.addItem({ command, category });
+      }
+      for (const item of paletteItems()) {
+        palette.addItem({ ...item, category });
       }
     }
     if (restorer) {
@@ -276,10 +294,14 @@ const plugin: JupyterFrontEndPlugin<void> = {
 
     // Buttons bound to these commands (the side panel's toolbar) follow the active notebook.
     notebooks.currentChanged.connect(() => app.commands.notifyCommandChanged(CommandIDs.open));
-    tracker.currentChanged.connect(() => {
-      app.commands.notifyCommandChanged(CommandIDs.runAll);
-      app.commands.notifyCommandChanged(CommandIDs.cancelAll);
-    });
+    const notifyWorkbench = (): void => {
+      for (const id of [CommandIDs.runAll, CommandIDs.cancelAll, ...WORKBENCH_COMMANDS]) {
+        app.commands.notifyCommandChanged(id);
+      }
+    };
+    tracker.currentChanged.connect(notifyWorkbench);
+    // The current set-up, run or comparison changed in a workbench: menus and palette follow.
+    tracker.widgetAdded.connect((_, w) => w.content.selection.changed.connect(notifyWorkbench));
     NotebookActions.executed.connect((_, { notebook, cell }) => {
       const panel = notebooks.find(p => p.content === notebook);
       if (panel) {

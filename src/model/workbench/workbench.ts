@@ -135,6 +135,51 @@ export class WorkbenchModel {
     return [];
   }
 
+  /**
+   * Adds a copy of a set-up under a new id and `title` (following off, so the copy does not
+   * re-run beside its original); returns the new id, or null when there is no such set-up.
+   */
+  duplicate(id: string, title: string): string | null {
+    const s = this.setup(id);
+    if (!s) {
+      return null;
+    }
+    const copy: Setup = {
+      id: this._newSetupId(s.params.tool),
+      title: title.slice(0, 120),
+      follow: false,
+      params: clone(s.params)
+    };
+    const at = this._setups.indexOf(s) + 1;
+    this._setups = [...this._setups.slice(0, at), copy, ...this._setups.slice(at)];
+    this._saveAndEmit();
+    return copy.id;
+  }
+
+  /** True while a run of the set-up is reading or computing. */
+  isBusy(setupId: string): boolean {
+    return this._runs.some(
+      r => r.setupId === setupId && (r.status === 'reading' || r.status === 'running')
+    );
+  }
+
+  /** Cancels every run of a set-up still in flight. */
+  cancelSetup(setupId: string): void {
+    this._cancelRunsOf(setupId);
+  }
+
+  /** Drops a run (cancelled first when in flight); the set-up and its other runs stay. */
+  removeRun(runId: string): void {
+    const r = this._run(runId);
+    if (!r) {
+      return;
+    }
+    this.cancel(runId);
+    const gone = this._run(runId) ?? r;
+    this._runs = this._runs.filter(x => x.id !== runId);
+    this._runChanged.emit(gone);
+  }
+
   /** Switches following its sources on or off. */
   setFollow(id: string, follow: boolean): void {
     const s = this.setup(id);

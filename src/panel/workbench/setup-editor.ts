@@ -144,7 +144,7 @@ export class SetupEditor extends Widget {
     form.noValidate = true;
     form.addEventListener('submit', ev => {
       ev.preventDefault();
-      this._submit(true);
+      this.submit(true);
     });
     const head = document.createElement('div');
     head.className = 'pp-Editor-head';
@@ -201,8 +201,8 @@ export class SetupEditor extends Widget {
     const foot = document.createElement('div');
     foot.className = 'pp-Editor-foot';
     foot.append(
-      this._button(trans.__('Save and run'), 'pp-mod-accept', true, () => this._submit(true)),
-      this._button(trans.__('Save'), '', false, () => this._submit(false)),
+      this._button(trans.__('Save and run'), 'pp-mod-accept', true, () => this.submit(true)),
+      this._button(trans.__('Save'), '', false, () => this.submit(false)),
       this._button(trans.__('Close'), '', false, () => this._close())
     );
     form.append(head, ...(listing ? [listing] : []), banner, main);
@@ -460,7 +460,8 @@ export class SetupEditor extends Widget {
     }
   }
 
-  private _submit(run: boolean): void {
+  /** Checks the form, then saves it (and runs it); marks the fields when it may not. */
+  submit(run: boolean): void {
     if (!this._draft) {
       return;
     }

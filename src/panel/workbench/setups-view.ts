@@ -1,14 +1,17 @@
 /**
  * The set-ups of a notebook, each with its runs beneath it: status in words and per cent, the
- * key numbers with their units, and the actions (run, cancel, edit, follow, remove). Renders
- * the model; actions go to the callbacks.
+ * key numbers with their units, and the actions (run, cancel, edit, duplicate, follow,
+ * remove). Renders the model and marks the current set-up and the run shown; every button
+ * executes a workbench command (src/workbench-commands.ts) for its own card.
  */
 import type { TranslationBundle } from '@jupyterlab/translation';
+import type { WorkbenchSelection } from '../../model/workbench/selection';
 import type { WorkbenchModel } from '../../model/workbench/workbench';
 import type { Run } from '../../model/workbench/runs';
 import type { Setup } from '../../model/workbench/setup';
 import { TOOL_LABELS } from '../../model/workbench/fields';
 import { RenderWidget } from '../render-widget';
+import { WorkbenchCommandIDs as IDs } from './command-ids';
 import { formatFigure, statusText } from './run-text';
 
 export class SetupsView extends RenderWidget {
@@ -17,16 +20,44 @@ export class SetupsView extends RenderWidget {
     this.addClass('pp-SetupsView');
     this._trans = options.trans;
     this._model = options.model;
-    this._actions = options.actions;
+    this._selection = options.selection;
+    this._execute = options.execute;
     this._model.setupsChanged.connect(this.update, this);
     this._model.runChanged.connect(this._onRun, this);
+    this._selection.changed.connect(this._mark, this);
     this.update();
   }
 
   dispose(): void {
     this._model.setupsChanged.disconnect(this.update, this);
     this._model.runChanged.disconnect(this._onRun, this);
+    this._selection.changed.disconnect(this._mark, this);
     super.dispose();
+  }
+
+  /**
+   * Marks the current set-up, the run shown and the compared runs in place: a repaint on a
+   * click would replace the button being clicked.
+   */
+  private _mark(): void {
+    const current = this._selection.setupId;
+    for (const card of this.node.querySelectorAll<HTMLElement>('.pp-SetupCard')) {
+      const on = card.dataset.setup === current;
+      card.classList.toggle('pp-mod-current', on);
+      if (on) {
+        card.setAttribute('aria-current', 'true');
+      } else {
+        card.removeAttribute('aria-current');
+      }
+    }
+    for (const row of this.node.querySelectorAll<HTMLElement>('.pp-RunRow')) {
+      const id = row.dataset.run ?? '';
+      row.classList.toggle('pp-mod-selected', id === this._selection.runId);
+      const tick = row.querySelector<HTMLInputElement>('.pp-RunRow-compare');
+      if (tick) {
+        tick.checked = this._selection.isCompared(id);
+      }
+    }
   }
 
   /**
@@ -45,23 +76,6 @@ export class SetupsView extends RenderWidget {
       }
     }
     this.update();
-  }
-
-  /** The runs ticked for comparison. */
-  get compared(): string[] {
-    return [...this._compared];
-  }
-  set compared(ids: string[]) {
-    this._compared = new Set(ids);
-    this.update();
-  }
-
-  /** The run shown in detail (its row is marked). */
-  set selectedRun(id: string | null) {
-    if (this._selected !== id) {
-      this._selected = id;
-      this.update();
-    }
   }
 
   protected render(): void {
@@ -83,6 +97,7 @@ export class SetupsView extends RenderWidget {
     const focused = document.activeElement as HTMLElement | null;
     const key = focused && this.node.contains(focused) ? focused.dataset.key : undefined;
     this.node.replaceChildren(list);
+    this._mark();
     if (key) {
       this.node.querySelector<HTMLElement>(`[data-key="${key}"]`)?.focus();
     }
@@ -95,6 +110,11 @@ export class SetupsView extends RenderWidget {
     const card = document.createElement('section');
     card.className = 'pp-SetupCard';
     card.dataset.setup = s.id;
+    // A click (any button, so before a context menu opens) or the keyboard inside makes the
+    // card current; focusable so that the workbench's shortcuts reach it.
+    card.tabIndex = -1;
+    card.addEventListener('pointerdown', () => this._selection.selectSetup(s.id));
+    card.addEventListener('focusin', () => this._selection.selectSetup(s.id));
     card.setAttribute('aria-label', trans.__('set-up %1', s.title || s.id));
     const head = document.createElement('div');
     head.className = 'pp-SetupCard-head';
@@ -107,16 +127,13 @@ export class SetupsView extends RenderWidget {
     head.append(title, tool);
     const bar = document.createElement('div');
     bar.className = 'pp-SetupCard-actions';
+    const on = { setup: s.id };
     bar.append(
-      this._button(trans.__('Run'), `run:${s.id}`, () => this._actions.run(s.id)),
-      this._button(
-        trans.__('Cancel'),
-        `cancel:${s.id}`,
-        () => this._actions.cancelSetup(s.id),
-        !busy
-      ),
-      this._button(trans.__('Edit'), `edit:${s.id}`, () => this._actions.edit(s.id)),
-      this._button(trans.__('Remove'), `remove:${s.id}`, () => this._actions.remove(s.id))
+      this._button(trans.__('Run'), `run:${s.id}`, IDs.runSetup, on),
+      this._button(trans.__('Cancel'), `cancel:${s.id}`, IDs.cancelSetup, on, !busy),
+      this._button(trans.__('Edit'), `edit:${s.id}`, IDs.editSetup, on),
+      this._button(trans.__('Duplicate'), `duplicate:${s.id}`, IDs.duplicateSetup, on),
+      this._button(trans.__('Remove'), `remove:${s.id}`, IDs.removeSetup, on)
     );
     const follow = document.createElement('label');
     follow.className = 'pp-SetupCard-follow';
@@ -124,7 +141,9 @@ export class SetupsView extends RenderWidget {
     box.type = 'checkbox';
     box.checked = s.follow;
     box.dataset.key = `follow:${s.id}`;
-    box.addEventListener('change', () => this._model.setFollow(s.id, box.checked));
+    box.addEventListener('change', () =>
+      this._execute(IDs.toggleFollow, { setup: s.id, on: box.checked })
+    );
     follow.append(box, document.createTextNode(trans.__('re-run when its sources change')));
     follow.title = trans.__(
       'When a cell that makes a source is run again, or a source variable changes, this set-up re-reads it and runs again. It never runs a cell.'
@@ -152,9 +171,6 @@ export class SetupsView extends RenderWidget {
     row.dataset.key = `row:${r.id}`;
     row.tabIndex = 0;
     row.setAttribute('role', 'listitem');
-    if (r.id === this._selected) {
-      row.classList.add('pp-mod-selected');
-    }
     const status = document.createElement('span');
     status.className = 'pp-RunRow-status';
     status.textContent = statusText(trans, r);
@@ -170,13 +186,15 @@ export class SetupsView extends RenderWidget {
     const tick = document.createElement('input');
     tick.type = 'checkbox';
     tick.className = 'pp-RunRow-compare';
-    tick.checked = this._compared.has(r.id);
+    tick.checked = this._selection.isCompared(r.id);
     tick.dataset.key = `compare:${r.id}`;
     tick.title = trans.__('Compare: overlay this run’s learning curve with the other ticked runs');
     tick.setAttribute('aria-label', trans.__('compare %1', r.label));
     tick.addEventListener('click', ev => ev.stopPropagation());
     tick.addEventListener('keydown', ev => ev.stopPropagation());
-    tick.addEventListener('change', () => this._actions.compare(r.id, tick.checked));
+    tick.addEventListener('change', () =>
+      this._execute(IDs.toggleCompare, { run: r.id, on: tick.checked })
+    );
     const head = document.createElement('span');
     head.className = 'pp-RunRow-head';
     head.append(tick, status);
@@ -193,7 +211,9 @@ export class SetupsView extends RenderWidget {
       'aria-label',
       `${r.label}: ${status.textContent}${figs.textContent ? `; ${figs.textContent}` : ''}`
     );
-    const open = () => this._actions.show(r.id);
+    const open = () => this._selection.selectRun(r.id);
+    // Before a context menu opens too: its commands act on the run shown.
+    row.addEventListener('pointerdown', open);
     row.addEventListener('click', open);
     row.addEventListener('keydown', ev => {
       if (ev.key === 'Enter' || ev.key === ' ') {
@@ -204,36 +224,37 @@ export class SetupsView extends RenderWidget {
     return row;
   }
 
-  private _button(label: string, key: string, fn: () => void, disabled = false): HTMLButtonElement {
+  private _button(
+    label: string,
+    key: string,
+    command: string,
+    args: Record<string, string>,
+    disabled = false
+  ): HTMLButtonElement {
     const b = document.createElement('button');
     b.type = 'button';
     b.className = 'jp-Button jp-mod-styled jp-mod-reject pp-SetupCard-button';
     b.textContent = label;
     b.dataset.key = key;
     b.disabled = disabled;
-    b.addEventListener('click', fn);
+    b.addEventListener('click', () => this._execute(command, args));
     return b;
   }
 
   private readonly _trans: TranslationBundle;
   private readonly _model: WorkbenchModel;
-  private readonly _actions: SetupsView.IActions;
-  private _selected: string | null = null;
-  private _compared = new Set<string>();
+  private readonly _selection: WorkbenchSelection;
+  private readonly _execute: SetupsView.Execute;
 }
 
 export namespace SetupsView {
-  export interface IActions {
-    run(setupId: string): void;
-    cancelSetup(setupId: string): void;
-    edit(setupId: string): void;
-    remove(setupId: string): void;
-    show(runId: string): void;
-    compare(runId: string, on: boolean): void;
-  }
+  /** Executes a workbench command for this workbench with the given arguments. */
+  export type Execute = (command: string, args: Record<string, string | boolean>) => void;
   export interface IOptions {
     trans: TranslationBundle;
     model: WorkbenchModel;
-    actions: IActions;
+    /** The current set-up, the run shown and the compared runs. */
+    selection: WorkbenchSelection;
+    execute: Execute;
   }
 }

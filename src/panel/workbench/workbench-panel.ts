@@ -4,6 +4,9 @@
  * the views to the model and to the actions the plugin provides (write-back, confirmations);
  * it computes nothing.
  */
+import type { CommandRegistry } from '@lumino/commands';
+import { UUID } from '@lumino/coreutils';
+import type { Message } from '@lumino/messaging';
 import { PanelLayout, SplitPanel, Widget } from '@lumino/widgets';
 import type { TranslationBundle } from '@jupyterlab/translation';
 import { draftFor, type KernelHints, type WorkbenchDefaults } from '../../model/workbench/drafts';
@@ -12,6 +15,8 @@ import type { FieldIssue } from '../../model/workbench/rules';
 import { TOOLS, type SetupParams, type Tool } from '../../model/workbench/setup';
 import type { WorkbenchModel } from '../../model/workbench/workbench';
 import type { ISourceCatalog } from '../../model/workbench/catalog';
+import { WorkbenchSelection } from '../../model/workbench/selection';
+import { WorkbenchCommandIDs } from './command-ids';
 import { ComparePlots, RunPlots } from '../plots';
 import type { PlotCompute } from '../plots/compute';
 import type { PlotPane } from '../plots/plot-pane';
@@ -25,10 +30,21 @@ export class WorkbenchPanel extends Widget {
   constructor(options: WorkbenchPanel.IOptions) {
     super();
     this.addClass('pp-Workbench');
+    // The commands' buttons name this workbench by its id; the keyboard's shortcuts need the
+    // focus inside it.
+    this.id = `pp-workbench-${UUID.uuid4()}`;
+    this.node.tabIndex = -1;
     this._trans = options.trans;
     this._model = options.model;
     this._host = options.host;
+    this._commands = options.commands;
+    this.selection = new WorkbenchSelection(this._model);
     const trans = this._trans;
+    const exec = (command: string, args: Record<string, string | boolean>): void => {
+      void Promise.resolve(this._commands.execute(command, { ...args, workbench: this.id })).catch(
+        reason => console.error(`Perpend: ${command} failed.`, reason)
+      );
+    };
 
     this._header = new Widget();
     this._header.addClass('pp-Workbench-header');
@@ -38,14 +54,8 @@ export class WorkbenchPanel extends Widget {
     this._list = new SetupsView({
       trans,
       model: this._model,
-      actions: {
-        run: id => void this._model.run(id),
-        cancelSetup: id => this._model.runsOf(id).forEach(r => this._model.cancel(r.id)),
-        edit: id => this.editSetup(id),
-        remove: id => void this._remove(id),
-        show: id => this.showRun(id),
-        compare: (id, on) => this._setCompared(id, on)
-      }
+      selection: this.selection,
+      execute: exec
     });
     this._editor = new SetupEditor({
       trans,
@@ -55,7 +65,12 @@ export class WorkbenchPanel extends Widget {
       save: (p, title, id, run) => this._save(p, title, id, run),
       close: () => this._closeEditor()
     });
-    const actions = { writeArray: options.host.writeArray, writeRun: options.host.writeRun };
+    const actions: RunDetail.IActions = {
+      writeArray: (run, key) => exec(WorkbenchCommandIDs.writeArray, { run, key }),
+      writeRun: options.host.writeRun
+        ? run => exec(WorkbenchCommandIDs.writeRun, { run })
+        : undefined
+    };
     this._detail = new RunDetail({ trans, model: this._model, actions });
     // The run's arrays and parameters come after its plots: numbers, then pictures, then data.
     this._arrays = new RunDetail({ trans, model: this._model, actions, part: 'arrays' });
@@ -104,13 +119,63 @@ export class WorkbenchPanel extends Widget {
     this.layout = layout;
 
     this._defaults = options.defaults;
-    this._renderHeader();
+    this._renderHeader(exec);
     this._renderProblems();
     this._model.setupsChanged.connect(this._renderProblems, this);
+    this.selection.changed.connect(this._onSelection, this);
   }
+
+  /** The current set-up, the run shown and the runs compared (what the commands act on). */
+  readonly selection: WorkbenchSelection;
 
   get model(): WorkbenchModel {
     return this._model;
+  }
+
+  dispose(): void {
+    if (this.isDisposed) {
+      return;
+    }
+    this.selection.dispose();
+    super.dispose();
+  }
+
+  /** True while the keyboard is in the set-up editor. */
+  editorHasFocus(): boolean {
+    return this._editor.isVisible && this._editor.node.contains(document.activeElement);
+  }
+
+  /** Saves and runs what the editor holds (its checks first). */
+  saveAndRunEditor(): void {
+    this._editor.submit(true);
+  }
+
+  /** Asks once, then removes a set-up and its runs; true when removed. */
+  async removeSetup(id: string): Promise<boolean> {
+    const s = this._model.setup(id);
+    if (!s || !(await this._host.confirmRemove(s.title || s.id))) {
+      return false;
+    }
+    this._model.remove(id);
+    if (this._editor.setupId === id) {
+      this._closeEditor();
+    }
+    return true;
+  }
+
+  writeRun(runId: string): Promise<void> {
+    return this._host.writeRun?.(runId) ?? Promise.resolve();
+  }
+
+  writeArray(runId: string, key: string | null): Promise<void> {
+    return this._host.writeArray(runId, key);
+  }
+
+  protected onActivateRequest(msg: Message): void {
+    super.onActivateRequest(msg);
+    if (!this.node.contains(document.activeElement)) {
+      this.node.focus();
+    }
   }
 
   /** Opens a new set-up of `tool` in the editor, with the defaults filled in. */
@@ -140,6 +205,7 @@ export class WorkbenchPanel extends Widget {
     ++this._newSetups; // a new set-up's form still being prepared does not replace this one
     const s = this._model.setup(id);
     if (s) {
+      this.selection.selectSetup(id);
       this._editor.edit(s.params, s.title, id);
       this._showEditor();
     }
@@ -147,8 +213,25 @@ export class WorkbenchPanel extends Widget {
 
   /** Shows a run in the detail view and its plots. */
   showRun(runId: string): void {
+    this.selection.selectRun(runId);
+  }
+
+  /** The views follow the selection: the run shown, the runs compared. */
+  private _onSelection(): void {
+    const runId = this.selection.runId;
+    if (runId !== this._detail.runId) {
+      this._showRun(runId);
+    }
+    const ids = [...this.selection.compared];
+    if (ids.join() !== this._compare.runIds.join()) {
+      this._compare.runIds = ids;
+      this._compare.setHidden(ids.length === 0);
+    }
+  }
+
+  private _showRun(runId: string | null): void {
     this._detail.runId = runId;
-    if (this._plots.view === null) {
+    if (runId !== null && this._plots.view === null) {
       // The first view answers the tool's question: how the filter converged, or what the
       // projection did to the spectrum. Later the user's choice of view is kept.
       const tool = this._model.runs.find(r => r.id === runId)?.params.tool;
@@ -156,7 +239,6 @@ export class WorkbenchPanel extends Widget {
     }
     this._plots.runId = runId;
     this._arrays.runId = runId;
-    this._list.selectedRun = runId;
   }
 
   /** Settings of the run's plots and the comparison (from the workbench's settings). */
@@ -176,19 +258,6 @@ export class WorkbenchPanel extends Widget {
     return { runId, view: view !== null && views.includes(view) ? view : views[0] };
   }
 
-  /** Adds a run to the comparison (learning curves overlaid, a table beside) or takes it out. */
-  private _setCompared(runId: string, on: boolean): void {
-    const ids = new Set(this._list.compared);
-    if (on) {
-      ids.add(runId);
-    } else {
-      ids.delete(runId);
-    }
-    this._list.compared = [...ids];
-    this._compare.runIds = [...ids];
-    this._compare.setHidden(ids.size === 0);
-  }
-
   private _save(
     params: SetupParams,
     title: string,
@@ -203,6 +272,7 @@ export class WorkbenchPanel extends Widget {
         return r.issues;
       }
       setupId = r.id;
+      this.selection.selectSetup(setupId);
     } else {
       const issues = this._model.update(id, params, name);
       if (issues.length > 0) {
@@ -211,24 +281,12 @@ export class WorkbenchPanel extends Widget {
     }
     this._closeEditor();
     if (run && setupId) {
-      void this._model.run(setupId);
-      // The run exists as soon as it starts reading: show it.
-      const newest = this._model.runsOf(setupId).slice(-1)[0];
-      if (newest) {
-        this.showRun(newest.id);
-      }
+      void this._commands.execute(WorkbenchCommandIDs.runSetup, {
+        workbench: this.id,
+        setup: setupId
+      });
     }
     return null;
-  }
-
-  private async _remove(id: string): Promise<void> {
-    const s = this._model.setup(id);
-    if (s && (await this._host.confirmRemove(s.title || s.id))) {
-      this._model.remove(id);
-      if (this._editor.setupId === id) {
-        this._closeEditor();
-      }
-    }
   }
 
   private _showEditor(): void {
@@ -246,7 +304,7 @@ export class WorkbenchPanel extends Widget {
     this._arrays.show();
   }
 
-  private _renderHeader(): void {
+  private _renderHeader(exec: (command: string, args: Record<string, string>) => void): void {
     const trans = this._trans;
     const row = document.createElement('div');
     row.className = 'pp-Workbench-tools';
@@ -262,7 +320,8 @@ export class WorkbenchPanel extends Widget {
       b.className = 'jp-Button jp-mod-styled jp-mod-reject pp-Workbench-tool';
       b.dataset.tool = tool;
       b.textContent = trans.__(TOOL_LABELS[tool]);
-      b.addEventListener('click', () => void this.newSetup(tool));
+      b.title = this._commands.caption(WorkbenchCommandIDs.newSetup, { tool });
+      b.addEventListener('click', () => exec(WorkbenchCommandIDs.newSetup, { tool }));
       row.append(b);
     }
     this._header.node.replaceChildren(row);
@@ -299,6 +358,7 @@ export class WorkbenchPanel extends Widget {
   private readonly _trans: TranslationBundle;
   private readonly _model: WorkbenchModel;
   private readonly _host: WorkbenchPanel.IHost;
+  private readonly _commands: CommandRegistry;
   private readonly _header: Widget;
   private readonly _problems: Widget;
   private readonly _list: SetupsView;
@@ -317,8 +377,10 @@ export namespace WorkbenchPanel {
   export interface IHost {
     /** Asks once before a set-up and its runs are removed. */
     confirmRemove(title: string): Promise<boolean>;
-    writeArray(runId: string, key: string): void;
-    writeRun?(runId: string): void;
+    /** Writes one result array (asks which when `key` is null, then for the name). */
+    writeArray(runId: string, key: string | null): Promise<void>;
+    /** Writes a run's arrays and parameters as one dict (when the bridge can). */
+    writeRun?(runId: string): Promise<void>;
     /** Lists the notebook's arrays again (for the pickers). */
     refresh(): void;
     /** What the kernel defines that new set-ups start from (fs, f0). */
@@ -336,5 +398,7 @@ export namespace WorkbenchPanel {
     defaults: () => WorkbenchDefaults;
     /** Where the plots' long estimates run (a worker; default the main thread). */
     compute?: PlotCompute;
+    /** The application's commands: every button executes one (src/workbench-commands.ts). */
+    commands: CommandRegistry;
   }
 }

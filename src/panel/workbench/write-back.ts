@@ -2,7 +2,7 @@
  * Writing a run's arrays into the notebook's kernel: the name asked in a dialog that checks it
  * in place, the one replacement question Perpend asks, and the outcome as a notification.
  */
-import { Dialog, Notification } from '@jupyterlab/apputils';
+import { Dialog, InputDialog, Notification } from '@jupyterlab/apputils';
 import type { TranslationBundle } from '@jupyterlab/translation';
 import type { ArrayData, WriteResult } from '../../bridge';
 import type { ResultArray, Run } from '../../model/workbench/runs';
@@ -31,6 +31,27 @@ export function suggestName(run: Run, key: string): string {
   const tool = run.params.tool === 'adaptive' ? run.params.algorithm : run.params.tool;
   const base = `${key}_${tool}`.replace(/[^A-Za-z0-9_]+/g, '_').toLowerCase();
   return /^[0-9]/.test(base) ? `r_${base}` : base;
+}
+
+/**
+ * Asks which of a run's result arrays to write (when the command names none); the list shows
+ * each key with what it is. Null when the user cancels.
+ */
+export async function chooseArray(trans: TranslationBundle, run: Run): Promise<string | null> {
+  const keys = Object.keys(run.arrays);
+  if (keys.length <= 1) {
+    return keys[0] ?? null;
+  }
+  const items = keys.map(k => `${k} · ${trans.__(run.arrays[k].description)}`);
+  const answer = await InputDialog.getItem({
+    title: trans.__('Which array of %1?', run.label),
+    items,
+    current: 0,
+    okLabel: trans.__('Next'),
+    cancelLabel: trans.__('Cancel')
+  });
+  const i = answer.button.accept && answer.value !== null ? items.indexOf(answer.value) : -1;
+  return i >= 0 ? keys[i] : null;
 }
 
 /** Asks for a name and writes one array of a run; says what happened. */
