@@ -113,6 +113,7 @@ export class SetupsView extends RenderWidget {
     // A click (any button, so before a context menu opens) or the keyboard inside makes the
     // card current; focusable so that the workbench's shortcuts reach it.
     card.tabIndex = -1;
+    card.dataset.key = `card:${s.id}`;
     card.addEventListener('pointerdown', () => this._selection.selectSetup(s.id));
     card.addEventListener('focusin', () => this._selection.selectSetup(s.id));
     card.setAttribute('aria-label', trans.__('set-up %1', s.title || s.id));

@@ -54,7 +54,7 @@ export class WorkbenchManager {
     });
     const gone = (label: string): string =>
       trans.__(
-        '“%1” is no longer on the Perpend panel (its arrays live in this page only).',
+        '“%1” is no longer on the Perpend panel: the panel keeps its arrays in this page only, so a reload empties it. Make it again there, or pick another source.',
         label
       );
     const shelf = this._shelf ? new ShelfSources({ shelf: this._shelf, gone }) : null;
