@@ -163,8 +163,22 @@ test("the shortcut sends the active cell's array output to the panel", async () 
     'Open Perpend Workbench | Ctrl+Alt+W',
     'List Notebook Arrays Again | Ctrl+Alt+R',
     'Send Cell Output to Perpend | Ctrl+Alt+P',
+    ' | ',
+    'New Set-up | ',
     'Run All Set-ups Again | Ctrl+Shift+Enter',
-    'Cancel Running Set-ups | Ctrl+Shift+Esc'
+    'Cancel Running Set-ups | Ctrl+Shift+Esc',
+    'Run Set-up | Ctrl+Enter',
+    'Cancel Set-up’s Run | Ctrl+.',
+    'Edit Set-up | ',
+    'Duplicate Set-up | ',
+    'Re-run Set-up When Its Sources Change | ',
+    'Remove Set-up… | ',
+    ' | ',
+    'Compare the Runs of Set-up | ',
+    'Clear Comparison | ',
+    'Write Whole Run to Kernel… | ',
+    'Write Result Array to Kernel… | ',
+    'Remove Run | '
   ]);
   await page.keyboard.press('Escape');
   await page.keyboard.press('Escape');
