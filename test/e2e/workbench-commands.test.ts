@@ -202,6 +202,29 @@ test('a panel result as the primary, run with Ctrl+Enter; a long run cancelled w
   expect(lab.unexpectedFaults(ALLOW)).toEqual([]);
 }, 600000);
 
+/** Right-clicks `target` and chooses `item` in the context menu. */
+async function contextMenu(target: Locator, item: string): Promise<void> {
+  await target.click({ button: 'right' });
+  const menu = page.locator('.lm-Menu:visible').last();
+  await menu.locator('.lm-Menu-itemLabel', { hasText: item }).first().click();
+}
+
+test('a run compared and removed from its row’s context menu, the comparison cleared', async () => {
+  const row = card('de-hummed motor noise').locator('.pp-RunRow').first();
+  await contextMenu(row, 'Compare Run');
+  await expect(row.locator('.pp-RunRow-compare').isChecked()).resolves.toBe(true);
+  await bench().locator('.pp-Workbench-compare').waitFor();
+  await palette(page, 'Clear Comparison');
+  await expect(row.locator('.pp-RunRow-compare').isChecked()).resolves.toBe(false);
+  await bench().locator('.pp-Workbench-compare').waitFor({ state: 'hidden' });
+  // The cancelled long run goes; its set-up stays and can run again.
+  const long = card('long record');
+  await contextMenu(long.locator('.pp-RunRow').first(), 'Remove Run');
+  await long.locator('.pp-RunRow').first().waitFor({ state: 'detached' });
+  expect(await long.count()).toBe(1);
+  expect(lab.unexpectedFaults(ALLOW)).toEqual([]);
+});
+
 test('duplicate from the card’s context menu; remove from the palette, asked once', async () => {
   await card('long record').locator('.pp-SetupCard-title').click({ button: 'right' });
   const menu = page.locator('.lm-Menu:visible').last();
