@@ -284,6 +284,13 @@ export interface DirectionEnergy {
   share: number;
   /** 10·log10(share), in dB. */
   shareDb: number;
+  /**
+   * Energy along it left in the output (least squares on the same columns), as a fraction of
+   * the input energy: ≈ 0 after a removal, = share after a projection onto the subspace.
+   */
+  shareAfter: number;
+  /** 10·log10(shareAfter), in dB (−Infinity when nothing is left). */
+  shareAfterDb: number;
 }
 
 export interface InterferenceResult {

@@ -381,6 +381,25 @@ describe('interference job', () => {
     });
     const tone = (N * 0.2 * 0.2) / 2;
     expect(Math.abs(r.keptShare - tone / r.inputEnergy)).toBeLessThan(1e-12);
+    // Removed: nothing is left along any harmonic (the output is orthogonal to the subspace, by
+    // the projection's definition; rounding only).
+    for (const d of r.directions) {
+      expect(d.shareAfter).toBeLessThan(1e-24);
+    }
+    // Projected onto the subspace: each harmonic keeps all it had (P·x has the same
+    // least-squares coefficients on the basis as x).
+    const onto = (await runJob(
+      {
+        kind: 'interference',
+        signal: arr(x, [N]),
+        basis: { kind: 'harmonics', f0: 50, fs, count: 3 },
+        mode: 'onto'
+      },
+      directContext
+    )) as InterferenceResult;
+    onto.directions.forEach(d => {
+      expect(Math.abs(d.shareAfter - d.share) / d.share).toBeLessThan(1e-10);
+    });
     expect(r.output.shape).toEqual([N]);
     // the output equals the core projection
     const ref = projectOff(

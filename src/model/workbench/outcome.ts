@@ -7,6 +7,12 @@ import type { Trans } from './rules';
 import type { ArrayData, JobResult, JobTiming, JobWarning } from '../../worker/protocol';
 import type { ResultArray, RunFigure, RunOutcome } from './runs';
 
+/**
+ * What is left along a removed direction is numerically zero (10⁻³⁰ of the input, say): shown
+ * at this floor, in dB of the input energy, and the plot says so.
+ */
+export const AFTER_FLOOR_DB = -150;
+
 function arr(a: ArrayData, description: string): ResultArray {
   return { data: a.data, shape: a.shape, complex: a.complex, description };
 }
@@ -120,6 +126,13 @@ export function outcomeOf(trans: Trans, r: JobResult, timing: JobTiming): RunOut
       fig('columns', 'directions given', r.columns, '');
       for (const d of r.directions) {
         fig(`dir:${d.label}`, trans.__('energy along %1', d.label), d.shareDb, 'dB');
+        // −∞ (nothing left) is not a figure; the plot draws it at its floor
+        fig(
+          `after:${d.label}`,
+          trans.__('left along %1 after', d.label),
+          Math.max(d.shareAfterDb, AFTER_FLOOR_DB),
+          'dB'
+        );
       }
       arrays.output = arr(
         r.output,

@@ -14,6 +14,7 @@ import {
 } from '../../core';
 import { beamView } from './beam-view';
 import type { Trans } from '../../model/workbench/rules';
+import { AFTER_FLOOR_DB } from '../../model/workbench/outcome';
 import type { ResultArray, Run } from '../../model/workbench/runs';
 import { optimumWeights } from '../../model/workbench/truth';
 import { rowCount, rowOf, type LinePart, type LineSignal, type LineSource } from './lines';
@@ -608,17 +609,38 @@ function energyView(trans: Trans, run: Run): PlotSpec {
     '',
     trans.__('share of the input energy (dB)')
   );
+  const labels = dirs.map(d => d.key.slice(4));
   spec.traces.push({
-    name: trans.__('energy share'),
+    name: trans.__('in the input'),
     kind: 'bar',
-    x: dirs.map(d => d.key.slice(4)),
+    x: labels,
     y: Float64Array.from(dirs.map(d => d.value)),
     color: 0
   });
+  const after = labels.map(l => figure(run, `after:${l}`));
+  if (after.every(v => v !== null)) {
+    spec.traces.push({
+      name: trans.__('left in the output'),
+      kind: 'bar',
+      x: labels,
+      y: Float64Array.from(after as number[]),
+      color: 1
+    });
+  }
+  const notes: string[] = [];
   const kept = figure(run, 'keptShare');
   if (kept !== null) {
-    spec.note = trans.__('Share of the signal kept: %1 %.', Number(kept.toPrecision(4)));
+    notes.push(trans.__('Share of the signal kept: %1 %.', Number(kept.toPrecision(4))));
   }
+  if (after.some(v => v !== null && v <= AFTER_FLOOR_DB)) {
+    notes.push(
+      trans.__(
+        'Bars at %1 dB: nothing left along that direction (numerically zero).',
+        AFTER_FLOOR_DB
+      )
+    );
+  }
+  spec.note = notes.join(' ');
   return spec;
 }
 

@@ -143,6 +143,13 @@ export async function runInterference(
     tol: spec.tol,
     rtol: spec.rtol
   });
+  // What is left along each direction in the output, on the same columns.
+  const after = columnShares(built.basis, p.output, {
+    groups: built.groups,
+    vectors: built.vectors,
+    tol: spec.tol,
+    rtol: spec.rtol
+  });
   await ctx.checkpoint(3, 3, 'shares per direction');
   const warnings: JobWarning[] = [];
   const r = built.basis.cols;
@@ -175,7 +182,12 @@ export async function runInterference(
       label,
       energy: shares.groupEnergy[k],
       share: shares.share[k],
-      shareDb: shares.shareDb[k]
+      shareDb: shares.shareDb[k],
+      shareAfter: p.energy.inputEnergy > 0 ? after.groupEnergy[k] / p.energy.inputEnergy : 0,
+      shareAfterDb:
+        p.energy.inputEnergy > 0
+          ? 10 * Math.log10(after.groupEnergy[k] / p.energy.inputEnergy)
+          : -Infinity
     })),
     inputEnergy: e.inputEnergy,
     subspaceEnergy: e.projectedEnergy,

@@ -246,6 +246,22 @@ describe('energy per direction', () => {
     expect(Array.from(spec.traces[0].y)).toEqual([-3, -12]);
     expect(spec.yTitle).toBe('share of the input energy (dB)');
     expect(spec.note).toBe('Share of the signal kept: 42.5 %.');
+    expect(spec.traces).toHaveLength(1); // no after-figures: the input's bars alone
+  });
+
+  test('beside each bar what is left in the output, a numerical zero at the floor said so', () => {
+    const r = makeRun(removal(), {
+      figures: [
+        { key: 'dir:50 Hz', label: '', value: -3, unit: 'dB' },
+        { key: 'after:50 Hz', label: '', value: -150, unit: 'dB' },
+        { key: 'dir:100 Hz', label: '', value: -12, unit: 'dB' },
+        { key: 'after:100 Hz', label: '', value: -150, unit: 'dB' }
+      ]
+    });
+    const spec = buildView(trans, r, 'energy', O, S);
+    expect(spec.traces.map(t => t.name)).toEqual(['in the input', 'left in the output']);
+    expect(Array.from(spec.traces[1].y)).toEqual([-150, -150]);
+    expect(spec.note).toContain('Bars at -150 dB: nothing left along that direction');
   });
 });
 
