@@ -131,7 +131,7 @@ export function addWorkbenchCommands(
   commands.addCommand(IDs.runSetup, {
     label: trans.__('Run Set-up'),
     caption: trans.__(
-      'Read the current set-up’s sources and compute it in a worker (in the editor: save and run)'
+      'Read the current set-up’s sources and compute it in a worker; in the editor, save and run the form'
     ),
     isEnabled: args => {
       const t = resolve(args);

@@ -142,8 +142,12 @@ test('a panel result as the primary, run with Ctrl+Enter; a long run cancelled w
   await roomForTheWorkbench();
   await newFromPalette('de-hummed motor noise', 'v:reference', `s:${SHELF_RESULT}`, '16');
   await focusCard('de-hummed motor noise');
-  await page.keyboard.press('Control+Enter');
   const c = card('de-hummed motor noise');
+  // The card's buttons say what their command does and its key.
+  await expect(c.locator('button', { hasText: /^Run$/ }).getAttribute('title')).resolves.toMatch(
+    /compute it in a worker.*\(Ctrl\+Enter\)$/
+  );
+  await page.keyboard.press('Control+Enter');
   await c.locator('.pp-RunRow[data-status="ok"]').first().waitFor({ timeout: 120000 });
   await c.locator('.pp-RunRow').first().click();
   expect(await figure('steadyStateMseDb')).toBeLessThan(-3);

@@ -22,6 +22,7 @@ export class SetupsView extends RenderWidget {
     this._model = options.model;
     this._selection = options.selection;
     this._execute = options.execute;
+    this._describe = options.describe ?? (() => '');
     this._model.setupsChanged.connect(this.update, this);
     this._model.runChanged.connect(this._onRun, this);
     this._selection.changed.connect(this._mark, this);
@@ -238,6 +239,7 @@ export class SetupsView extends RenderWidget {
     b.textContent = label;
     b.dataset.key = key;
     b.disabled = disabled;
+    b.title = this._describe(command);
     b.addEventListener('click', () => this._execute(command, args));
     return b;
   }
@@ -246,6 +248,7 @@ export class SetupsView extends RenderWidget {
   private readonly _model: WorkbenchModel;
   private readonly _selection: WorkbenchSelection;
   private readonly _execute: SetupsView.Execute;
+  private readonly _describe: (command: string) => string;
 }
 
 export namespace SetupsView {
@@ -257,5 +260,7 @@ export namespace SetupsView {
     /** The current set-up, the run shown and the compared runs. */
     selection: WorkbenchSelection;
     execute: Execute;
+    /** A command's tooltip (its caption and key) for the buttons. */
+    describe?: (command: string) => string;
   }
 }

@@ -4,7 +4,7 @@
  * the views to the model and to the actions the plugin provides (write-back, confirmations);
  * it computes nothing.
  */
-import type { CommandRegistry } from '@lumino/commands';
+import { CommandRegistry } from '@lumino/commands';
 import { UUID } from '@lumino/coreutils';
 import type { Message } from '@lumino/messaging';
 import { PanelLayout, SplitPanel, Widget } from '@lumino/widgets';
@@ -55,7 +55,8 @@ export class WorkbenchPanel extends Widget {
       trans,
       model: this._model,
       selection: this.selection,
-      execute: exec
+      execute: exec,
+      describe: command => this._describe(command)
     });
     this._editor = new SetupEditor({
       trans,
@@ -138,6 +139,17 @@ export class WorkbenchPanel extends Widget {
     }
     this.selection.dispose();
     super.dispose();
+  }
+
+  /** A button's tooltip: its command's caption and, when it has one, its key (Ctrl+Enter). */
+  private _describe(command: string): string {
+    const caption = this._commands.caption(command, {});
+    const binding = this._commands.keyBindings.find(
+      b => b.command === command && b.selector === '.pp-Workbench'
+    );
+    return binding
+      ? this._trans.__('%1 (%2)', caption, CommandRegistry.formatKeystroke(binding.keys))
+      : caption;
   }
 
   /** True while the keyboard is in the set-up editor. */
