@@ -30,6 +30,7 @@ import {
   writeRunArray,
   writeWholeRun
 } from './panel/workbench/write-back';
+import type { PlotSettings } from './panel/plots/settings';
 import { createPlotTab, plotTargetOf, type PlotTarget } from './panel/plots/plot-tab';
 import { addWorkbenchCommands, paletteItems, WORKBENCH_COMMANDS } from './workbench-commands';
 import { createBrowserWorkerPool } from './worker/client';
@@ -70,7 +71,7 @@ const plugin: JupyterFrontEndPlugin<void> = {
     let defaults: WorkbenchDefaults = { ...BUILTIN_DEFAULTS };
     let poolSize = 0;
     let memoryMiB = 1024;
-    let plotSettings = { csvMaxRows: 1_000_000 };
+    let plotSettings: Partial<PlotSettings> = { csvMaxRows: 1_000_000 };
     let pool: WorkerPool | null = null;
     const getPool = (): WorkerPool => {
       pool ??= createBrowserWorkerPool({
@@ -327,9 +328,14 @@ const plugin: JupyterFrontEndPlugin<void> = {
               epsilon: Number(c.epsilon ?? BUILTIN_DEFAULTS.epsilon),
               precision: c.precision === 'float32' ? 'float32' : 'float64'
             };
-            const rows = Number(c.plotExportMaxRows ?? 1_000_000);
-            if (rows !== plotSettings.csvMaxRows) {
-              plotSettings = { csvMaxRows: rows };
+            const next = {
+              csvMaxRows: Number(c.plotExportMaxRows ?? 1_000_000),
+              pointsPerPixel: Number(c.plotPointsPerPixel ?? 4),
+              welchSegment: Number(c.plotWelchSegment ?? 1024),
+              spectrogramColumns: Number(c.plotSpectrogramColumns ?? 400)
+            };
+            if (JSON.stringify(next) !== JSON.stringify(plotSettings)) {
+              plotSettings = next;
               widgets.forEach(w => {
                 if (!w.isDisposed) {
                   w.content.plotSettings = plotSettings;
