@@ -188,8 +188,17 @@ export type SpectralSpec =
       maxColumns: number;
     };
 
+/**
+ * A plot's data as CSV text (RFC 4180), made in the worker: a million rows take the page's
+ * thread for a second. Columns of numbers (Float64Array, NaN an empty field) or of text.
+ */
+export interface CsvSpec {
+  kind: 'csv';
+  columns: Array<{ header: string; values: Float64Array | Array<string | number | null> }>;
+}
+
 /** A job the worker runs. */
-export type JobSpec = AdaptiveFilterSpec | InterferenceSpec | SubspaceSpec | SpectralSpec;
+export type JobSpec = AdaptiveFilterSpec | InterferenceSpec | SubspaceSpec | SpectralSpec | CsvSpec;
 
 /** The parameters a sweep can vary. */
 export type SweepParameter = 'taps' | 'lambda' | 'delta' | 'mu' | 'epsilon' | 'algorithm';
@@ -376,7 +385,17 @@ export type SpectralJobResult = { kind: 'spectral'; status: 'ok'; warnings: JobW
   | { op: 'spectrogram'; spectrogram: SpectrogramResult }
 );
 
+/** The CSV text of a CsvSpec, UTF-8 encoded (its buffer is transferred). */
+export interface CsvJobResult {
+  kind: 'csv';
+  status: 'ok';
+  warnings: JobWarning[];
+  bytes: Uint8Array;
+  rows: number;
+}
+
 export type JobResult =
+  | CsvJobResult
   | SpectralJobResult
   | AdaptiveFilterResult
   | InterferenceResult

@@ -14,7 +14,8 @@ import {
   type WelchOptions
 } from '../core/dsp';
 import type { WorkerPool } from './pool';
-import type { ArrayData, JobResult, SpectralSpec } from './protocol';
+import type { CsvColumn } from './jobs/csv-text';
+import type { ArrayData, CsvSpec, JobResult, SpectralSpec } from './protocol';
 
 /** The spectral estimates the plots ask for (the same shape as the plots' PlotCompute). */
 export interface SpectralCompute {
@@ -29,6 +30,25 @@ export interface SpectralCompute {
     options: SpectrogramOptions,
     maxColumns: number
   ): Promise<SpectrogramResult>;
+  /** CSV text of columns, UTF-8 (a missing or NaN number is an empty field). */
+  csv(columns: ReadonlyArray<CsvColumn>): Promise<Uint8Array>;
+}
+
+/** A column as the `csv` job takes it: numbers as a Float64Array of its own (NaN: missing). */
+export function csvJobColumn(c: CsvColumn): CsvSpec['columns'][number] {
+  const v = c.values as ArrayLike<unknown>;
+  let numeric = true;
+  for (let i = 0; i < v.length && numeric; i++) {
+    numeric = v[i] === null || typeof v[i] === 'number';
+  }
+  if (numeric) {
+    const out = new Float64Array(v.length);
+    for (let i = 0; i < v.length; i++) {
+      out[i] = v[i] === null ? NaN : (v[i] as number);
+    }
+    return { header: c.header, values: out };
+  }
+  return { header: c.header, values: Array.from(v as ArrayLike<string | number | null>) };
 }
 
 /** The samples a view names, as a contiguous float64 array of their own (1-D). */
@@ -52,7 +72,7 @@ export function contiguousRow(name: string, view: SignalView): ArrayData {
 
 /** PlotCompute on the pool `pool()` (a pool of its own keeps plots from queueing behind runs). */
 export function workerSpectralCompute(pool: () => Pick<WorkerPool, 'run'>): SpectralCompute {
-  const run = async (spec: SpectralSpec): Promise<JobResult> => {
+  const run = async (spec: SpectralSpec | CsvSpec): Promise<JobResult> => {
     const o = await pool().run(spec, { transfer: true }).outcome;
     switch (o.status) {
       case 'done':
@@ -60,7 +80,7 @@ export function workerSpectralCompute(pool: () => Pick<WorkerPool, 'run'>): Spec
       case 'failed':
         throw new Error(o.reason);
       case 'cancelled':
-        throw new Error('the spectral estimate was cancelled');
+        throw new Error('the job was cancelled');
     }
   };
   return {
@@ -101,6 +121,13 @@ export function workerSpectralCompute(pool: () => Pick<WorkerPool, 'run'>): Spec
         throw new Error('internal: the worker answered a spectrogram with another result');
       }
       return r.spectrogram;
+    },
+    csv: async columns => {
+      const r = await run({ kind: 'csv', columns: columns.map(csvJobColumn) });
+      if (r.kind !== 'csv') {
+        throw new Error('internal: the worker answered a CSV request with another result');
+      }
+      return r.bytes;
     }
   };
 }

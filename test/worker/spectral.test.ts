@@ -4,11 +4,12 @@
  * (scripts/fixtures/gen_spectra.py: scipy.signal.welch, coherence, spectrogram on seeded real
  * and complex signals) within the issue's 1e-10 of the spectrum's maximum, strided rows of a
  * K×N result taken as they lie, the caller's arrays left untouched (copies are transferred),
- * and a bad request failing with the core's sentence.
+ * a bad request failing with the core's sentence, and a plot's CSV made in the worker (RFC 4180).
  */
 import * as fs from 'fs';
 import * as path from 'path';
 import type { WindowSpec } from '../../src/core/dsp';
+import { csvText } from '../../src/worker/jobs/csv-text';
 import { WorkerPool } from '../../src/worker/pool';
 import { contiguousRow, workerSpectralCompute } from '../../src/worker/spectral-client';
 import { decode, relToMax, type CaseParams, type Enc } from '../core/dsp/spectra-helpers';
@@ -115,4 +116,32 @@ test('a bad request fails with the core’s sentence, and the worker goes on', a
   await expect(compute.welch(x, { nperseg: 0 })).rejects.toThrow(/nperseg/);
   const r = await compute.welch(x, { nperseg: 64 });
   expect(r.psd.length).toBe(33);
+});
+
+test('a plot’s CSV made in the worker: RFC 4180 text, the same as the page makes', async () => {
+  const compute = workerSpectralCompute(() => pool);
+  const columns = [
+    { header: 'time (s)', values: Float64Array.from([0, 0.25, 0.5]) },
+    { header: 'error e(n), "smoothed"', values: [1.5, null, -2e-300] },
+    { header: 'label', values: ['a,b', 'line\nbreak', 'plain'] }
+  ];
+  const text = new TextDecoder().decode(await compute.csv(columns));
+  // RFC 4180 §2: CRLF line ends; a field with a comma, a double quote or a line break is
+  // enclosed in double quotes, a double quote inside doubled; an empty field for a missing value.
+  expect(text).toBe(
+    'time (s),"error e(n), ""smoothed""",label\r\n' +
+      '0,1.5,"a,b"\r\n' +
+      '0.25,,"line\nbreak"\r\n' +
+      '0.5,-2e-300,plain\r\n'
+  );
+  expect(text).toBe(csvText(columns));
+  // every double survives the round trip through its shortest decimal form
+  const many = new Float64Array(1000).map((_, i) => Math.sin(i) * 10 ** ((i % 40) - 20));
+  const back = new TextDecoder()
+    .decode(await compute.csv([{ header: 'v', values: many }]))
+    .trim()
+    .split('\r\n')
+    .slice(1)
+    .map(Number);
+  expect(back).toEqual(Array.from(many));
 });

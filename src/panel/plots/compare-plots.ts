@@ -31,7 +31,7 @@ import {
   type CompareKind
 } from './compare-overlays';
 import { welch, type PsdResult, type SignalView, type WelchOptions } from '../../core';
-import { downloadText, PlotPane } from './plot-pane';
+import { csvMaker, downloadText, PlotPane } from './plot-pane';
 import { loadPlotlyDist, type LoadPlotly } from './plotly';
 import type { IRunSource } from './run-source';
 import { DEFAULT_PLOT_SETTINGS, type PlotSettings } from './settings';
@@ -56,7 +56,8 @@ export class ComparePlots extends RenderWidget {
       loadPlotly: options.loadPlotly ?? loadPlotlyDist,
       settings: this._settings,
       themeChanged: options.themeChanged,
-      writeData: options.writeData
+      writeData: options.writeData,
+      makeCsv: csvMaker(options.compute)
     });
     this._table = document.createElement('div');
     this._table.className = 'pp-ComparePlots-table';
@@ -377,6 +378,8 @@ export namespace ComparePlots {
   /** The long computation the comparison needs: Welch estimates (the core's `welch`). */
   export interface Compute {
     welch(signal: SignalView, options: WelchOptions): PsdResult | Promise<PsdResult>;
+    /** CSV text of a plot's columns (in a worker); the page makes it without. */
+    csv?: PlotPane.MakeCsv;
   }
   export interface IOptions {
     trans: Trans;

@@ -16,6 +16,7 @@ import {
   type SpectrogramResult,
   type WelchOptions
 } from '../../core';
+import type { CsvColumn } from './csv';
 
 /** Options of a coherence estimate (as the core's `coherence` takes them). */
 export type CoherenceOptions = Omit<WelchOptions, 'average' | 'scaling'>;
@@ -34,6 +35,11 @@ export interface PlotCompute {
     options: SpectrogramOptions,
     maxColumns: number
   ): Promise<SpectrogramResult>;
+  /**
+   * CSV text (RFC 4180, UTF-8) of a plot's columns; optional: without it the page makes it.
+   * A missing or NaN number is an empty field.
+   */
+  csv?(columns: ReadonlyArray<CsvColumn>): Promise<Uint8Array>;
 }
 
 /** The core on the main thread (~0.1 s for a Welch PSD of 1e6 samples here). */

@@ -7,6 +7,7 @@
 import type { IDisposable } from '@lumino/disposable';
 import { buildFigure, figureCsv, plotAreaWidth, plotColumns, type YRanges } from './figure';
 import type { XRange } from './lines';
+import type { CsvColumn } from './csv';
 import type { LoadPlotly, PlotlyGraph, PlotlyLike } from './plotly';
 import { plotRecord, type PlotRecord } from './plot-record';
 import { columnsFor, type PlotSettings } from './settings';
@@ -115,6 +116,14 @@ export class PlotDriver implements IDisposable {
       throw new Error('nothing is plotted');
     }
     return figureCsv(this._spec, this._range, this._settings.csvMaxRows);
+  }
+
+  /** The columns the CSV export holds (every sample of the visible range, capped). */
+  csvColumns(): CsvColumn[] {
+    if (!this._spec) {
+      throw new Error('nothing is plotted');
+    }
+    return plotColumns(this._spec, this._range, this._settings.csvMaxRows);
   }
 
   /**

@@ -8,7 +8,7 @@ import type { ISignal } from '@lumino/signaling';
 import type { Widget } from '@lumino/widgets';
 import type { Trans } from '../../model/workbench/rules';
 import { CsvTooLarge } from './figure';
-import { fileStem } from './csv';
+import { fileStem, type CsvColumn } from './csv';
 import { PlotDriver } from './plot-driver';
 import type { LoadPlotly } from './plotly';
 import type { PlotRecord } from './plot-record';
@@ -17,8 +17,8 @@ import type { PlotSpec } from './spec';
 import { readTheme } from './theme';
 
 /** Saves text as a file through the browser's download. */
-export function downloadText(text: string, filename: string, type = 'text/csv'): void {
-  const url = URL.createObjectURL(new Blob([text], { type }));
+export function downloadText(text: string | Uint8Array, filename: string, type = 'text/csv'): void {
+  const url = URL.createObjectURL(new Blob([text as BlobPart], { type }));
   const a = document.createElement('a');
   a.href = url;
   a.download = filename;
@@ -30,11 +30,20 @@ export function downloadText(text: string, filename: string, type = 'text/csv'):
   setTimeout(() => URL.revokeObjectURL(url), 0);
 }
 
+/** The CSV maker of a compute seam that has one (the worker's), bound to it. */
+export function csvMaker(
+  compute: { csv?: PlotPane.MakeCsv } | undefined
+): PlotPane.MakeCsv | undefined {
+  const csv = compute?.csv;
+  return csv ? columns => csv.call(compute, columns) : undefined;
+}
+
 export class PlotPane {
   constructor(options: PlotPane.IOptions) {
     this._owner = options.owner;
     this._trans = options.trans;
     this._writeData = options.writeData ?? null;
+    this._makeCsv = options.makeCsv ?? null;
     this.node = document.createElement('div');
     this.node.className = 'pp-PlotPane';
     this.graph = document.createElement('div');
@@ -143,9 +152,24 @@ export class PlotPane {
     button('SVG', trans.__('Save the plot as an SVG image'), () =>
       this.driver.downloadImage('svg', fileStem(stem()))
     );
-    button('CSV', trans.__('Save the data of the visible range, every sample, as CSV'), () => {
-      downloadText(this.driver.csv(), `${fileStem(stem())}.csv`);
-    });
+    button(
+      'CSV',
+      trans.__('Save the data of the visible range, every sample, as CSV'),
+      async () => {
+        const name = `${fileStem(stem())}.csv`;
+        const make = this._makeCsv;
+        if (!make) {
+          downloadText(this.driver.csv(), name);
+          return;
+        }
+        // The text is made in a worker (a million rows would hold the page for a second).
+        this.status.textContent = trans.__('Making the CSV file…');
+        delete this.status.dataset.kind;
+        const bytes = await make(this.driver.csvColumns());
+        this.status.textContent = '';
+        downloadText(bytes, name);
+      }
+    );
     const write = this._writeData;
     if (write) {
       button(
@@ -234,6 +258,7 @@ export class PlotPane {
   private readonly _owner: Widget;
   private readonly _trans: Trans;
   private readonly _writeData: PlotPane.WriteData | null;
+  private readonly _makeCsv: PlotPane.MakeCsv | null;
   private readonly _themeChanged: ISignal<unknown, unknown> | null;
   private _themeObserver: MutationObserver | null = null;
   private _resizeObserver: ResizeObserver | null = null;
@@ -254,7 +279,12 @@ export namespace PlotPane {
     themeChanged?: ISignal<unknown, unknown>;
     /** Writes a plot's data to the kernel (asks the name); no button without it. */
     writeData?: WriteData;
+    /** Makes the CSV text of the columns (in a worker); without it the page makes it. */
+    makeCsv?: MakeCsv;
   }
+
+  /** The CSV text of a plot's columns, UTF-8. */
+  export type MakeCsv = (columns: ReadonlyArray<CsvColumn>) => Promise<Uint8Array>;
 
   /** Writes a plot's data (its record and a name stem to suggest) to the kernel. */
   export type WriteData = (record: PlotRecord, stem: string) => void;

@@ -9,7 +9,7 @@ import type { ISignal } from '@lumino/signaling';
 import { type Widget } from '@lumino/widgets';
 import type { Trans } from '../../model/workbench/rules';
 import type { Run } from '../../model/workbench/runs';
-import { PlotPane } from './plot-pane';
+import { csvMaker, PlotPane } from './plot-pane';
 import { loadPlotlyDist, type LoadPlotly } from './plotly';
 import type { IRunSource } from './run-source';
 import { DEFAULT_PLOT_SETTINGS, type PlotSettings } from './settings';
@@ -50,7 +50,8 @@ export class RunPlots extends RenderWidget {
       loadPlotly: options.loadPlotly ?? loadPlotlyDist,
       settings: this._settings,
       themeChanged: options.themeChanged,
-      writeData: options.writeData
+      writeData: options.writeData,
+      makeCsv: csvMaker(options.compute)
     });
     this.node.append(this._bar, this._hint, this._pane.node);
     this._model.runChanged.connect(this._onRun, this);

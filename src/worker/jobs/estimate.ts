@@ -66,6 +66,12 @@ export function estimateJobBytes(spec: JobSpec): MemoryEstimate {
         detail: `projected signal ${mb(out)}, basis and its factors ${mb(basis)}`
       };
     }
+    case 'csv': {
+      // the text: up to ~25 bytes per value, and its UTF-8 copy
+      const values = spec.columns.reduce((n, c) => n + c.values.length, 0);
+      const bytes = 50 * values;
+      return { bytes, detail: `the CSV text ${mb(bytes)}` };
+    }
     case 'spectral': {
       // detrended, windowed segments and their spectra are small; a strided or float32 row
       // may be copied once

@@ -3,6 +3,7 @@ import type { JobResult, JobSpec } from '../protocol';
 import { runAdaptiveFilter } from './adaptive-filter';
 import type { JobContext } from './context';
 import { runInterference } from './interference';
+import { runCsv } from './csv';
 import { runSpectral } from './spectral';
 import { runAngles, runBasis, runLeastSquares } from './subspace';
 
@@ -32,10 +33,12 @@ export function runJob(spec: JobSpec, ctx: JobContext): Promise<JobResult> {
       return runAngles(spec, ctx);
     case 'spectral':
       return runSpectral(spec, ctx);
+    case 'csv':
+      return runCsv(spec, ctx);
     default:
       return Promise.reject(
         new RangeError(
-          `spec.kind must be adaptive-filter, interference, basis, least-squares, angles or spectral, got ${JSON.stringify((spec as { kind: unknown }).kind)}`
+          `spec.kind must be adaptive-filter, interference, basis, least-squares, angles, spectral or csv, got ${JSON.stringify((spec as { kind: unknown }).kind)}`
         )
       );
   }
