@@ -276,6 +276,11 @@ export interface AdaptiveFilterResult {
   trajectoryIndex: Float64Array | null;
   /** Learning curve |e(n)|² (ensemble mean over K trials), length N, unit of d squared. */
   learningCurve: Float64Array;
+  /**
+   * The learning curve smoothed over `figures.window` samples: the curve the figures were read
+   * off (null when the window is 1 or the curve is not finite). Made here so the page need not.
+   */
+  learningCurveSmoothed: Float64Array | null;
   /** K > 1: the 95 % band of the ensemble mean (null for one trial). */
   learningCurveLower: Float64Array | null;
   learningCurveUpper: Float64Array | null;

@@ -10,6 +10,7 @@ import {
   misadjustment,
   runFilter,
   squaredError,
+  movingAverage,
   steadyStateMse,
   type Algorithm
 } from '../../src/core';
@@ -103,6 +104,9 @@ describe('adaptive-filter job', () => {
       expect(r.trajectory!.data).toEqual(ref.trajectory);
       expect(r.trajectoryIndex).toEqual(ref.trajectoryIndex);
       expect(r.learningCurve).toEqual(squaredError(ref.e));
+      // the smoothed curve handed to the plots is the core's trailing moving average over the
+      // figures' window (the curve the figures were read off)
+      expect(r.learningCurveSmoothed).toEqual(movingAverage(r.learningCurve, r.figures.window));
       // the core's health events come through as warnings with their sample index (the textbook
       // RLS loses the symmetry of P: Haykin, Adaptive Filter Theory, 4th ed., §9 (from memory))
       expect(r.warnings.map(w => [w.kind, w.index])).toEqual(

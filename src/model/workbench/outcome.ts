@@ -85,6 +85,13 @@ export function outcomeOf(trans: Trans, r: JobResult, timing: JobTiming): RunOut
         r.learningCurve,
         r.K > 1 ? 'learning curve: mean |e(n)|² over the trials' : 'learning curve |e(n)|²'
       );
+      if (r.learningCurveSmoothed) {
+        arrays.learningCurveSmoothed = vec(
+          r.learningCurveSmoothed,
+          'learning curve smoothed over the figures’ window (trailing moving average)'
+        );
+      }
+      fig('smoothingWindow', 'learning curve smoothed over', f.window, 'samples');
       if (r.learningCurveLower && r.learningCurveUpper) {
         arrays.learningCurveLower = vec(
           r.learningCurveLower,

@@ -19,7 +19,7 @@ import {
   beforeOf,
   buildView,
   DEFAULT_VIEW_OPTIONS,
-  defaultSmoothing,
+  smoothingOf,
   isComputedView,
   parseTaps,
   rowsOf,
@@ -312,7 +312,7 @@ export class RunPlots extends RenderWidget {
     input.step = '1';
     input.className = 'jp-mod-styled pp-Plots-number';
     const n = run.arrays.learningCurve?.data.length ?? 1;
-    input.value = String(this._options.smoothing ?? defaultSmoothing(n));
+    input.value = String(smoothingOf(run, this._options));
     input.title = trans.__('Length of the moving average over |e(n)|², in samples');
     input.addEventListener('change', () => {
       const v = Number(input.value);

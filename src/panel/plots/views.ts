@@ -258,6 +258,15 @@ export function need(run: Run, key: string): ResultArray {
   return a;
 }
 
+/**
+ * The smoothing window of a run's learning curve: the user's, else the one its figures were read
+ * off (steady state, convergence), else the default for its length.
+ */
+export function smoothingOf(run: Run, o: ViewOptions): number {
+  const lc = run.arrays.learningCurve;
+  return o.smoothing ?? figure(run, 'smoothingWindow') ?? defaultSmoothing(lc ? lc.data.length : 1);
+}
+
 /** The default smoothing of a learning curve of N samples: about 1 % of it, at most 1000. */
 export function defaultSmoothing(n: number): number {
   return Math.max(1, Math.min(1000, Math.round(n / 100)));
@@ -319,7 +328,10 @@ function signalsView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
 function learningView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
   const t = timeAxis(trans, run.fs);
   const lc = need(run, 'learningCurve');
-  const w = o.smoothing ?? defaultSmoothing(lc.data.length);
+  const w = smoothingOf(run, o);
+  // The curve the figures were read off, smoothed in the worker, when its window is asked for.
+  const pre = run.arrays.learningCurveSmoothed;
+  const usePre = !!pre && w === figure(run, 'smoothingWindow');
   const spec = emptySpec(
     trans.__('Learning curve'),
     t.title,
@@ -359,7 +371,7 @@ function learningView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
   }
   spec.lines.push({
     name: trans.__('|e(n)|², smoothed over %1 samples', w),
-    signal: line(w > 1 ? movingAverage(lc.data, w) : lc.data),
+    signal: line(usePre ? pre.data : w > 1 ? movingAverage(lc.data, w) : lc.data),
     part: 'real',
     db: true,
     dx: t.dx,

@@ -204,7 +204,14 @@ export async function runAdaptiveFilter(
   const curves = squaredError(e, complex); // K·N values, trial-major
   const band = K > 1 ? ensembleAverage(curves, { K }) : null;
   const curve = band ? band.mean : curves;
-  const figures = readFigures(spec, curve, N, warnings);
+  let smoothed: Float64Array | null = null;
+  const figures = readFigures(
+    spec,
+    curve,
+    N,
+    warnings,
+    sm => (smoothed = sm === curve ? null : sm)
+  );
   figures.errorReductionDb = energyE > 0 ? 10 * Math.log10(energyD / energyE) : null;
   const shape = (...s: number[]) => (K > 1 ? [K, ...s] : s);
   return {
@@ -222,6 +229,7 @@ export async function runAdaptiveFilter(
     trajectory: rows > 0 ? { data: traj, shape: shape(rows, M), complex } : null,
     trajectoryIndex: rows > 0 ? trajIndex : null,
     learningCurve: curve,
+    learningCurveSmoothed: smoothed,
     learningCurveLower: band ? band.lower : null,
     learningCurveUpper: band ? band.upper : null,
     figures,
@@ -246,7 +254,8 @@ export function readFigures(
   spec: Pick<AdaptiveFilterSpec, 'window' | 'tail' | 'marginDb' | 'fs' | 'minMse'>,
   curve: Float64Array,
   N: number,
-  warnings: JobWarning[]
+  warnings: JobWarning[],
+  keepSmoothed?: (smoothed: Float64Array) => void
 ): AdaptiveFilterFigures {
   const window = spec.window ?? Math.min(1024, Math.max(1, Math.round(N / 50)));
   if (!Number.isInteger(window) || window < 1) {
@@ -285,6 +294,7 @@ export function readFigures(
     // one smoothing serves the final MSE and the convergence time (convergenceTime with
     // `window` smooths the same way)
     const sm = window > 1 ? movingAverage(curve, Math.min(window, N)) : curve;
+    keepSmoothed?.(sm);
     finalMse = sm[N - 1];
     // the core's steadyStateMse (same sum, same order) without its finiteness pass, done above
     steady = tailMean(curve, tail);
@@ -374,7 +384,14 @@ async function runEqualizer(
   }));
   const e = Float64Array.from(r.e);
   const curve = squaredError(e, complex);
-  const figures = readFigures(spec, curve, N, warnings);
+  let smoothed: Float64Array | null = null;
+  const figures = readFigures(
+    spec,
+    curve,
+    N,
+    warnings,
+    sm => (smoothed = sm === curve ? null : sm)
+  );
   figures.symbolErrorRate = r.symbolErrorRate;
   const M = spec.taps;
   const rows = r.trajectoryIndex.length;
@@ -393,6 +410,7 @@ async function runEqualizer(
     trajectory: rows > 0 ? { data: r.trajectory, shape: [rows, M], complex } : null,
     trajectoryIndex: rows > 0 ? r.trajectoryIndex : null,
     learningCurve: curve,
+    learningCurveSmoothed: smoothed,
     learningCurveLower: null,
     learningCurveUpper: null,
     figures,

@@ -127,6 +127,22 @@ describe('learning curve', () => {
     ]);
     expect(spec.yTitle).toBe('squared error (dB)');
   });
+  test('by default the curve the figures were read off, as the worker smoothed it', () => {
+    const run = cancellationRun(2000, 1000);
+    const pre = vec(new Float64Array(2000).fill(0.25));
+    const r2 = {
+      ...run,
+      arrays: { ...run.arrays, learningCurveSmoothed: pre },
+      figures: [...run.figures, { key: 'smoothingWindow', label: '', value: 40, unit: 'samples' }]
+    };
+    const spec = buildView(trans, r2, 'learning', O, S);
+    const line = spec.lines[spec.lines.length - 1];
+    expect(line.signal.data).toBe(pre.data);
+    expect(line.name).toBe('|e(n)|², smoothed over 40 samples');
+    // another window asked for: smoothed here from the raw curve
+    const other = buildView(trans, r2, 'learning', { ...O, smoothing: 10 }, S);
+    expect(other.lines[other.lines.length - 1].signal.data).not.toBe(pre.data);
+  });
   test('the 95 % band is drawn as a filled pair when the run has one', () => {
     const run = cancellationRun(100, null);
     const band = vec(new Float64Array(100).fill(1));
