@@ -119,10 +119,18 @@ export class RunPlots extends RenderWidget {
   }
 
   private _onRun(_: unknown, run: Run): void {
-    if (run.id === this._runId) {
-      this.update();
+    if (run.id !== this._runId) {
+      return;
     }
+    // Nothing to plot while it runs: its progress does not repaint the plots.
+    if (run.status === 'running' && this._runningShown === run.id) {
+      return;
+    }
+    this._runningShown = run.status === 'running' ? run.id : null;
+    this.update();
   }
+
+  private _runningShown: string | null = null;
 
   /** Paints the plot (RenderWidget calls it only while visible). */
   protected render(): void {

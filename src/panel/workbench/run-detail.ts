@@ -43,6 +43,7 @@ export class RunDetail extends RenderWidget {
   protected render(): void {
     const trans = this._trans;
     const r = this._model.runs.find(x => x.id === this._runId);
+    this._shown = r ? { id: r.id, status: r.status, messages: r.messages.length } : null;
     if (!r) {
       if (this._part === 'arrays') {
         this.node.replaceChildren();
@@ -189,10 +190,28 @@ export class RunDetail extends RenderWidget {
   }
 
   private _onRun(_: WorkbenchModel, r: Run): void {
-    if (r.id === this._runId) {
-      this.update();
+    if (r.id !== this._runId) {
+      return;
     }
+    // A running run's progress changes its status line alone: written in place (a repaint per
+    // per cent, beside the workers, takes the page's thread from them on two cores).
+    const shown = this._shown;
+    if (
+      r.status === 'running' &&
+      shown?.id === r.id &&
+      shown.status === 'running' &&
+      shown.messages === r.messages.length
+    ) {
+      const line = this.node.querySelector('.pp-RunDetail-status');
+      if (line && this._part === 'summary') {
+        line.textContent = statusText(this._trans, r);
+      }
+      return;
+    }
+    this.update();
   }
+
+  private _shown: { id: string; status: Run['status']; messages: number } | null = null;
 
   private readonly _trans: TranslationBundle;
   private readonly _model: WorkbenchModel;
