@@ -5,14 +5,14 @@
  * (`welch` through the given PSD function, `firResponse`, `toDb`); the legend names each run by
  * its label (algorithm and parameters), numbered where two share one.
  */
-import { firResponse, toDb, type PsdResult } from '../../core';
+import { firResponse, type PsdResult } from '../../core';
 import type { Trans } from '../../model/workbench/rules';
 import type { Run } from '../../model/workbench/runs';
 import { distinctLabels } from './compare';
 import { rowCount } from './lines';
 import type { PlotSettings } from './settings';
 import { emptySpec, type PlotSpec } from './spec';
-import { frequencyAxis, spectrumRequests, type PsdRequest } from './views';
+import { frequencyAxis, psdSpec, spectrumRequests, type PsdRequest } from './views';
 
 /** What the comparison overlays. */
 export type CompareKind = 'learning' | 'spectrum' | 'response';
@@ -110,22 +110,7 @@ export function compareSpectrumSpec(
 ): PlotSpec {
   const list = spectrumRuns(runs);
   const { fs, mixed } = commonRate(list);
-  const f = frequencyAxis(trans, fs);
-  const spec = emptySpec(
-    trans.__('Residual spectra (Welch)'),
-    f.title,
-    f.unit,
-    fs !== null ? trans.__('PSD (dB/Hz)') : trans.__('power per bin (dB)')
-  );
-  results.forEach((psd, i) => {
-    spec.traces.push({
-      name: requests[i].name,
-      kind: 'line',
-      x: psd.frequency,
-      y: toDb(psd.psd),
-      color: i
-    });
-  });
+  const spec = psdSpec(trans, trans.__('Residual spectra (Welch)'), fs, requests, results);
   const segments = [...new Set(results.map(r => r.nperseg))].join(', ');
   const notes = [
     trans.__(

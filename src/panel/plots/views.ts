@@ -557,17 +557,20 @@ export function spectrumRequests(trans: Trans, run: Run, s: PlotSettings, row = 
   });
 }
 
-/** The spectrum view from the estimates of `spectrumRequests` (in the same order). */
-export function spectrumSpec(
+/**
+ * A plot of Welch estimates in dB, one line per request (named as it), against Hz when `fs` is
+ * known (dB/Hz) or cycles per sample (dB per bin) otherwise.
+ */
+export function psdSpec(
   trans: Trans,
-  run: Run,
+  title: string,
+  fs: number | null,
   requests: ReadonlyArray<PsdRequest>,
   results: ReadonlyArray<PsdResult>
 ): PlotSpec {
-  const fs = run.fs !== null && run.fs > 0 ? run.fs : null;
   const f = frequencyAxis(trans, fs);
   const spec = emptySpec(
-    trans.__('Power spectral density (Welch)'),
+    title,
     f.title,
     f.unit,
     fs !== null ? trans.__('PSD (dB/Hz)') : trans.__('power per bin (dB)')
@@ -581,6 +584,19 @@ export function spectrumSpec(
       color: i
     });
   });
+  return spec;
+}
+
+/** The spectrum view from the estimates of `spectrumRequests` (in the same order). */
+export function spectrumSpec(
+  trans: Trans,
+  run: Run,
+  requests: ReadonlyArray<PsdRequest>,
+  results: ReadonlyArray<PsdResult>
+): PlotSpec {
+  const fs = run.fs !== null && run.fs > 0 ? run.fs : null;
+  const f = frequencyAxis(trans, fs);
+  const spec = psdSpec(trans, trans.__('Power spectral density (Welch)'), fs, requests, results);
   const p = run.params;
   if (p.tool === 'removal' && p.basis.kind === 'harmonics') {
     for (let k = 1; k <= p.basis.count; k++) {
