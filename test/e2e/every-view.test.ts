@@ -13,6 +13,7 @@ import path from 'node:path';
 import type { Locator, Page } from 'playwright-core';
 import { LabBrowser, SCREENSHOTS } from './browser';
 import { openNotebook, palette, runAllCells, setTheme } from './lab-actions';
+import { workbenchForm, type WorkbenchForm } from './workbench-form';
 
 const NOTEBOOK = 'every-view-demo.ipynb';
 
@@ -47,55 +48,15 @@ afterAll(async () => {
   await lab?.close();
 });
 
-function bench(): Locator {
-  return page.locator('.pp-Workbench').first();
-}
-
-function field(p: string): Locator {
-  return bench().locator(`.pp-Editor .pp-Field[data-path="${p}"]`);
-}
-
-function plots(): Locator {
-  return bench().locator('.pp-Workbench-plots');
-}
-
-async function newSetup(tool: string, title: string): Promise<void> {
-  await bench().locator(`.pp-Workbench-tool[data-tool="${tool}"]`).click();
-  await bench().locator('.pp-Editor form').waitFor();
-  await bench().locator('.pp-Editor-title').fill(title);
-}
-
-async function pick(p: string, name: string): Promise<void> {
-  const select = field(p).locator('select').first();
-  await select.locator(`option[value="v:${name}"]`).waitFor({ state: 'attached', timeout: 120000 });
-  await select.selectOption(`v:${name}`);
-}
-
-async function type(p: string, text: string): Promise<void> {
-  if (!(await field(p).isVisible())) {
-    await bench().locator('.pp-Editor-more > summary').click();
-  }
-  await field(p).locator('input').first().fill(text);
-}
-
-async function choose(p: string, value: string): Promise<void> {
-  await field(p).locator('select').first().selectOption(value);
-}
-
-/** Saves and runs the form; fails with the form's own messages when it refuses. */
-async function saveAndRun(title: string): Promise<void> {
-  await bench().locator('.pp-Editor-foot button', { hasText: 'Save and run' }).click();
-  try {
-    await card(title).waitFor({ timeout: 15000 });
-  } catch {
-    const issues = await bench().locator('.pp-Editor').textContent();
-    throw new Error(`the set-up "${title}" was not saved; the form says: ${issues}`);
-  }
-}
-
-function card(title: string): Locator {
-  return bench().locator('.pp-SetupCard', { hasText: title });
-}
+const form = (): WorkbenchForm => workbenchForm(page);
+const bench = (): Locator => form().bench();
+const plots = (): Locator => bench().locator('.pp-Workbench-plots');
+const card = (title: string): Locator => form().card(title);
+const newSetup = (tool: string, title: string) => form().newSetup(tool, title);
+const pick = (p: string, name: string) => form().pick(p, name);
+const type = (p: string, text: string) => form().type(p, text);
+const choose = (p: string, value: string) => form().choose(p, value);
+const saveAndRun = (title: string) => form().saveAndRun(title);
 
 /** Waits for the set-up's newest run to end ok and shows it. */
 async function showRun(title: string, count = 1): Promise<void> {

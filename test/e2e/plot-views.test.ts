@@ -10,6 +10,7 @@ import path from 'node:path';
 import type { Locator, Page } from 'playwright-core';
 import { LabBrowser, SCREENSHOTS } from './browser';
 import { openNotebook, palette, runAllCells, setTheme } from './lab-actions';
+import { workbenchForm, type WorkbenchForm } from './workbench-form';
 
 const NOTEBOOK = 'views-demo.ipynb';
 
@@ -38,29 +39,12 @@ function bench(): Locator {
   return page.locator('.pp-Workbench').first();
 }
 
-function field(p: string): Locator {
-  return bench().locator(`.pp-Editor .pp-Field[data-path="${p}"]`);
-}
-
-async function newSetup(tool: string, title: string): Promise<void> {
-  await bench().locator(`.pp-Workbench-tool[data-tool="${tool}"]`).click();
-  await bench().locator('.pp-Editor form').waitFor();
-  await bench().locator('.pp-Editor-title').fill(title);
-}
-
-async function pick(p: string, name: string): Promise<void> {
-  const select = field(p).locator('select').first();
-  await select.locator(`option[value="v:${name}"]`).waitFor({ state: 'attached', timeout: 180000 });
-  await select.selectOption(`v:${name}`);
-}
-
-async function type(p: string, text: string): Promise<void> {
-  await field(p).locator('input').first().fill(text);
-}
-
-function card(title: string): Locator {
-  return bench().locator('.pp-SetupCard', { hasText: title });
-}
+const form = (): WorkbenchForm => workbenchForm(page);
+const field = (p: string): Locator => form().field(p);
+const card = (title: string): Locator => form().card(title);
+const newSetup = (tool: string, title: string) => form().newSetup(tool, title);
+const pick = (p: string, name: string) => form().pick(p, name);
+const type = (p: string, text: string) => form().type(p, text);
 
 async function ended(title: string): Promise<void> {
   const row = card(title).locator('.pp-RunRow[data-status="ok"]').first();
