@@ -9,7 +9,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Locator, Page } from 'playwright-core';
 import { LabBrowser } from './browser';
-import { openNotebook, palette, runAllCells, setTheme } from './lab-actions';
+import { openNotebook, palette, runAllCells, setTheme, runCell as runLabCell } from './lab-actions';
 
 const ALLOW: RegExp[] = [/Canceled future for debug_request/];
 const NOTEBOOK = 'compare-demo.ipynb';
@@ -87,29 +87,8 @@ async function legendOf(box: Locator, entries: number): Promise<string[]> {
   return legend.allTextContents();
 }
 
-/** Types code into a new cell at the end, runs it, returns its printed output, removes it. */
-async function runCell(code: string, expect: RegExp, timeout = 60000): Promise<string> {
-  await page.locator('.jp-NotebookPanel .jp-CodeCell').last().click();
-  await page.keyboard.press('Escape');
-  await page.keyboard.press('b');
-  await page.keyboard.press('Enter');
-  await page.keyboard.insertText(code);
-  await page.keyboard.press('Shift+Enter');
-  const out = page.locator('.jp-NotebookPanel .jp-OutputArea-output', { hasText: expect }).last();
-  await out.waitFor({ timeout });
-  const text = (await out.textContent()) ?? '';
-  await page
-    .locator('.jp-NotebookPanel .jp-CodeCell', { hasText: code.split('\n')[0] })
-    .last()
-    .click();
-  await page.keyboard.press('Escape');
-  for (let i = 0; i < 2; i++) {
-    await page.keyboard.press('Shift+ArrowDown');
-  }
-  await page.keyboard.press('d');
-  await page.keyboard.press('d');
-  return text;
-}
+const runCell = (code: string, expect: RegExp, timeout = 60000): Promise<string> =>
+  runLabCell(page, code, expect, timeout);
 
 /** Clicks an export button of `box` and returns the downloaded file's name and bytes. */
 async function download(box: Locator, label: string): Promise<{ name: string; bytes: Buffer }> {

@@ -121,3 +121,36 @@ export async function setTheme(
 function escape(text: string): string {
   return text.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
 }
+
+/**
+ * Types code into a new cell at the end of the notebook, runs it and returns the text of the
+ * output matching `expect`. The cell (and the empty one Shift+Enter made) go again, so that the
+ * notebook, saved and run again later, holds only its own cells.
+ */
+export async function runCell(
+  page: Page,
+  code: string,
+  expect: RegExp,
+  timeout = 60000
+): Promise<string> {
+  await page.locator('.jp-NotebookPanel .jp-CodeCell').last().click();
+  await page.keyboard.press('Escape');
+  await page.keyboard.press('b');
+  await page.keyboard.press('Enter');
+  await page.keyboard.insertText(code);
+  await page.keyboard.press('Shift+Enter');
+  const out = page.locator('.jp-NotebookPanel .jp-OutputArea-output', { hasText: expect }).last();
+  await out.waitFor({ timeout });
+  const text = (await out.textContent()) ?? '';
+  await page
+    .locator('.jp-NotebookPanel .jp-CodeCell', { hasText: code.split('\n')[0] })
+    .last()
+    .click();
+  await page.keyboard.press('Escape');
+  for (let i = 0; i < 2; i++) {
+    await page.keyboard.press('Shift+ArrowDown');
+  }
+  await page.keyboard.press('d');
+  await page.keyboard.press('d');
+  return text;
+}

@@ -10,7 +10,14 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Locator, Page } from 'playwright-core';
 import { LabBrowser } from './browser';
-import { openNotebook, palette, runAllCells, setTheme, waitNotebookReady } from './lab-actions';
+import {
+  openNotebook,
+  palette,
+  runAllCells,
+  setTheme,
+  waitNotebookReady,
+  runCell as runLabCell
+} from './lab-actions';
 
 const ALLOW: RegExp[] = [];
 const NOTEBOOK = 'workbench-commands.ipynb';
@@ -94,29 +101,8 @@ async function figure(key: string): Promise<number> {
   return Number(((await cell.textContent()) ?? '').replace('−', '-'));
 }
 
-/** Types code into a new cell at the end, runs it, returns its output, and removes the cell. */
-async function runCell(code: string, expect: RegExp, timeout = 120000): Promise<string> {
-  await page.locator('.jp-NotebookPanel .jp-CodeCell').last().click();
-  await page.keyboard.press('Escape');
-  await page.keyboard.press('b');
-  await page.keyboard.press('Enter');
-  await page.keyboard.insertText(code);
-  await page.keyboard.press('Shift+Enter');
-  const out = page.locator('.jp-NotebookPanel .jp-OutputArea-output', { hasText: expect }).last();
-  await out.waitFor({ timeout });
-  const text = (await out.textContent()) ?? '';
-  await page
-    .locator('.jp-NotebookPanel .jp-CodeCell', { hasText: code.split('\n')[0] })
-    .last()
-    .click();
-  await page.keyboard.press('Escape');
-  for (let i = 0; i < 2; i++) {
-    await page.keyboard.press('Shift+ArrowDown');
-  }
-  await page.keyboard.press('d');
-  await page.keyboard.press('d');
-  return text;
-}
+const runCell = (code: string, expect: RegExp, timeout = 120000): Promise<string> =>
+  runLabCell(page, code, expect, timeout);
 
 test('a panel result as the primary, run with Ctrl+Enter; a long run cancelled with Ctrl+.', async () => {
   // On the panel: read primary, project the mains hum off it (5 harmonics of 50 Hz at fs).

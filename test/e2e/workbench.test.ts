@@ -15,7 +15,8 @@ import {
   palette,
   runAllCells,
   setTheme,
-  waitNotebookReady
+  waitNotebookReady,
+  runCell as runLabCell
 } from './lab-actions';
 
 // JupyterLab's own debugger says this when a kernel restarts under it (not Perpend's).
@@ -95,31 +96,8 @@ async function figure(key: string): Promise<number> {
   return Number(text.replace('−', '-'));
 }
 
-/** Types code into a new cell at the end, runs it, and returns its printed output. */
-async function runCell(code: string, expect: RegExp, timeout = 60000): Promise<string> {
-  await page.locator(`.jp-NotebookPanel .jp-CodeCell`).last().click();
-  await page.keyboard.press('Escape');
-  await page.keyboard.press('b');
-  await page.keyboard.press('Enter');
-  await page.keyboard.insertText(code);
-  await page.keyboard.press('Shift+Enter');
-  const out = page.locator('.jp-NotebookPanel .jp-OutputArea-output', { hasText: expect }).last();
-  await out.waitFor({ timeout });
-  const text = (await out.textContent()) ?? '';
-  // The check's cell (and the empty one Shift+Enter made) go again, so that the notebook, saved
-  // and run again later, holds only the demo's cells.
-  await page
-    .locator('.jp-NotebookPanel .jp-CodeCell', { hasText: code.split('\n')[0] })
-    .last()
-    .click();
-  await page.keyboard.press('Escape');
-  for (let i = 0; i < 2; i++) {
-    await page.keyboard.press('Shift+ArrowDown');
-  }
-  await page.keyboard.press('d');
-  await page.keyboard.press('d');
-  return text;
-}
+const runCell = (code: string, expect: RegExp, timeout = 60000): Promise<string> =>
+  runLabCell(page, code, expect, timeout);
 
 async function writeBack(key: string, name: string): Promise<void> {
   await bench().locator(`.pp-RunDetail-array[data-key="${key}"] button`).click();
