@@ -6,10 +6,10 @@
  * their run goes. Screenshots in the light and the dark theme.
  */
 import fs from 'node:fs';
-import path from 'node:path';
 import type { Locator, Page } from 'playwright-core';
-import { LabBrowser } from './browser';
-import { openNotebook, palette, runAllCells, setTheme, runCell as runLabCell } from './lab-actions';
+import { openDemoWorkbench } from './workbench-form';
+import type { LabBrowser } from './browser';
+import { palette, setTheme, runCell as runLabCell } from './lab-actions';
 
 const ALLOW: RegExp[] = [/Canceled future for debug_request/];
 const NOTEBOOK = 'compare-demo.ipynb';
@@ -18,16 +18,8 @@ let lab: LabBrowser;
 let page: Page;
 
 beforeAll(async () => {
-  lab = await LabBrowser.open();
+  lab = await openDemoWorkbench(NOTEBOOK, 'perpend-compare');
   page = lab.page;
-  fs.copyFileSync(
-    path.join(__dirname, '..', '..', 'demo', 'perpend-demo.ipynb'),
-    path.join(lab.state.rootDir, NOTEBOOK)
-  );
-  await openNotebook(page, lab.url(`/lab/workspaces/perpend-compare/tree/${NOTEBOOK}`));
-  await runAllCells(page);
-  await palette(page, 'Open Perpend Workbench');
-  await bench().waitFor({ timeout: 30000 });
 });
 
 afterAll(async () => {

@@ -11,9 +11,10 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import type { Locator, Page } from 'playwright-core';
-import { LabBrowser, SCREENSHOTS } from './browser';
-import { openNotebook, palette, runAllCells, setTheme } from './lab-actions';
-import { workbenchForm, type WorkbenchForm } from './workbench-form';
+import type { LabBrowser } from './browser';
+import { SCREENSHOTS } from './browser';
+import { palette, setTheme } from './lab-actions';
+import { openDemoWorkbench, workbenchForm, type WorkbenchForm } from './workbench-form';
 
 const NOTEBOOK = 'every-view-demo.ipynb';
 
@@ -21,16 +22,8 @@ let lab: LabBrowser;
 let page: Page;
 
 beforeAll(async () => {
-  lab = await LabBrowser.open();
+  lab = await openDemoWorkbench(NOTEBOOK, 'perpend-every-view');
   page = lab.page;
-  fs.copyFileSync(
-    path.join(__dirname, '..', '..', 'demo', 'perpend-demo.ipynb'),
-    path.join(lab.state.rootDir, NOTEBOOK)
-  );
-  await openNotebook(page, lab.url(`/lab/workspaces/perpend-every-view/tree/${NOTEBOOK}`));
-  await runAllCells(page);
-  await palette(page, 'Open Perpend Workbench');
-  await bench().waitFor({ timeout: 30000 });
   // The workbench alone in the main area (the plots get the room a user would give them): the
   // focus in the workbench first, so that the simple interface keeps it in front.
   await bench().locator('.pp-Workbench-lead').click();

@@ -6,18 +6,10 @@
  * the palette after its question; and, after a reload, the panel's result gone and said so.
  * On a copy of the demo notebook in a workspace of its own; screenshots in light and dark.
  */
-import fs from 'node:fs';
-import path from 'node:path';
 import type { Locator, Page } from 'playwright-core';
-import { LabBrowser } from './browser';
-import {
-  openNotebook,
-  palette,
-  runAllCells,
-  setTheme,
-  waitNotebookReady,
-  runCell as runLabCell
-} from './lab-actions';
+import { openDemoWorkbench } from './workbench-form';
+import type { LabBrowser } from './browser';
+import { palette, setTheme, waitNotebookReady, runCell as runLabCell } from './lab-actions';
 
 const ALLOW: RegExp[] = [];
 const NOTEBOOK = 'workbench-commands.ipynb';
@@ -28,16 +20,8 @@ let lab: LabBrowser;
 let page: Page;
 
 beforeAll(async () => {
-  lab = await LabBrowser.open();
+  lab = await openDemoWorkbench(NOTEBOOK, 'perpend-commands');
   page = lab.page;
-  fs.copyFileSync(
-    path.join(__dirname, '..', '..', 'demo', 'perpend-demo.ipynb'),
-    path.join(lab.state.rootDir, NOTEBOOK)
-  );
-  await openNotebook(page, lab.url(`/lab/workspaces/perpend-commands/tree/${NOTEBOOK}`));
-  await runAllCells(page);
-  await palette(page, 'Open Perpend Workbench');
-  await bench().waitFor({ timeout: 30000 });
 });
 
 afterAll(async () => {

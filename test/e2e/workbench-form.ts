@@ -3,7 +3,11 @@
  * of a tool, pick listed arrays, type and choose values (opening *More settings* when the field
  * is folded), save and run, find a set-up's card.
  */
+import fs from 'node:fs';
+import path from 'node:path';
 import type { Locator, Page } from 'playwright-core';
+import { LabBrowser } from './browser';
+import { openNotebook, palette, runAllCells } from './lab-actions';
 
 export interface WorkbenchForm {
   bench(): Locator;
@@ -57,4 +61,22 @@ export function workbenchForm(page: Page): WorkbenchForm {
       }
     }
   };
+}
+
+/**
+ * A browser on a copy of the demo notebook named `notebook`, in a workspace of its own (the
+ * layout it leaves is not restored into the other browser tests' workspaces), its cells run and
+ * its workbench open.
+ */
+export async function openDemoWorkbench(notebook: string, workspace: string): Promise<LabBrowser> {
+  const lab = await LabBrowser.open();
+  fs.copyFileSync(
+    path.join(__dirname, '..', '..', 'demo', 'perpend-demo.ipynb'),
+    path.join(lab.state.rootDir, notebook)
+  );
+  await openNotebook(lab.page, lab.url(`/lab/workspaces/${workspace}/tree/${notebook}`));
+  await runAllCells(lab.page);
+  await palette(lab.page, 'Open Perpend Workbench');
+  await lab.page.locator('.pp-Workbench').first().waitFor({ timeout: 30000 });
+  return lab;
 }

@@ -5,19 +5,10 @@
  * cancelled and re-run, set-ups kept across a reload, a mistyped form, a set-up that follows its
  * source, and a kernel restart during a run. Each journey leaves a screenshot.
  */
-import fs from 'node:fs';
-import path from 'node:path';
 import type { Locator, Page } from 'playwright-core';
-import { LabBrowser } from './browser';
-import {
-  menu,
-  openNotebook,
-  palette,
-  runAllCells,
-  setTheme,
-  waitNotebookReady,
-  runCell as runLabCell
-} from './lab-actions';
+import { openDemoWorkbench } from './workbench-form';
+import type { LabBrowser } from './browser';
+import { menu, palette, setTheme, waitNotebookReady, runCell as runLabCell } from './lab-actions';
 
 // JupyterLab's own debugger says this when a kernel restarts under it (not Perpend's).
 const ALLOW: RegExp[] = [/Canceled future for debug_request/];
@@ -27,18 +18,8 @@ let lab: LabBrowser;
 let page: Page;
 
 beforeAll(async () => {
-  lab = await LabBrowser.open();
+  lab = await openDemoWorkbench(NOTEBOOK, 'perpend-workbench');
   page = lab.page;
-  fs.copyFileSync(
-    path.join(__dirname, '..', '..', 'demo', 'perpend-demo.ipynb'),
-    path.join(lab.state.rootDir, NOTEBOOK)
-  );
-  // A workspace of its own: the layout it leaves (a second notebook, the workbench tab) is not
-  // restored into the other browser tests' default workspace.
-  await openNotebook(page, lab.url(`/lab/workspaces/perpend-workbench/tree/${NOTEBOOK}`));
-  await runAllCells(page);
-  await palette(page, 'Open Perpend Workbench');
-  await bench().waitFor({ timeout: 30000 });
 });
 
 afterAll(async () => {
