@@ -12,6 +12,21 @@ import { FormDialog } from '../form-dialog';
 import { SaveDialogBody } from '../hum-dialog';
 
 /** What writing needs of the kernel (the notebook's bridge). */
+/** Asks the name to write under (the save dialog, its name checked in place); null: cancelled. */
+async function askName(
+  trans: TranslationBundle,
+  title: string,
+  suggested: string
+): Promise<string | null> {
+  const answer = await new FormDialog({
+    title,
+    body: new SaveDialogBody({ trans, name: suggested }),
+    buttons: [Dialog.cancelButton(), Dialog.okButton({ label: trans.__('Write') })],
+    focusNodeSelector: 'input'
+  }).launch();
+  return answer.button.accept && answer.value ? answer.value : null;
+}
+
 export interface IKernelWriter {
   writeArray(
     name: string,
@@ -72,14 +87,12 @@ export async function writeRunArray(
     });
     return;
   }
-  const body = new SaveDialogBody({ trans, name: suggestName(run, key) });
-  const answer = await new FormDialog({
-    title: trans.__('Write %1 of %2 to the kernel', key, run.label),
-    body,
-    buttons: [Dialog.cancelButton(), Dialog.okButton({ label: trans.__('Write') })],
-    focusNodeSelector: 'input'
-  }).launch();
-  if (!answer.button.accept || !answer.value) {
+  const name = await askName(
+    trans,
+    trans.__('Write %1 of %2 to the kernel', key, run.label),
+    suggestName(run, key)
+  );
+  if (name === null) {
     return;
   }
   const array: ArrayData = {
@@ -89,7 +102,7 @@ export async function writeRunArray(
     dtype: a.complex ? 'complex128' : 'float64'
   };
   try {
-    let result = await writer.writeArray(answer.value, array);
+    let result = await writer.writeArray(name, array);
     if (result.status !== 'written') {
       if (!(await confirmReplace(trans, result.name, result.message))) {
         return;
@@ -138,14 +151,12 @@ export async function writeWholeRun(
     });
     return;
   }
-  const body = new SaveDialogBody({ trans, name: suggestName(run, 'run') });
-  const answer = await new FormDialog({
-    title: trans.__('Write the whole run %1 to the kernel', run.label),
-    body,
-    buttons: [Dialog.cancelButton(), Dialog.okButton({ label: trans.__('Write') })],
-    focusNodeSelector: 'input'
-  }).launch();
-  if (!answer.button.accept || !answer.value) {
+  const name = await askName(
+    trans,
+    trans.__('Write the whole run %1 to the kernel', run.label),
+    suggestName(run, 'run')
+  );
+  if (name === null) {
     return;
   }
   const arrays: Record<string, ArrayData> = {};
@@ -169,7 +180,7 @@ export async function writeWholeRun(
     messages: [...run.messages]
   };
   try {
-    let result = await writer.writeRecord(answer.value, arrays, params);
+    let result = await writer.writeRecord(name, arrays, params);
     if (result.status !== 'written') {
       if (!(await confirmReplace(trans, result.name, result.message))) {
         return;
@@ -219,21 +230,16 @@ export async function writePlotData(
     });
     return;
   }
-  const body = new SaveDialogBody({
+  const name = await askName(
     trans,
-    name: columnKey(`plot ${stem}`, new Set()).toLowerCase().slice(0, 40).replace(/_+$/, '')
-  });
-  const answer = await new FormDialog({
-    title: trans.__('Write the data of the plot %1 to the kernel', record.params.title),
-    body,
-    buttons: [Dialog.cancelButton(), Dialog.okButton({ label: trans.__('Write') })],
-    focusNodeSelector: 'input'
-  }).launch();
-  if (!answer.button.accept || !answer.value) {
+    trans.__('Write the data of the plot %1 to the kernel', record.params.title),
+    columnKey(`plot ${stem}`, new Set()).toLowerCase().slice(0, 40).replace(/_+$/, '')
+  );
+  if (name === null) {
     return;
   }
   try {
-    let result = await writer.writeRecord(answer.value, record.arrays, record.params);
+    let result = await writer.writeRecord(name, record.arrays, record.params);
     if (result.status !== 'written') {
       if (!(await confirmReplace(trans, result.name, result.message))) {
         return;
