@@ -31,7 +31,9 @@
  * Strides follow the core's convention (DESIGN §3): element k of a real signal is
  * `x[offset + k*stride]`; of a complex signal, `x[2*(offset + k*stride)]` (re) and the next index
  * (im). The kernels check nothing and allocate nothing; `envelope` checks its arguments once and
- * allocates the outputs only when the caller did not supply them.
+ * allocates the outputs only when the caller did not supply them. The kernels index with int32
+ * arithmetic: the typed array must hold fewer than 2³¹ elements (`envelope` and the builder refuse
+ * larger ones; 2³¹ float64 samples are 16 GiB, far above any per-run memory limit).
  */
 import { checkInteger, describe } from '../errors';
 import { checkSignal, type CheckedSignal } from './signal';
@@ -66,6 +68,12 @@ function rejectRadius(mn: number, mx: number, c: number): number {
  * skipped). Results in scanMinK, scanMaxK, scanMin, scanMax.
  */
 function scanReal(x: Float64Array | Float32Array, p: number, sx: number, count: number): void {
+  // Indices fit in int32 (arrays of 2³¹ elements or more are refused by `envelope` and
+  // `EnvelopeBuilder.add`); saying so lets V8 index without a float-to-int check per access (the
+  // column starts come from a floating division).
+  p = p | 0;
+  sx = sx | 0;
+  count = count | 0;
   let k = 0;
   let v = x[p];
   // leading NaNs: a comparison with NaN is always false, so start from the first number
@@ -119,39 +127,14 @@ function scanReal(x: Float64Array | Float32Array, p: number, sx: number, count: 
         r = rejectRadius(mn, mx, c);
       }
     }
-  } else {
-    const s2 = 2 * sx;
-    const s3 = 3 * sx;
-    const s4 = 4 * sx;
-    const s5 = 5 * sx;
-    const s6 = 6 * sx;
-    const s7 = 7 * sx;
-    const s8 = 8 * sx;
-    for (; k + 7 < count; k += 8, p += s8) {
-      if (
-        Math.abs(x[p] - c) >= r ||
-        Math.abs(x[p + sx] - c) >= r ||
-        Math.abs(x[p + s2] - c) >= r ||
-        Math.abs(x[p + s3] - c) >= r ||
-        Math.abs(x[p + s4] - c) >= r ||
-        Math.abs(x[p + s5] - c) >= r ||
-        Math.abs(x[p + s6] - c) >= r ||
-        Math.abs(x[p + s7] - c) >= r
-      ) {
-        for (let j = 0, q = p; j < 8; j++, q += sx) {
-          const u = x[q];
-          if (u < mn) {
-            mn = u;
-            imn = k + j;
-          } else if (u > mx) {
-            mx = u;
-            imx = k + j;
-          }
-        }
-        c = 0.5 * mn + 0.5 * mx;
-        r = rejectRadius(mn, mx, c);
-      }
-    }
+  } else if (k + 7 < count) {
+    scanStridedBlocks(x, p, sx, k, count, mn, mx, imn, imx);
+    k = blockK;
+    p = blockP;
+    mn = scanMin;
+    mx = scanMax;
+    imn = scanMinK;
+    imx = scanMaxK;
   }
   for (; k < count; k++, p += sx) {
     const u = x[p];
@@ -170,11 +153,81 @@ function scanReal(x: Float64Array | Float32Array, p: number, sx: number, count: 
   scanMax = mx;
 }
 
+// Where scanStridedBlocks stopped (no allocation per call).
+let blockK = 0;
+let blockP = 0;
+
+/**
+ * The eight-at-a-time block loop of scanReal for a stride other than 1 (a function of its own so
+ * that the unit-stride loop, the common case, compiles alone), from sample k at x[p] with the
+ * extremes so far. Leaves the extremes in scanMin/scanMax/scanMinK/scanMaxK and the next sample
+ * in blockK/blockP.
+ */
+function scanStridedBlocks(
+  x: Float64Array | Float32Array,
+  p: number,
+  sx: number,
+  k: number,
+  count: number,
+  mn: number,
+  mx: number,
+  imn: number,
+  imx: number
+): void {
+  p = p | 0;
+  sx = sx | 0;
+  k = k | 0;
+  count = count | 0;
+  let c = 0.5 * mn + 0.5 * mx;
+  let r = rejectRadius(mn, mx, c);
+  const s2 = 2 * sx;
+  const s3 = 3 * sx;
+  const s4 = 4 * sx;
+  const s5 = 5 * sx;
+  const s6 = 6 * sx;
+  const s7 = 7 * sx;
+  const s8 = 8 * sx;
+  for (; k + 7 < count; k += 8, p += s8) {
+    if (
+      Math.abs(x[p] - c) >= r ||
+      Math.abs(x[p + sx] - c) >= r ||
+      Math.abs(x[p + s2] - c) >= r ||
+      Math.abs(x[p + s3] - c) >= r ||
+      Math.abs(x[p + s4] - c) >= r ||
+      Math.abs(x[p + s5] - c) >= r ||
+      Math.abs(x[p + s6] - c) >= r ||
+      Math.abs(x[p + s7] - c) >= r
+    ) {
+      for (let j = 0, q = p; j < 8; j++, q += sx) {
+        const u = x[q];
+        if (u < mn) {
+          mn = u;
+          imn = k + j;
+        } else if (u > mx) {
+          mx = u;
+          imx = k + j;
+        }
+      }
+      c = 0.5 * mn + 0.5 * mx;
+      r = rejectRadius(mn, mx, c);
+    }
+  }
+  blockK = k;
+  blockP = p;
+  scanMin = mn;
+  scanMax = mx;
+  scanMinK = imn;
+  scanMaxK = imx;
+}
+
 /**
  * As scanReal on the squared magnitude of complex samples; q = 2·(element index) of the first
  * sample's real part, s2 = 2·stride. scanMin/scanMax hold squared magnitudes.
  */
 function scanAbs2(x: Float64Array | Float32Array, q: number, s2: number, count: number): void {
+  q = q | 0;
+  s2 = s2 | 0;
+  count = count | 0;
   let k = 0;
   let re = x[q];
   let im = x[q + 1];
@@ -371,6 +424,18 @@ export function m4EnvelopeAbs(
   return w;
 }
 
+/** Largest typed-array length the kernels index (int32 arithmetic). */
+const MAX_INDEXABLE = 0x7fffffff;
+
+function checkIndexable(name: string, sig: CheckedSignal): CheckedSignal {
+  if (sig.data.length > MAX_INDEXABLE) {
+    throw new RangeError(
+      `${name} is backed by ${sig.data.length} numbers; the envelope indexes at most ${MAX_INDEXABLE} (2³¹ − 1)`
+    );
+  }
+  return sig;
+}
+
 export interface EnvelopeOptions {
   /** Number of pixel columns (≥ 1). */
   columns: number;
@@ -400,7 +465,7 @@ export interface Envelope {
  * comment for columns, ties and NaN). Checks its arguments once; the kernels allocate nothing.
  */
 export function envelope(signal: unknown, options: EnvelopeOptions): Envelope {
-  const sig = checkSignal('signal', signal, options?.complex ?? false);
+  const sig = checkIndexable('signal', checkSignal('signal', signal, options?.complex ?? false));
   const columns = checkInteger('options.columns', options.columns, 1, 1 << 24);
   const i0 = checkInteger('options.i0', options.i0 ?? 0, 0, sig.n);
   const i1 = checkInteger('options.i1', options.i1 ?? sig.n, i0, sig.n);
@@ -538,7 +603,7 @@ export class EnvelopeBuilder {
    * The chunk is a typed array (contiguous) or a `SignalView`, complex as the builder.
    */
   add(chunk: unknown, start: number): this {
-    const sig = checkSignal('chunk', chunk, this.complex);
+    const sig = checkIndexable('chunk', checkSignal('chunk', chunk, this.complex));
     if (sig.complex !== this.complex) {
       throw new RangeError(
         `chunk is ${sig.complex ? 'complex' : 'real'} but the builder is ${this.complex ? 'complex' : 'real'}`
