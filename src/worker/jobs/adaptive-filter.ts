@@ -198,10 +198,12 @@ export async function runAdaptiveFilter(
     const dk64 = src.d[k];
     for (let i = 0; i < N * W; i++) {
       energyD += dk64[i] * dk64[i];
-      energyE += e[k * N * W + i] * e[k * N * W + i];
     }
   }
   const curves = squaredError(e, complex); // K·N values, trial-major
+  for (let i = 0; i < curves.length; i++) {
+    energyE += curves[i];
+  }
   const band = K > 1 ? ensembleAverage(curves, { K }) : null;
   const curve = band ? band.mean : curves;
   let smoothed: Float64Array | null = null;

@@ -37,6 +37,17 @@ test('moving average, ensemble mean/std and normal quantiles match numpy/scipy',
   });
   const ma = movingAverage(curve, 37);
   expect(maxAbsDiff(ma, readF64(dir, 'ma.bin'))).toBeLessThan(1e-12);
+  // the Float64Array path (blocks, hoisted branches) gives exactly what the general path gives,
+  // windows shorter and longer than a re-summation block, lengths off the block grid
+  for (const w of [1, 37, 4095, 4096, 5000]) {
+    for (const n of [N, 8193]) {
+      const c = curve.subarray(0, n);
+      expect(movingAverage(c, w)).toEqual(Float64Array.from(movingAverage(Array.from(c), w)));
+    }
+  }
+  const e = rng.gaussArray(2 * 513, true);
+  expect(squaredError(e, true)).toEqual(squaredError(Array.from(e), true));
+  expect(squaredError(e)).toEqual(squaredError(Array.from(e)));
   const ens = ensembleAverage(trials, { K, confidence: 0.9 });
   expect(maxAbsDiff(ens.mean, readF64(dir, 'mean.bin'))).toBeLessThan(1e-13);
   expect(maxAbsDiff(ens.std, readF64(dir, 'std.bin'))).toBeLessThan(1e-12);
