@@ -146,7 +146,8 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
           };
           sources.setBridgeOptions({
             timeoutMs: values.requestTimeoutSeconds * 1000,
-            maxBytes: values.maxArrayMiB * 1024 * 1024
+            maxBytes: values.maxArrayMiB * 1024 * 1024,
+            keepReadBytes: values.keepReadMiB * 1024 * 1024
           });
           follower.refreshAfterExecution = values.refreshAfterExecution;
           perpend.settingsChanged.emit(values);

@@ -7,6 +7,7 @@ import type { SourcesModel } from './model/sources';
 export interface IPerpendSettings {
   requestTimeoutSeconds: number;
   maxArrayMiB: number;
+  keepReadMiB: number;
   refreshAfterExecution: boolean;
 }
 
@@ -14,6 +15,7 @@ export interface IPerpendSettings {
 export const DEFAULT_SETTINGS: IPerpendSettings = {
   requestTimeoutSeconds: 60,
   maxArrayMiB: 512,
+  keepReadMiB: 256,
   refreshAfterExecution: true
 };
 

@@ -377,7 +377,11 @@ namespace CommandIDs {
 namespace Private {
   /** The bridge options the main plugin's settings give. */
   export function bridgeOptions(v: IPerpendSettings): Partial<KernelBridge.IOptions> {
-    return { timeoutMs: v.requestTimeoutSeconds * 1000, maxBytes: v.maxArrayMiB * 1024 * 1024 };
+    return {
+      timeoutMs: v.requestTimeoutSeconds * 1000,
+      maxBytes: v.maxArrayMiB * 1024 * 1024,
+      keepReadBytes: v.keepReadMiB * 1024 * 1024
+    };
   }
 
   /** What new set-ups start from: a kernel variable `fs` to name, a mains fundamental `f0`. */

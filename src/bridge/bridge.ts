@@ -24,6 +24,7 @@ import type { SessionLedger } from './ledger';
 import { ArrayLister, ListedShapes } from './listing';
 import { badArgument } from './names';
 import { ArrayReader } from './read';
+import { ReadCache } from './read-cache';
 import { MiB } from './replies';
 import { KernelRequests } from './requests';
 import type {
@@ -63,6 +64,12 @@ export namespace KernelBridge {
     /** Bytes per binary chunk, Perpend to kernel (kept far below 10 MiB). Default 4 MiB. */
     writeChunkBytes?: number;
     /**
+     * Most bytes of arrays read before that are kept, so that a read the kernel finds unchanged
+     * (same SHA-256 of its bytes) is not sent again (see `read-cache.ts`). 0 keeps none. Default
+     * 256 MiB.
+     */
+    keepReadBytes?: number;
+    /**
      * Translates every sentence the bridge makes (errors, notes, questions, warnings, activity
      * labels), domain 'perpend'. Default: English, as JupyterLab's `nullTranslator` gives.
      */
@@ -93,6 +100,11 @@ export class KernelBridge implements IDisposable {
       readChunk: clampChunk('readChunkBytes', options.readChunkBytes ?? 1 * MiB, 64 * MiB),
       writeChunk: clampChunk('writeChunkBytes', options.writeChunkBytes ?? 4 * MiB, 8 * MiB)
     };
+    const keep = options.keepReadBytes ?? 256 * MiB;
+    if (!(keep >= 0) || !Number.isFinite(keep)) {
+      throw badArgument(`keepReadBytes must be a finite number ≥ 0, got ${String(keep)}`);
+    }
+    this._cache = new ReadCache(keep);
     const ledger = options.ledger ?? null;
     this._requests = new KernelRequests(
       options.kernel,
@@ -106,7 +118,14 @@ export class KernelBridge implements IDisposable {
     // What the latest listing showed, so that a read of a re-bound name is said, not done.
     const listed = new ListedShapes();
     this._lister = new ArrayLister(this._requests, verifier, ledger, listed);
-    this._reader = new ArrayReader(this._requests, this._channel, this._limits, ledger, listed);
+    this._reader = new ArrayReader(
+      this._requests,
+      this._channel,
+      this._limits,
+      ledger,
+      listed,
+      this._cache
+    );
     this._writer = new ArrayWriter(this._requests, this._channel, this._limits);
   }
 
@@ -145,10 +164,19 @@ export class KernelBridge implements IDisposable {
     this._requests.timeoutMs = positive('timeoutMs', v);
   }
 
+  /**
+   * Reads served from a copy kept by the bridge (the kernel found the array unchanged) and
+   * reads whose bytes were sent, over the comm, since the bridge was made.
+   */
+  get readCounts(): { reused: number; sent: number } {
+    return { ...this._cache.counts };
+  }
+
   dispose(): void {
     if (this._requests.isDisposed) {
       return;
     }
+    this._cache.clear();
     this._requests.dispose();
     this._channel.dispose();
     Signal.clearData(this);
@@ -269,6 +297,7 @@ export class KernelBridge implements IDisposable {
   private readonly _verifier: CellVerifier;
   private readonly _lister: ArrayLister;
   private readonly _reader: ArrayReader;
+  private readonly _cache: ReadCache;
   private readonly _writer: ArrayWriter;
   private readonly _activityChanged = new Signal<this, KernelBridge.IActivity>(this);
 }

@@ -116,6 +116,9 @@ export function parseShape(v: unknown): number[] | null {
 }
 
 /** The head of an array transfer, checked for consistency. */
+/** A SHA-256 digest as the helper writes it: 64 lowercase hex digits. */
+const SHA256_HEX = /^[0-9a-f]{64}$/;
+
 export interface TransferHeader {
   shape: number[];
   dtype: string;
@@ -123,6 +126,10 @@ export interface TransferHeader {
   nbytes: number;
   chunks: number;
   chunk: number;
+  /** SHA-256 (hex) of the bytes, when the kernel sent it (comm reads). */
+  digest: string | null;
+  /** The kernel found the copy the front end named (by digest) identical: no chunks follow. */
+  same: boolean;
 }
 
 /**
@@ -164,5 +171,14 @@ export function parseHeader(
   if (nbytes > maxBytes) {
     throw malformed(trans, label);
   }
-  return { shape: shape.slice(), dtype, complex, nbytes, chunks, chunk };
+  const digest = d.digest ?? null;
+  const same = d.same ?? false;
+  if (
+    (digest !== null && (typeof digest !== 'string' || !SHA256_HEX.test(digest))) ||
+    typeof same !== 'boolean' ||
+    (same && digest === null)
+  ) {
+    throw malformed(trans, label);
+  }
+  return { shape: shape.slice(), dtype, complex, nbytes, chunks, chunk, digest, same };
 }
