@@ -21,7 +21,7 @@ export interface Endpoint {
 }
 
 /** Minimum interval between two progress messages of one job, in milliseconds. */
-const PROGRESS_INTERVAL_MS = 25;
+const PROGRESS_INTERVAL_MS = 100;
 
 /**
  * A yield to the event loop that lets pending messages in (a macrotask, unclamped). In a browser
