@@ -150,6 +150,7 @@ const plugin: JupyterFrontEndPlugin<IPerpend> = {
             keepReadBytes: values.keepReadMiB * 1024 * 1024
           });
           follower.refreshAfterExecution = values.refreshAfterExecution;
+          perpend.settings = values;
           perpend.settingsChanged.emit(values);
         };
         apply();
@@ -168,6 +169,8 @@ namespace Private {
       readonly loaded: LoadedArraysModel
     ) {}
     readonly settingsChanged: Signal<IPerpend, IPerpendSettings> = new Signal(this);
+    /** The values applied last (the defaults until the settings are loaded). */
+    settings: IPerpendSettings = { ...DEFAULT_SETTINGS };
   }
 }
 

@@ -27,6 +27,11 @@ export interface IPerpend {
   readonly loaded: LoadedArraysModel;
   /** Emitted when the settings change. */
   readonly settingsChanged: ISignal<IPerpend, IPerpendSettings>;
+  /**
+   * The settings applied last: the defaults until they are loaded. A plugin that activates
+   * after the settings were loaded starts from these (it has missed the first emission).
+   */
+  readonly settings: IPerpendSettings;
 }
 
 export const IPerpend = new Token<IPerpend>('perpend:IPerpend', 'The Perpend workbench.');

@@ -67,7 +67,8 @@ const plugin: JupyterFrontEndPlugin<void> = {
       ...Private.bridgeOptions(v),
       translator: translator ?? undefined
     });
-    let bridgeOptions = withTranslator(DEFAULT_SETTINGS);
+    // The main plugin's settings may be loaded before this plugin activates: start from them.
+    let bridgeOptions = withTranslator(perpend?.settings ?? DEFAULT_SETTINGS);
     let defaults: WorkbenchDefaults = { ...BUILTIN_DEFAULTS };
     let poolSize = 0;
     let memoryMiB = 1024;
