@@ -7,6 +7,7 @@
 import type { ISignal } from '@lumino/signaling';
 import type { Widget } from '@lumino/widgets';
 import type { Trans } from '../../model/workbench/rules';
+import { cancelDraw, requestDraw } from './draw-queue';
 import { CsvTooLarge } from './figure';
 import { fileStem, type CsvColumn } from './csv';
 import { PlotDriver } from './plot-driver';
@@ -97,8 +98,9 @@ export class PlotPane {
   }
 
   /**
-   * Draws at the graph's size, on the next animation frame (bursts conflate), and only while
-   * the owner widget is visible; otherwise when it is next shown (call `onShown`).
+   * Draws at the graph's size, on a coming animation frame (bursts conflate; the page's plots
+   * take turns, one per frame: draw-queue.ts), and only while the owner widget is visible;
+   * otherwise when it is next shown (call `onShown`).
    */
   redraw(): void {
     if (this._disposed) {
@@ -108,13 +110,7 @@ export class PlotPane {
       this._stale = true;
       return;
     }
-    if (this._frame !== 0) {
-      return;
-    }
-    this._frame = requestAnimationFrame(() => {
-      this._frame = 0;
-      this._drawNow();
-    });
+    requestDraw(this._drawQueued);
   }
 
   /** The owner was shown: draw what was asked for while hidden. */
@@ -192,10 +188,7 @@ export class PlotPane {
       return;
     }
     this._disposed = true;
-    if (this._frame !== 0) {
-      cancelAnimationFrame(this._frame);
-      this._frame = 0;
-    }
+    cancelDraw(this._drawQueued);
     if (this._themeTimer !== null) {
       clearTimeout(this._themeTimer);
       this._themeTimer = null;
@@ -262,7 +255,8 @@ export class PlotPane {
   private readonly _themeChanged: ISignal<unknown, unknown> | null;
   private _themeObserver: MutationObserver | null = null;
   private _resizeObserver: ResizeObserver | null = null;
-  private _frame = 0;
+  /** This pane's turn in the page's draw queue (one plot per animation frame). */
+  private readonly _drawQueued = (): void => this._drawNow();
   private _themeTimer: ReturnType<typeof setTimeout> | null = null;
   private _stale = false;
   private _loaded = false;

@@ -1,0 +1,61 @@
+/**
+ * The page's plots take turns, one per animation frame (src/panel/plots/draw-queue.ts): a
+ * request made twice while queued is drawn once, in its first place; a withdrawn one is not drawn.
+ * Common practice (a frame-paced queue), no outside source.
+ */
+import { cancelDraw, requestDraw } from '../../../src/panel/plots/draw-queue';
+
+let frames: Array<() => void> = [];
+beforeEach(() => {
+  frames = [];
+  (globalThis as { requestAnimationFrame?: unknown }).requestAnimationFrame = (f: () => void) =>
+    frames.push(f);
+  (globalThis as { cancelAnimationFrame?: unknown }).cancelAnimationFrame = (id: number) => {
+    frames[id - 1] = () => undefined;
+  };
+});
+
+/** Runs the callbacks of one frame (those asked for before it started). */
+function frame(): void {
+  const now = frames;
+  frames = [];
+  now.forEach(f => f());
+}
+
+test('one draw per frame, in the order asked, each once', () => {
+  const drawn: string[] = [];
+  const a = (): number => drawn.push('a');
+  const b = (): number => drawn.push('b');
+  const c = (): number => drawn.push('c');
+  requestDraw(a);
+  requestDraw(b);
+  requestDraw(a); // already queued: keeps its place
+  requestDraw(c);
+  expect(frames).toHaveLength(1);
+  frame();
+  expect(drawn).toEqual(['a']);
+  frame();
+  expect(drawn).toEqual(['a', 'b']);
+  requestDraw(a); // asked again after its turn: queued at the end
+  frame();
+  frame();
+  expect(drawn).toEqual(['a', 'b', 'c', 'a']);
+  frame();
+  expect(frames).toHaveLength(0);
+});
+
+test('a withdrawn request is not drawn; an empty queue asks for no frame', () => {
+  const drawn: string[] = [];
+  const a = (): number => drawn.push('a');
+  const b = (): number => drawn.push('b');
+  requestDraw(a);
+  requestDraw(b);
+  cancelDraw(a);
+  frame();
+  expect(drawn).toEqual(['b']);
+  requestDraw(a);
+  cancelDraw(a);
+  frame();
+  expect(drawn).toEqual(['b']);
+  expect(frames).toHaveLength(0);
+});
