@@ -18,7 +18,7 @@
  * array, as the goals count it.
  * Times are taken in the page (performance.now at the click and at the DOM change), medians of
  * the repeats. The worker's own rate against the core's is `node scripts/bench-run.mjs
- * bench/worker.ts`. Exits 0 whatever it measures.
+ * bench/worker.ts` (`npm run bench:worker`). Exits 0 whatever it measures.
  */
 import { execSync } from 'node:child_process';
 import fs from 'node:fs';
