@@ -7,7 +7,7 @@ import type { Trans } from '../../model/workbench/rules';
 import type { Run } from '../../model/workbench/runs';
 import { csvText, withUnit } from './csv';
 import { emptySpec, type PlotSpec } from './spec';
-import { defaultSmoothing, timeAxis } from './views';
+import { defaultSmoothing, figure, timeAxis } from './views';
 
 /** One row of the comparison table. */
 export interface CompareRow {
@@ -119,6 +119,36 @@ export function compareCsv(trans: Trans, rows: ReadonlyArray<CompareRow>): strin
   );
 }
 
+// Curves smoothed on the page, per learning curve and window: the comparison is built again on
+// every change of the compared runs (a sweep's runs end one after another), a curve once.
+const smoothedOnPage = new WeakMap<Float64Array, Map<number, Float64Array>>();
+
+/**
+ * A run's learning curve smoothed over `w` samples: the worker's when it was smoothed over that
+ * window, else smoothed here once and kept while the curve lives.
+ */
+function smoothedCurve(r: Run, w: number): Float64Array {
+  const lc = r.arrays.learningCurve.data;
+  const pre = r.arrays.learningCurveSmoothed?.data;
+  if (w <= 1) {
+    return lc;
+  }
+  if (pre && w === figure(r, 'smoothingWindow')) {
+    return pre;
+  }
+  let byWindow = smoothedOnPage.get(lc);
+  if (!byWindow) {
+    byWindow = new Map();
+    smoothedOnPage.set(lc, byWindow);
+  }
+  let out = byWindow.get(w);
+  if (!out) {
+    out = movingAverage(lc, w);
+    byWindow.set(w, out);
+  }
+  return out;
+}
+
 /**
  * The learning curves of the runs on one plot, each smoothed over `smoothing` samples (null:
  * the default for the longest), in seconds when every run has the same sample rate.
@@ -133,7 +163,11 @@ export function compareSpec(
   const fs = rates.size === 1 ? (list[0]?.fs ?? null) : null;
   const t = timeAxis(trans, fs);
   const longest = list.reduce((m, r) => Math.max(m, r.arrays.learningCurve.data.length), 0);
-  const w = smoothing ?? defaultSmoothing(longest);
+  // By default the window the runs' figures were read off, when they share one (their curves
+  // come smoothed from the worker), else the default for the longest.
+  const windows = new Set(list.map(r => figure(r, 'smoothingWindow')));
+  const shared = windows.size === 1 ? [...windows][0] : null;
+  const w = smoothing ?? shared ?? defaultSmoothing(longest);
   const spec = emptySpec(
     trans.__('Learning curves, smoothed over %1 samples', w),
     t.title,
@@ -142,8 +176,7 @@ export function compareSpec(
   );
   const labels = distinctLabels(list);
   list.forEach((r, i) => {
-    const lc = r.arrays.learningCurve.data;
-    const data = w > 1 ? movingAverage(lc, w) : lc;
+    const data = smoothedCurve(r, w);
     spec.lines.push({
       name: labels[i],
       signal: { data, complex: false, n: data.length, stride: 1, offset: 0 },

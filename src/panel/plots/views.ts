@@ -112,7 +112,8 @@ export function viewLabel(trans: Trans, v: ViewKind): string {
   }
 }
 
-function figure(run: Run, key: string): number | null {
+/** A run's figure by key, when it holds a finite number. */
+export function figure(run: Run, key: string): number | null {
   const f = run.figures.find(g => g.key === key);
   return f && Number.isFinite(f.value) ? f.value : null;
 }

@@ -8,6 +8,7 @@ import {
 } from '../../../src/panel/plots/compare';
 import type { IRunSource } from '../../../src/panel/plots/run-source';
 import type { WorkbenchModel } from '../../../src/model/workbench/workbench';
+import { movingAverage } from '../../../src/core';
 import { cancellationRun, makeRun, removal, trans } from './fixtures';
 
 // The widgets take any run source; the workbench model is one (checked by the type checker).
@@ -84,4 +85,33 @@ test('runs sharing a label are numbered in the legend and the table', () => {
     'RLS · M 4 · λ 0.99 (1)',
     'RLS · M 4 · λ 0.99 (2)'
   ]);
+});
+
+test('the overlay takes the curves the worker smoothed when the runs share its window, else smooths once', () => {
+  // the worker's curve: the trailing moving average over the window the figures were read off
+  const withSmoothed = (r: typeof a, id: string): typeof a => {
+    const lc = r.arrays.learningCurve!.data;
+    return {
+      ...r,
+      id,
+      arrays: {
+        ...r.arrays,
+        learningCurveSmoothed: { ...r.arrays.learningCurve!, data: movingAverage(lc, 20) }
+      },
+      figures: [...r.figures, { key: 'smoothingWindow', label: '', value: 20, unit: 'samples' }]
+    };
+  };
+  const s1 = withSmoothed(a, 's1');
+  const s2 = withSmoothed(b, 's2');
+  const spec = compareSpec(trans, [s1, s2], null);
+  expect(spec.title).toBe('Learning curves, smoothed over 20 samples');
+  expect(spec.lines[0].signal.data).toBe(s1.arrays.learningCurveSmoothed!.data);
+  expect(spec.lines[1].signal.data).toBe(s2.arrays.learningCurveSmoothed!.data);
+  // another window: smoothed on the page (the same trailing average), once per curve and window
+  const other = compareSpec(trans, [s1, s2], 7);
+  const want = movingAverage(s1.arrays.learningCurve!.data, 7);
+  expect(Array.from(other.lines[0].signal.data)).toEqual(Array.from(want));
+  expect(compareSpec(trans, [s1, s2], 7).lines[0].signal.data).toBe(other.lines[0].signal.data);
+  // runs whose windows differ: the default for the longest (N / 100 = 10 here)
+  expect(compareSpec(trans, [s1, a], null).title).toBe('Learning curves, smoothed over 10 samples');
 });
