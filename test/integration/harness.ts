@@ -8,7 +8,7 @@
  * failing test run does not leave a server behind.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
-import { randomBytes } from 'node:crypto';
+import { createHash, randomBytes } from 'node:crypto';
 import { mkdirSync, existsSync, createWriteStream, readdirSync, rmSync, statSync } from 'node:fs';
 import { createServer } from 'node:net';
 import path from 'node:path';
@@ -310,3 +310,26 @@ console.debug = (...args: unknown[]): void => {
   }
   debug(...args);
 };
+
+/** SHA-256 (hex) of a Float64Array's bytes, as the kernel-side checks hash them. */
+export function sha256Of(d: Float64Array): string {
+  return createHash('sha256')
+    .update(new Uint8Array(d.buffer, d.byteOffset, d.byteLength))
+    .digest('hex');
+}
+
+/**
+ * SHA-256 (hex) of `np.ascontiguousarray(expr, '<f8' or '<c16').tobytes()` in the kernel: numpy's
+ * own conversion of each dtype to float64/complex128, the reference for what a read returns.
+ */
+export async function kernelSha256(
+  kernel: Kernel.IKernelConnection,
+  expr: string,
+  complex: boolean
+): Promise<string> {
+  const t = await evalText(
+    kernel,
+    `__import__('hashlib').sha256(__import__('numpy').ascontiguousarray(${expr}, dtype='${complex ? '<c16' : '<f8'}').tobytes()).hexdigest()`
+  );
+  return t.replace(/'/g, '');
+}

@@ -5,24 +5,16 @@
  * `np.ascontiguousarray(v, '<f8' or '<c16').tobytes()`, on every read, reused or sent; a value
  * changed in place (same name, same shape) is sent again.
  */
-import { createHash } from 'node:crypto';
 import type { Kernel } from '@jupyterlab/services';
 import { KernelBridge, type ArrayData } from '../../src/bridge';
-import { evalText, runCell, startServer, type JupyterServer } from './harness';
+import { kernelSha256, runCell, sha256Of, startServer, type JupyterServer } from './harness';
 
 let server: JupyterServer;
 let kernel: Kernel.IKernelConnection;
 
-const sha = (d: Float64Array): string =>
-  createHash('sha256')
-    .update(new Uint8Array(d.buffer, d.byteOffset, d.byteLength))
-    .digest('hex');
-
+const sha = sha256Of;
 const kernelSha = (expr: string, complex: boolean): Promise<string> =>
-  evalText(
-    kernel,
-    `__import__('hashlib').sha256(__import__('numpy').ascontiguousarray(${expr}, dtype='${complex ? '<c16' : '<f8'}').tobytes()).hexdigest()`
-  ).then(t => t.replace(/'/g, ''));
+  kernelSha256(kernel, expr, complex);
 
 async function run(code: string): Promise<void> {
   const r = await runCell(kernel, code);
