@@ -14,13 +14,16 @@
  *    (speedup goal ≥ 1.6 on 2 cores), re-run on unchanged data as installed (the arrays read
  *    before are kept, the kernel confirms them by digest: `speedup`), and with every read moving
  *    the arrays (keepReadMiB 0: `speedup_every_read`, the serial read included).
+ *  - worker-rate: the job's own time in the page's worker for the click-to-result runs (as the
+ *    run reports it) against bench:filters' `--case` process for the same case
+ *    (`worker_vs_core`, goal ≥ 0.85).
  * The stall, cancel and click-to-result cases run with keepReadMiB 0: every read moves the whole
  * array, as the goals count it.
  * Times are taken in the page (performance.now at the click and at the DOM change), medians of
- * the repeats. The worker's own rate against the core's is `node scripts/bench-run.mjs
- * bench/worker.ts` (`npm run bench:worker`). Exits 0 whatever it measures.
+ * the repeats. The same rate in a Node worker thread is `npm run bench:worker`. Exits 0 whatever
+ * it measures.
  */
-import { execSync } from 'node:child_process';
+import { execSync, spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -86,6 +89,21 @@ async function setKeep(state: ILabState, keepReadMiB: number): Promise<void> {
   if (!r.ok) {
     throw new Error(`settings PUT: ${r.status}`);
   }
+}
+
+/** bench:filters' own `--case` process for QR-RLS, M = 32, real float64, 1e6 samples: its ms. */
+function coreCaseMs(): number | null {
+  const r = spawnSync(
+    process.execPath,
+    [
+      path.join(__dirname, 'filters.js'),
+      '--case',
+      JSON.stringify({ algorithm: 'qr-rls', M: 32, complex: false, N: 1e6, precision: 'float64' })
+    ],
+    { encoding: 'utf8' }
+  );
+  const m = /^CASE_MS (\S+)$/m.exec(r.stdout ?? '');
+  return r.status === 0 && m ? Number(m[1]) : null;
 }
 
 async function openBench(page: Page, state: ILabState): Promise<void> {
@@ -282,6 +300,7 @@ async function main(): Promise<void> {
     // Click to result, M = 32, the read from the kernel included.
     await setup(page, 'result M32', 32);
     const results: number[] = [];
+    const computeMs: number[] = [];
     for (let i = 0; i < REPEATS; i++) {
       const done = whenStatus(page, 'result M32', 'ok');
       const t0 =
@@ -299,6 +318,20 @@ async function main(): Promise<void> {
               return t;
             });
       results.push((await done) - t0);
+      // The job's own time in the page's worker, as the run reports it.
+      const ms = await page
+        .waitForFunction(
+          () => {
+            const el = document.querySelector<HTMLElement>('.pp-RunDetail-timing');
+            const v = Number(el?.dataset.computeMs || NaN);
+            return Number.isFinite(v) && v > 0 ? v : null;
+          },
+          undefined,
+          { timeout: 10000 }
+        )
+        .then(h => h.jsonValue() as Promise<number>)
+        .catch(() => NaN);
+      computeMs.push(ms);
     }
     const click = median(results);
     out({
@@ -309,6 +342,23 @@ async function main(): Promise<void> {
       repeats: REPEATS,
       target: 2000,
       met: click <= 2000
+    });
+    // The run's rate in the page's worker against bench:filters' rate for the same case (its own
+    // `--case` process: QR-RLS, M = 32, real float64, 1e6 samples; QR-RLS does the same work
+    // whatever the values).
+    const core = coreCaseMs();
+    const inWorker = median(computeMs.filter(Number.isFinite));
+    const ratio = core !== null && inWorker > 0 ? core / inWorker : NaN;
+    out({
+      name: 'worker-rate',
+      samples: 1e6,
+      M: 32,
+      worker_ms: inWorker,
+      filters_case_ms: core,
+      worker_vs_core: ratio,
+      repeats: REPEATS,
+      target: 0.85,
+      met: ratio >= 0.85
     });
 
     // A sweep of 4 values: pool of 2 against pool of 1, with every read moving the arrays

@@ -123,6 +123,8 @@ export class RunDetail extends RenderWidget {
   private _timing(r: Run): HTMLElement {
     const p = document.createElement('p');
     p.className = 'pp-RunDetail-timing';
+    // the worker's own time, unrounded, for tools that read it (the benchmark's job rate)
+    p.dataset.computeMs = r.computeMs === null ? '' : String(r.computeMs);
     p.textContent = this._trans.__(
       'Read from the kernel in %1, computed in %2 (in a worker, off the page).',
       formatDuration(r.readMs),
