@@ -2,12 +2,11 @@
  * Comparing runs: their learning curves on one plot (the legend names each run) and a table of
  * the figures read off them, sortable and exportable as CSV.
  */
-import { movingAverage } from '../../core';
 import type { Trans } from '../../model/workbench/rules';
 import type { Run } from '../../model/workbench/runs';
 import { csvText, withUnit } from './csv';
 import { emptySpec, type PlotSpec } from './spec';
-import { defaultSmoothing, figure, timeAxis } from './views';
+import { defaultSmoothing, figure, smoothedLearningCurve, timeAxis } from './views';
 
 /** One row of the comparison table. */
 export interface CompareRow {
@@ -119,36 +118,6 @@ export function compareCsv(trans: Trans, rows: ReadonlyArray<CompareRow>): strin
   );
 }
 
-// Curves smoothed on the page, per learning curve and window: the comparison is built again on
-// every change of the compared runs (a sweep's runs end one after another), a curve once.
-const smoothedOnPage = new WeakMap<Float64Array, Map<number, Float64Array>>();
-
-/**
- * A run's learning curve smoothed over `w` samples: the worker's when it was smoothed over that
- * window, else smoothed here once and kept while the curve lives.
- */
-function smoothedCurve(r: Run, w: number): Float64Array {
-  const lc = r.arrays.learningCurve.data;
-  const pre = r.arrays.learningCurveSmoothed?.data;
-  if (w <= 1) {
-    return lc;
-  }
-  if (pre && w === figure(r, 'smoothingWindow')) {
-    return pre;
-  }
-  let byWindow = smoothedOnPage.get(lc);
-  if (!byWindow) {
-    byWindow = new Map();
-    smoothedOnPage.set(lc, byWindow);
-  }
-  let out = byWindow.get(w);
-  if (!out) {
-    out = movingAverage(lc, w);
-    byWindow.set(w, out);
-  }
-  return out;
-}
-
 /**
  * The learning curves of the runs on one plot, each smoothed over `smoothing` samples (null:
  * the default for the longest), in seconds when every run has the same sample rate.
@@ -176,7 +145,7 @@ export function compareSpec(
   );
   const labels = distinctLabels(list);
   list.forEach((r, i) => {
-    const data = smoothedCurve(r, w);
+    const data = smoothedLearningCurve(r, w);
     spec.lines.push({
       name: labels[i],
       signal: { data, complex: false, n: data.length, stride: 1, offset: 0 },

@@ -268,6 +268,38 @@ export function smoothingOf(run: Run, o: ViewOptions): number {
   return o.smoothing ?? figure(run, 'smoothingWindow') ?? defaultSmoothing(lc ? lc.data.length : 1);
 }
 
+// Curves smoothed on the page, per array and window: specs are built again on every change of
+// the views or of the compared runs (a sweep's runs end one after another), a curve once.
+const smoothedOnPage = new WeakMap<Float64Array, Map<number, Float64Array>>();
+
+/** `data` smoothed by the core's trailing moving average over `w` samples, computed once. */
+export function smoothedOnce(data: Float64Array, w: number): Float64Array {
+  if (w <= 1) {
+    return data;
+  }
+  let byWindow = smoothedOnPage.get(data);
+  if (!byWindow) {
+    byWindow = new Map();
+    smoothedOnPage.set(data, byWindow);
+  }
+  let out = byWindow.get(w);
+  if (!out) {
+    out = movingAverage(data, w);
+    byWindow.set(w, out);
+  }
+  return out;
+}
+
+/**
+ * A run's learning curve smoothed over `w` samples: the curve the figures were read off,
+ * smoothed in the worker, when `w` is its window; else smoothed here once.
+ */
+export function smoothedLearningCurve(run: Run, w: number): Float64Array {
+  const lc = need(run, 'learningCurve').data;
+  const pre = run.arrays.learningCurveSmoothed?.data;
+  return pre && w > 1 && w === figure(run, 'smoothingWindow') ? pre : smoothedOnce(lc, w);
+}
+
 /** The default smoothing of a learning curve of N samples: about 1 % of it, at most 1000. */
 export function defaultSmoothing(n: number): number {
   return Math.max(1, Math.min(1000, Math.round(n / 100)));
@@ -328,11 +360,7 @@ function signalsView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
 
 function learningView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
   const t = timeAxis(trans, run.fs);
-  const lc = need(run, 'learningCurve');
   const w = smoothingOf(run, o);
-  // The curve the figures were read off, smoothed in the worker, when its window is asked for.
-  const pre = run.arrays.learningCurveSmoothed;
-  const usePre = !!pre && w === figure(run, 'smoothingWindow');
   const spec = emptySpec(
     trans.__('Learning curve'),
     t.title,
@@ -351,7 +379,7 @@ function learningView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
   if (lo && hi) {
     spec.lines.push({
       name: trans.__('95 % band'),
-      signal: line(w > 1 ? movingAverage(lo.data, w) : lo.data),
+      signal: line(smoothedOnce(lo.data, w)),
       part: 'real',
       db: true,
       dx: t.dx,
@@ -361,7 +389,7 @@ function learningView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
     });
     spec.lines.push({
       name: trans.__('95 % band of the mean'),
-      signal: line(w > 1 ? movingAverage(hi.data, w) : hi.data),
+      signal: line(smoothedOnce(hi.data, w)),
       part: 'real',
       db: true,
       dx: t.dx,
@@ -372,7 +400,7 @@ function learningView(trans: Trans, run: Run, o: ViewOptions): PlotSpec {
   }
   spec.lines.push({
     name: trans.__('|e(n)|², smoothed over %1 samples', w),
-    signal: line(usePre ? pre.data : w > 1 ? movingAverage(lc.data, w) : lc.data),
+    signal: line(smoothedLearningCurve(run, w)),
     part: 'real',
     db: true,
     dx: t.dx,
