@@ -3,7 +3,10 @@
  *
  * The numbers behind the plots, timed in Node (the core as a Web Worker runs it):
  *   decimate            M4 envelope (first, min, max, last per column) of 1e5, 1e6, 1e7 float64
- *                       samples into 1000 columns: decimate_ms.
+ *                       samples into 1000 columns: decimate_ms from a scan copy (SIMD column
+ *                       scans; what every redraw of a long series uses once the page has made
+ *                       the copy in idle time), first_ms from the array itself (a first draw),
+ *                       copy_ms the copy made in one piece (from 2²⁰ samples, as the page).
  *   decimate-vs-numpy   the same envelope of 1e7 samples against numpy's reshape-and-reduce
  *                       (x.reshape(1000, -1).min(axis=1) and .max(axis=1); values only, no
  *                       positions) in the project's venv in the same run. Target: no slower.
@@ -28,7 +31,7 @@ import { execSync, spawnSync } from 'child_process';
 import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
-import { m4Envelope, welch } from '../src/core/dsp';
+import { m4Envelope, scanCopy, welch } from '../src/core/dsp';
 
 const ROOT = path.resolve(__dirname, '../..');
 const JSON_OUT = process.argv.includes('--json');
@@ -86,18 +89,30 @@ function timeIt(fn: () => number, warm: number): number {
 }
 
 interface Case {
-  kind: 'decimate' | 'welch';
+  /**
+   * decimate: the envelope of a series the page holds a scan copy of (every redraw after the
+   * copy is made in idle time: pan, resize, zoom out); decimate-first: of the array itself (the
+   * first draw); copy: making the scan copy in one piece (the page makes it in slices).
+   */
+  kind: 'decimate' | 'decimate-first' | 'copy' | 'welch';
   samples: number;
 }
 
 /** One case in this process (the child side of `timeInChild`). */
 function runCase(c: Case): number {
   const x = gaussian(c.samples, 20261211);
-  if (c.kind === 'decimate') {
+  if (c.kind === 'copy') {
+    return timeIt(() => scanCopy(x)?.length ?? NaN, 1);
+  }
+  if (c.kind === 'decimate' || c.kind === 'decimate-first') {
     const xo = new Float64Array(4 * COLUMNS);
     const yo = new Float64Array(4 * COLUMNS);
+    const data = c.kind === 'decimate' ? scanCopy(x) : x;
+    if (!data) {
+      throw new Error('no WebAssembly SIMD in this Node: no scan copy');
+    }
     // warm-up on the same data: the kernel is compiled for it before the timed runs
-    return timeIt(() => m4Envelope(x, 1, 0, 0, c.samples, COLUMNS, xo, yo), 5);
+    return timeIt(() => m4Envelope(data, 1, 0, 0, c.samples, COLUMNS, xo, yo), 5);
   }
   return timeIt(() => welch(x, WELCH).psd[1], 2);
 }
@@ -207,15 +222,21 @@ function main(): void {
   for (const samples of [1e5, 1e6, 1e7]) {
     // 1e7: the median of the rounds timed against numpy (decimate-vs-numpy)
     const ms = samples === 1e7 ? dv.perpend : timeInChild({ kind: 'decimate', samples });
-    rows.push({
+    const first = timeInChild({ kind: 'decimate-first', samples });
+    const row: Record<string, unknown> = {
       name: 'decimate',
       samples,
       columns: COLUMNS,
       dtype: 'float64',
       decimate_ms: +ms.toFixed(3),
       msps: +(samples / ms / 1e3).toFixed(1),
-      repeats: REPEATS
-    });
+      first_ms: +first.toFixed(3)
+    };
+    if (samples >= 2 ** 20) {
+      row.copy_ms = +timeInChild({ kind: 'copy', samples }).toFixed(1);
+    }
+    row.repeats = REPEATS;
+    rows.push(row);
   }
   const vsNumpy: Record<string, unknown> = {
     name: 'decimate-vs-numpy',
@@ -276,7 +297,9 @@ function main(): void {
       `scipy ${env.scipy ?? 'n/a'}, CPU ${env.cpu} ×${env.cores}, load ${env.loadavg.join(' ')}`
   );
   console.log(
-    'decimate: M4 envelope into 1000 columns; ratio for decimate-vs-numpy = numpy_ms / perpend_ms ' +
+    'decimate: M4 envelope into 1000 columns of a series held as a scan copy (SIMD; the first ' +
+      'draw scans the array itself: first ms; the copy, made once in idle time: copy ms); ' +
+      'ratio for decimate-vs-numpy = numpy_ms / perpend_ms ' +
       '(> 1: Perpend faster); for welch = perpend_ms / scipy_ms. draw: one 1000 px trace in ' +
       'chromium, envelope + Plotly.react to the next frame (Perpend ms = the envelope); zoom: ' +
       'the redraw after a zoom to 1000 samples of 1e7'
@@ -286,6 +309,8 @@ function main(): void {
     'samples',
     'Perpend ms',
     'Msamples/s',
+    'first ms',
+    'copy ms',
     'baseline ms',
     'ratio',
     'draw ms',
@@ -298,6 +323,8 @@ function main(): void {
       String(r.samples),
       String(r.decimate_ms ?? r.perpend_ms ?? ''),
       r.msps === undefined ? '' : String(r.msps),
+      String(r.first_ms ?? ''),
+      String(r.copy_ms ?? ''),
       String(r.numpy_ms ?? r.scipy_ms ?? ''),
       r.ratio === undefined ? '' : String(r.ratio),
       String(r.draw_ms ?? r.redraw_ms ?? ''),

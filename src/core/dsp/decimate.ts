@@ -34,8 +34,13 @@
  * allocates the outputs only when the caller did not supply them. The kernels index with int32
  * arithmetic: the typed array must hold fewer than 2³¹ elements (`envelope` and the builder refuse
  * larger ones; 2³¹ float64 samples are 16 GiB, far above any per-run memory limit).
+ *
+ * SIMD. When x is a scan copy (scan-copy.ts: float64 data in WebAssembly memory) and its samples
+ * are consecutive, or every other number (one part of complex data), the columns are scanned by
+ * column-scan.wat with the same result; everything else is scanned here.
  */
 import { checkInteger, describe } from '../errors';
+import { columnScannerOf, type ColumnScanner } from './scan-copy';
 import { checkSignal, type CheckedSignal } from './signal';
 
 export type EnvelopePart = 'real' | 'imag' | 'abs';
@@ -151,6 +156,33 @@ function scanReal(x: Float64Array | Float32Array, p: number, sx: number, count: 
   scanMaxK = imx;
   scanMin = mn;
   scanMax = mx;
+}
+
+/**
+ * scanReal's result through the SIMD scanner of a scan copy, for sx = 1 (consecutive samples) or
+ * sx = 2 (the number at p, p + 2, …: lane p mod 2 of the 16-byte pairs from p − p mod 2).
+ */
+function scanSimd(
+  f: ColumnScanner,
+  x: Float64Array | Float32Array,
+  p: number,
+  sx: number,
+  count: number
+): void {
+  if (sx === 1) {
+    f.scanReal(8 * p, count);
+  } else {
+    const lane = p & 1;
+    f.scanPair(8 * (p - lane), count, lane);
+  }
+  const a = f.minK.value;
+  const b = f.maxK.value;
+  scanMinK = a;
+  scanMaxK = b;
+  if (a >= 0) {
+    scanMin = x[p + a * sx];
+    scanMax = x[p + b * sx];
+  }
 }
 
 // Where scanStridedBlocks stopped (no allocation per call).
@@ -319,12 +351,19 @@ export function m4Envelope(
     }
     return w;
   }
+  // A scan copy (scan-copy.ts) is scanned with SIMD when its samples are consecutive or every
+  // other number (one part of complex data); same result as scanReal.
+  const simd = sx === 1 || sx === 2 ? columnScannerOf(x) : undefined;
   let s = i0;
   for (let c = 0; c < columns; c++) {
     const e = columnStart(i0, n, columns, c + 1);
     const count = e - s;
     const p = ox + s * sx;
-    scanReal(x, p, sx, count);
+    if (simd === undefined) {
+      scanReal(x, p, sx, count);
+    } else {
+      scanSimd(simd, x, p, sx, count);
+    }
     // first sample
     xOut[w] = s;
     yOut[w] = x[p];
