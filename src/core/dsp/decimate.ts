@@ -169,14 +169,9 @@ function scanSimd(
   sx: number,
   count: number
 ): void {
-  if (sx === 1) {
-    f.scanReal(8 * p, count);
-  } else {
-    const lane = p & 1;
-    f.scanPair(8 * (p - lane), count, lane);
-  }
-  const a = f.minK.value;
-  const b = f.maxK.value;
+  const lane = p & 1;
+  const a = sx === 1 ? f.scanReal(8 * p, count) : f.scanPair(8 * (p - lane), count, lane);
+  const b = f.maxK();
   scanMinK = a;
   scanMaxK = b;
   if (a >= 0) {

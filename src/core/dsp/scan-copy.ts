@@ -13,10 +13,12 @@ import { COLUMN_SCAN_WASM_HEX } from './column-scan-wasm';
 
 /** The module's exports (column-scan.wat). */
 export interface ColumnScanner {
-  scanReal(p: number, n: number): void;
-  scanPair(p: number, n: number, lane: number): void;
-  readonly minK: { value: number };
-  readonly maxK: { value: number };
+  /** Position of the earliest minimum of n float64 at byte address p (−1: all NaN). */
+  scanReal(p: number, n: number): number;
+  /** The same for one part (lane 0 real, 1 imaginary) of n complex samples from byte p. */
+  scanPair(p: number, n: number, lane: number): number;
+  /** Position of the earliest maximum found by the last scan. */
+  maxK(): number;
 }
 
 // The parts of the WebAssembly global used here (the core compiles without DOM types).
