@@ -166,6 +166,7 @@ async function main() {
           name: 'draw',
           samples,
           decimate_ms: +r.decimate_ms.toFixed(1),
+          decimate_again_ms: +r.decimate_again_ms.toFixed(1),
           draw_ms: +r.draw_ms.toFixed(1),
           target: samples === 1e6 ? 'draw_ms < 100' : samples === 1e7 ? 'draw_ms < 300' : undefined,
           repeats: REPEATS
