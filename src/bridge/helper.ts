@@ -16,7 +16,7 @@
  */
 
 /** Bumped when the helper changes, so an old copy left in a kernel is replaced. */
-export const HELPER_VERSION = 5;
+export const HELPER_VERSION = 6;
 /** Key of the helper module in `sys.modules`. */
 export const HELPER_MODULE = `_perpend_bridge_${HELPER_VERSION}`;
 /** Comm target the helper registers. */
@@ -814,6 +814,11 @@ def on_msg(comm, msg):
                 comm.send({"req": req, "op": "chunk", "i": i, "offset": o},
                           buffers=[memoryview(raw[o:o + cs])])
             comm.send({"req": req, "op": "end"})
+        elif op == "scalar":
+            # a number (sample rate, step size) by its attribute path, as read_scalar
+            r = json.loads(read_scalar(d.get("path")).s)
+            r.update({"req": req, "op": "scalar"})
+            comm.send(r)
         elif op == "w-begin":
             r = json.loads(w_begin(req, d.get("name"), d.get("shape"), bool(d.get("complex")),
                                    d.get("nbytes"), bool(d.get("overwrite")),

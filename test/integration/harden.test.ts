@@ -220,6 +220,35 @@ describe('2. listing and reading run no user code', () => {
     bridge.dispose();
   });
 
+  it('reads over the open data channel without an execute request', async () => {
+    // JupyterLab's debugger asks the kernel for its module list after every execute reply it
+    // sees on the notebook's connection and renders that list again (a 35–60 ms task on the
+    // page, measured with bench:ui's stall case): a run's reads must not cause one.
+    const bridge = new KernelBridge({ kernel, transport: 'comm' });
+    expect(await bridge.readScalar('rec.fs')).toBe(48000); // opens the channel
+    const sent: string[] = [];
+    const spy = (_: unknown, a: Kernel.IAnyMessageArgs): void => {
+      if (a.direction === 'send') {
+        sent.push(a.msg.header.msg_type);
+      }
+    };
+    kernel.anyMessage.connect(spy);
+    try {
+      expect(await bridge.readScalar('Cfg.fs')).toBe(22050);
+      const refused = await failure(bridge.readScalar('rec.rate'));
+      expect(refused.code).toBe('user-code');
+      expect(refused.message).toMatch(/^rec\.rate is computed by a property of Rec/);
+      const a = await bridge.readArray({ kind: 'variable', name: 'sub' });
+      expect(a.shape).toEqual([4]);
+    } finally {
+      kernel.anyMessage.disconnect(spy);
+    }
+    expect(sent).not.toContain('execute_request');
+    expect(sent.filter(t => t === 'comm_msg')).toHaveLength(3);
+    expect(await calls()).toBe('[]');
+    bridge.dispose();
+  });
+
   it('refuses values only code could give, saying so and what to do', async () => {
     const bridge = new KernelBridge({ kernel });
     const rate = await failure(bridge.readScalar('rec.rate'));
