@@ -1,35 +1,59 @@
 /**
- * One plot drawn per animation frame. Every plot of a run that just finished asks to be drawn at
- * once; drawn in the same frame, four plotly draws made one task of 60–120 ms on this machine,
- * a freeze the page's heartbeat sees. Queued, each frame draws the oldest request alone and the
- * page answers input in between; a plot asked for again while queued keeps its place.
+ * One plot drawn per animation frame, each in a task of its own. Every plot of a run that just
+ * finished asks to be drawn at once; drawn in the same frame, four plotly draws made one task of
+ * 60–120 ms on this machine, a freeze the page's heartbeat sees. Queued, each frame gives its turn
+ * to the oldest request, which then draws in a task of its own just after the frame: drawn inside
+ * the frame's callbacks it shared one task with everything else the frame ran (Lumino processes
+ * its widgets' update requests there, so a finished run's list repaint and its first plot made
+ * one 45–60 ms task). The page answers input in between; a plot asked for again while queued
+ * keeps its place.
  */
 type Draw = () => void;
 
 const queue: Draw[] = [];
+/** The animation frame asked for (0: none). */
 let frame = 0;
+/** The draw whose task is set after the frame (null: none, or withdrawn). */
+let due: Draw | null = null;
+let dueTask: ReturnType<typeof setTimeout> | null = null;
 
-function next(): void {
+function onFrame(): void {
   frame = 0;
-  const draw = queue.shift();
+  due = queue.shift() ?? null;
+  if (due) {
+    dueTask = setTimeout(runDue, 0);
+  }
+}
+
+function runDue(): void {
+  dueTask = null;
+  const draw = due;
+  due = null;
   if (queue.length > 0) {
-    frame = requestAnimationFrame(next);
+    frame = requestAnimationFrame(onFrame);
   }
   draw?.();
 }
 
 /** Asks for `draw` on a coming frame (once, however often it is asked while queued). */
 export function requestDraw(draw: Draw): void {
+  if (draw === due) {
+    // its task is set: it draws what is current then
+    return;
+  }
   if (!queue.includes(draw)) {
     queue.push(draw);
   }
-  if (frame === 0) {
-    frame = requestAnimationFrame(next);
+  if (frame === 0 && dueTask === null) {
+    frame = requestAnimationFrame(onFrame);
   }
 }
 
 /** Withdraws a request (a plot disposed before its turn). */
 export function cancelDraw(draw: Draw): void {
+  if (draw === due) {
+    due = null;
+  }
   const i = queue.indexOf(draw);
   if (i >= 0) {
     queue.splice(i, 1);

@@ -1,12 +1,14 @@
 /**
- * The page's plots take turns, one per animation frame (src/panel/plots/draw-queue.ts): a
- * request made twice while queued is drawn once, in its first place; a withdrawn one is not drawn.
- * Common practice (a frame-paced queue), no outside source.
+ * The page's plots take turns, one per animation frame, each drawn in a task of its own after its
+ * frame (src/panel/plots/draw-queue.ts): a request made twice while queued is drawn once, in its
+ * first place; a withdrawn one is not drawn. Common practice (a frame-paced queue), no outside
+ * source.
  */
 import { cancelDraw, requestDraw } from '../../../src/panel/plots/draw-queue';
 
 let frames: Array<() => void> = [];
 beforeEach(() => {
+  jest.useFakeTimers();
   frames = [];
   (globalThis as { requestAnimationFrame?: unknown }).requestAnimationFrame = (f: () => void) =>
     frames.push(f);
@@ -15,12 +17,37 @@ beforeEach(() => {
   };
 });
 
-/** Runs the callbacks of one frame (those asked for before it started). */
+afterEach(() => {
+  jest.useRealTimers();
+});
+
+/** Runs the callbacks of one frame (those asked for before it started), then the tasks after. */
 function frame(): void {
   const now = frames;
   frames = [];
   now.forEach(f => f());
+  jest.runOnlyPendingTimers();
 }
+
+test('the draw runs in a task after its frame, not in the frame', () => {
+  const drawn: string[] = [];
+  const a = (): number => drawn.push('a');
+  requestDraw(a);
+  const now = frames;
+  frames = [];
+  now.forEach(f => f());
+  expect(drawn).toEqual([]);
+  requestDraw(a); // its task is set: not queued again
+  jest.runOnlyPendingTimers();
+  expect(drawn).toEqual(['a']);
+  expect(frames).toHaveLength(0);
+  // withdrawn between its frame and its task: not drawn
+  requestDraw(a);
+  frames.splice(0).forEach(f => f());
+  cancelDraw(a);
+  jest.runOnlyPendingTimers();
+  expect(drawn).toEqual(['a']);
+});
 
 test('one draw per frame, in the order asked, each once', () => {
   const drawn: string[] = [];
