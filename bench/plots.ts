@@ -23,7 +23,7 @@
  * Browser cases — drawing and redrawing in the plot views (`{"name":"draw","samples",
  * "decimate_ms","draw_ms"}`, `{"name":"zoom","samples","redraw_ms"}`) — are timed in Debian's
  * chromium through playwright-core by bench/plots-browser/run.mjs (a page with the compiled
- * plots and the real plotly.js-dist-min, not a full JupyterLab); `node
+ * plots and the real plotly.js-cartesian-dist-min, not a full JupyterLab); `node
  * bench/plots-browser/run.mjs --screens` also saves a screenshot of every view in the light
  * and dark themes to test-artifacts/screenshots/.
  */
@@ -283,7 +283,7 @@ function main(): void {
     loadavg: os.loadavg().map(v => +v.toFixed(2))
   };
   // Browser cases: the plot views drawing in Debian's chromium (bench/plots-browser/run.mjs,
-  // which bundles the compiled extension's plots with the real plotly.js-dist-min).
+  // which bundles the compiled extension's plots with the real plotly.js-cartesian-dist-min).
   rows.push(...browserRows());
   if (JSON_OUT) {
     console.log(JSON.stringify({ env }));

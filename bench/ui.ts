@@ -6,7 +6,9 @@
  *
  * Cases (issue: the workbench, "Benchmark"):
  *  - stall: the longest gap of a 10 ms heartbeat timer on the page's main thread while a
- *    1e6-sample M = 64 QR-RLS noise cancellation runs (goal ≤ 50 ms);
+ *    1e6-sample M = 64 QR-RLS noise cancellation runs and for 800 ms after its row says ok (the
+ *    drawing of its result), goal ≤ 50 ms; after a first run of the page, whose longest gap
+ *    (with plotly's one-time load for the first plot) is `first_run_stall_ms`;
  *  - cancel: from the click on Cancel to the run's row saying "cancelled" (goal ≤ 100 ms);
  *  - click-to-result: from the click on "Save and run" to the row saying "ok" for a 1e6-sample
  *    M = 32 QR-RLS noise cancellation, the read from the kernel included (goal ≤ 2 s);
@@ -247,10 +249,13 @@ async function main(): Promise<void> {
     const page = context.pages()[0] ?? (await context.newPage());
     await openBench(page, state);
 
-    // Heartbeat during a 1e6-sample M = 64 run, and the click-to-result of M = 64.
+    // Heartbeat during a 1e6-sample M = 64 run and the drawing of its result. The first run of
+    // the page also loads plotly (its first plot, DESIGN §5): timed apart as first_run_stall_ms;
+    // the repeats then start from a page that has drawn before.
     await setup(page, 'stall M64', 64);
     const stalls: number[] = [];
-    for (let i = 0; i < REPEATS; i++) {
+    let firstRunStall = NaN;
+    for (let i = -1; i < REPEATS; i++) {
       await page.evaluate(() => {
         const w = window as unknown as { __hb: { last: number; max: number; id: number } };
         w.__hb = { last: performance.now(), max: 0, id: 0 };
@@ -261,20 +266,25 @@ async function main(): Promise<void> {
         }, 10);
       });
       const done = whenStatus(page, 'stall M64', 'ok');
-      if (i === 0) {
+      if (i === -1) {
         await clickAt(page, '.pp-Editor-foot button', 'Save and run');
       } else {
-        await page.waitForTimeout(300);
         await clickAt(page, '.pp-SetupCard button', 'Run');
       }
       await done;
-      stalls.push(
-        await page.evaluate(() => {
-          const w = window as unknown as { __hb: { max: number; id: number } };
-          window.clearInterval(w.__hb.id);
-          return w.__hb.max;
-        })
-      );
+      // the result's plots draw in the frames after the row says ok: they count
+      await page.waitForTimeout(i === -1 ? 3000 : 800);
+      const max = await page.evaluate(() => {
+        const w = window as unknown as { __hb: { max: number; id: number } };
+        window.clearInterval(w.__hb.id);
+        return w.__hb.max;
+      });
+      if (i === -1) {
+        firstRunStall = max;
+      } else {
+        stalls.push(max);
+      }
+      await page.waitForTimeout(300);
     }
     const stall = median(stalls);
     out({
@@ -282,6 +292,7 @@ async function main(): Promise<void> {
       samples: 1e6,
       M: 64,
       longest_stall_ms: stall,
+      first_run_stall_ms: firstRunStall,
       repeats: REPEATS,
       target: 50,
       met: stall <= 50

@@ -385,7 +385,7 @@ export namespace ComparePlots {
     trans: Trans;
     /** The runs (a WorkbenchModel). */
     model: IRunSource;
-    /** Gives plotly (default: the lazily imported plotly.js-dist-min); tests pass a fake. */
+    /** Gives plotly (default: the lazily imported plotly.js-cartesian-dist-min); tests pass a fake. */
     loadPlotly?: LoadPlotly;
     settings?: Partial<PlotSettings>;
     /** IThemeManager.themeChanged, when available; otherwise the body's theme name is watched. */
