@@ -37,6 +37,12 @@ import type { IRunSource } from './run-source';
 import { DEFAULT_PLOT_SETTINGS, type PlotSettings } from './settings';
 import type { PlotSpec } from './spec';
 
+/**
+ * How long the comparison waits, while some of its runs still run, for others to end before it
+ * redraws (runs of a sweep on a pool of workers end in pairs, tens of ms apart).
+ */
+const SETTLE_MS = 400;
+
 export class ComparePlots extends RenderWidget {
   constructor(options: ComparePlots.IOptions) {
     super();
@@ -112,6 +118,9 @@ export class ComparePlots extends RenderWidget {
       return;
     }
     this._model.runChanged.disconnect(this._onRun, this);
+    if (this._settleTimer !== null) {
+      clearTimeout(this._settleTimer);
+    }
     this._pane.dispose();
     super.dispose();
   }
@@ -131,10 +140,39 @@ export class ComparePlots extends RenderWidget {
   }
 
   private _onRun(_: unknown, run: Run): void {
-    if (this._runIds.includes(run.id)) {
-      this.update();
+    if (!this._runIds.includes(run.id)) {
+      return;
     }
+    // A running run's progress changes nothing compared (its curve and figures come at its end):
+    // during a sweep, repainting the table for it 10 times a second per run took the page's
+    // thread from the workers.
+    if (run.status === 'running') {
+      if (this._running.has(run.id)) {
+        return;
+      }
+      this._running.add(run.id);
+    } else {
+      this._running.delete(run.id);
+    }
+    // While other compared runs still run (a sweep), runs that end close together are drawn
+    // in one redraw: each redraw is a plotly draw on the page's thread, taken from the workers.
+    if (this._settleTimer !== null) {
+      clearTimeout(this._settleTimer);
+      this._settleTimer = null;
+    }
+    if (run.status !== 'running' && this._running.size > 0) {
+      this._settleTimer = setTimeout(() => {
+        this._settleTimer = null;
+        this.update();
+      }, SETTLE_MS);
+      return;
+    }
+    this.update();
   }
+
+  /** Compared runs last seen running. */
+  private readonly _running = new Set<string>();
+  private _settleTimer: ReturnType<typeof setTimeout> | null = null;
 
   /** The runs the chosen overlay can draw. */
   private _overlaid(runs: Run[]): Run[] {
