@@ -7,6 +7,7 @@ import type { WorkbenchModel } from '../../model/workbench/workbench';
 import type { Run } from '../../model/workbench/runs';
 import { RenderWidget } from '../render-widget';
 import { formatShape, formatValue } from '../format';
+import { ProgressPainter } from './progress-paint';
 import { formatDuration, statusText } from './run-text';
 import { fieldsOf, getPath, type FieldSpec } from '../../model/workbench/fields';
 import type { RateRef, SourcePick } from '../../model/workbench/setup';
@@ -27,6 +28,7 @@ export class RunDetail extends RenderWidget {
 
   dispose(): void {
     this._model.runChanged.disconnect(this._onRun, this);
+    this._progress.dispose();
     super.dispose();
   }
 
@@ -204,14 +206,20 @@ export class RunDetail extends RenderWidget {
       shown.status === 'running' &&
       shown.messages === r.messages.length
     ) {
-      const line = this.node.querySelector('.pp-RunDetail-status');
-      if (line && this._part === 'summary') {
-        line.textContent = statusText(this._trans, r);
-      }
+      this._progress.paint(r.id, () => {
+        const now = this._model.runs.find(x => x.id === r.id);
+        const line = this.node.querySelector('.pp-RunDetail-status');
+        if (now && now.status === 'running' && line && this._part === 'summary') {
+          line.textContent = statusText(this._trans, now);
+        }
+      });
       return;
     }
+    this._progress.forget(r.id);
     this.update();
   }
+
+  private readonly _progress = new ProgressPainter();
 
   private _shown: { id: string; status: Run['status']; messages: number } | null = null;
 

@@ -12,6 +12,7 @@ import type { Setup } from '../../model/workbench/setup';
 import { TOOL_LABELS } from '../../model/workbench/fields';
 import { RenderWidget } from '../render-widget';
 import { WorkbenchCommandIDs as IDs } from './command-ids';
+import { ProgressPainter } from './progress-paint';
 import { formatFigure, statusText } from './run-text';
 
 export class SetupsView extends RenderWidget {
@@ -33,6 +34,7 @@ export class SetupsView extends RenderWidget {
     this._model.setupsChanged.disconnect(this.update, this);
     this._model.runChanged.disconnect(this._onRun, this);
     this._selection.changed.disconnect(this._mark, this);
+    this._progress.dispose();
     super.dispose();
   }
 
@@ -67,17 +69,33 @@ export class SetupsView extends RenderWidget {
    */
   private _onRun(_: WorkbenchModel, r: Run): void {
     const row = this.node.querySelector<HTMLElement>(`.pp-RunRow[data-run="${r.id}"]`);
-    if (row && r.status === 'running' && row.dataset.status === 'running') {
-      const bar = row.querySelector('progress');
-      const status = row.querySelector('.pp-RunRow-status');
-      if (bar && status) {
-        bar.value = r.progress;
-        status.textContent = statusText(this._trans, r);
-        return;
-      }
+    if (
+      row &&
+      r.status === 'running' &&
+      row.dataset.status === 'running' &&
+      row.querySelector('progress') &&
+      row.querySelector('.pp-RunRow-status')
+    ) {
+      this._progress.paint(r.id, () => this._paintProgress(r.id));
+      return;
     }
+    this._progress.forget(r.id);
     this.update();
   }
+
+  /** The run's bar and status line as the model has them now (in place). */
+  private _paintProgress(id: string): void {
+    const r = this._model.runs.find(x => x.id === id);
+    const row = this.node.querySelector<HTMLElement>(`.pp-RunRow[data-run="${id}"]`);
+    const bar = row?.querySelector('progress');
+    const status = row?.querySelector('.pp-RunRow-status');
+    if (r && r.status === 'running' && bar && status) {
+      bar.value = r.progress;
+      status.textContent = statusText(this._trans, r);
+    }
+  }
+
+  private readonly _progress = new ProgressPainter();
 
   protected render(): void {
     const trans = this._trans;
