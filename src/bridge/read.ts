@@ -120,15 +120,7 @@ export class ArrayReader {
           } else if (d.op === 'error') {
             resolve({ error: d.code, detail: d.detail });
           } else if (d.op === 'closed') {
-            reject(
-              new BridgeError(
-                'comm-closed',
-                trans.__(
-                  "The kernel closed Perpend's data channel while %1. Nothing in the panel was changed; try again (Perpend reopens it).",
-                  label
-                )
-              )
-            );
+            reject(channelClosed(trans, label));
           } else {
             reject(malformed(trans, label));
           }
@@ -287,13 +279,7 @@ export class ArrayReader {
               case 'error':
                 throw refusalOf(trans, d.code, d.detail, what, limits.maxBytesSetting);
               case 'closed':
-                throw new BridgeError(
-                  'comm-closed',
-                  trans.__(
-                    "The kernel closed Perpend's data channel while %1. Nothing in the panel was changed; try again (Perpend reopens it).",
-                    label
-                  )
-                );
+                throw channelClosed(trans, label);
               default:
                 throw malformed(trans, label);
             }
@@ -416,6 +402,17 @@ export class ArrayReader {
       }
     }
   }
+}
+
+/** The comm closed in the middle of a request. */
+function channelClosed(trans: TranslationBundle, label: string): BridgeError {
+  return new BridgeError(
+    'comm-closed',
+    trans.__(
+      "The kernel closed Perpend's data channel while %1. Nothing in the panel was changed; try again (Perpend reopens it).",
+      label
+    )
+  );
 }
 
 /**
