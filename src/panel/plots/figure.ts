@@ -163,6 +163,31 @@ export function legendRows(data: PlotObject[], fontSize: number, width: number):
   return rows;
 }
 
+/**
+ * A plot title broken at spaces into lines that fit `width` px (plotly draws titles as SVG text,
+ * which does not wrap: a long title in a narrow pane was cut at the edge). Widths estimated at
+ * 0.6·fontSize per character, as the legend's rows are; `<br>` joins the lines.
+ */
+export function wrapTitle(
+  title: string,
+  fontSize: number,
+  width: number
+): { text: string; lines: number } {
+  const perLine = Math.max(12, Math.floor((width - 16) / (0.6 * fontSize)));
+  const lines: string[] = [];
+  let line = '';
+  for (const word of title.split(' ')) {
+    if (line && line.length + 1 + word.length > perLine) {
+      lines.push(line);
+      line = word;
+    } else {
+      line = line ? `${line} ${word}` : word;
+    }
+  }
+  lines.push(line);
+  return { text: lines.join('<br>'), lines: lines.length };
+}
+
 /** y-ranges the user zoomed to, by axis; an axis left out autoranges. */
 export interface YRanges {
   yaxis?: XRange;
@@ -213,6 +238,7 @@ export function buildFigure(
     yaxis.scaleanchor = 'x';
     yaxis.scaleratio = 1;
   }
+  const title = wrapTitle(spec.title, theme.fontSize + 1, size.width);
   const layout: PlotObject = {
     ...base,
     width: size.width,
@@ -221,10 +247,10 @@ export function buildFigure(
       ...MARGIN,
       // room for the colour bar and its title beside a heatmap
       r: spec.heatmap ? MARGIN.r + 72 : MARGIN.r,
-      t: 28 + 22 * legendRows(data, theme.fontSize, size.width)
+      t: 28 + 18 * (title.lines - 1) + 22 * legendRows(data, theme.fontSize, size.width)
     },
     title: {
-      text: spec.title,
+      text: title.text,
       x: 0,
       xanchor: 'left',
       xref: 'container',

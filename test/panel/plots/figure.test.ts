@@ -6,7 +6,8 @@ import {
   figureCsv,
   legendRows,
   plotAreaWidth,
-  withAlpha
+  withAlpha,
+  wrapTitle
 } from '../../../src/panel/plots/figure';
 import { columnsFor, DEFAULT_PLOT_SETTINGS } from '../../../src/panel/plots/settings';
 import type { PlotSpec } from '../../../src/panel/plots/spec';
@@ -110,6 +111,21 @@ describe('figures', () => {
     expect(columnsFor(520, 4)).toBe(520);
     expect(columnsFor(520, 2)).toBe(260);
     expect(columnsFor(10, 4)).toBe(16);
+  });
+});
+
+describe('titles', () => {
+  test('a title wider than the plot is broken at spaces, every word kept; a short one is not', () => {
+    const long = 'Learning curves, smoothed over 640 samples';
+    const narrow = wrapTitle(long, 14, 220);
+    expect(narrow.lines).toBeGreaterThan(1);
+    expect(narrow.text.split('<br>').join(' ')).toBe(long);
+    for (const line of narrow.text.split('<br>')) {
+      expect(line.length).toBeLessThanOrEqual(Math.floor((220 - 16) / (0.6 * 14)));
+    }
+    expect(wrapTitle(long, 14, 1000)).toEqual({ text: long, lines: 1 });
+    // a single word longer than the line stays whole
+    expect(wrapTitle('x'.repeat(50), 14, 100)).toEqual({ text: 'x'.repeat(50), lines: 1 });
   });
 });
 
