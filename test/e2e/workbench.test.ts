@@ -382,10 +382,29 @@ test('(e) saved, reloaded and reopened: the set-ups are back and re-run all work
   await lab.screenshot('workbench-e-after-reload');
   expect(await bench().locator('.pp-SetupCard-title').allTextContents()).toEqual(titles);
   await runAllWithCode();
+  // "motor noise" follows its sources (step g): running the cells again may start a run of its
+  // own. "mains hum" does not follow: a new run of it that ends ok is Run All's.
+  const hum = card('mains hum');
+  const before = await hum
+    .locator('.pp-RunRow')
+    .evaluateAll(rows => rows.map(r => r.getAttribute('data-run')));
   await bench().click({ position: { x: 5, y: 5 } });
   await palette(page, 'Run All Set-ups Again');
+  await page.waitForFunction(
+    ids => {
+      const c = Array.from(document.querySelectorAll('.pp-Workbench .pp-SetupCard')).find(e =>
+        (e.querySelector('.pp-SetupCard-title')?.textContent ?? '').startsWith('mains hum')
+      );
+      return Array.from(c?.querySelectorAll('.pp-RunRow') ?? []).some(
+        r => !ids.includes(r.getAttribute('data-run')) && r.getAttribute('data-status') === 'ok'
+      );
+    },
+    before,
+    { timeout: 300000 }
+  );
   await card('motor noise, QR-RLS')
     .locator('.pp-RunRow[data-status="ok"]')
+    .first()
     .waitFor({ timeout: 300000 });
   await lab.screenshot('workbench-e-reloaded');
   expect(lab.unexpectedFaults(ALLOW)).toEqual([]);
