@@ -33,13 +33,12 @@ const PAGE = 65536;
 /** Largest copy, in samples: 2 GiB, so that the module's 32-bit byte addresses never wrap. */
 export const SCAN_COPY_MAX_LENGTH = 2 ** 28;
 
-let wasm: WasmApi | null | undefined;
-let compiled: object | null = null;
+/** The runtime's WebAssembly and the compiled module (null: no SIMD here; undefined: not tried). */
+let loaded: { api: WasmApi; module: object } | null | undefined;
 
-/** The compiled module, or null when this runtime has no WebAssembly SIMD. */
-function scanModule(): object | null {
-  if (wasm === undefined) {
-    wasm = null;
+function scanModule(): { api: WasmApi; module: object } | null {
+  if (loaded === undefined) {
+    loaded = null;
     const api = (globalThis as { WebAssembly?: WasmApi }).WebAssembly;
     const hex = COLUMN_SCAN_WASM_HEX;
     const bytes = new Uint8Array(hex.length / 2);
@@ -48,14 +47,13 @@ function scanModule(): object | null {
     }
     try {
       if (api && api.validate(bytes)) {
-        compiled = new api.Module(bytes);
-        wasm = api;
+        loaded = { api, module: new api.Module(bytes) };
       }
     } catch {
-      wasm = null;
+      loaded = null;
     }
   }
-  return wasm ? compiled : null;
+  return loaded;
 }
 
 /** Whether scan copies can be made here (WebAssembly with SIMD). */
@@ -65,7 +63,7 @@ export function scanCopiesAvailable(): boolean {
 
 const scanners = new WeakMap<Float64Array, ColumnScanner>();
 
-/** A scan copy being filled: `copy` holds x's elements once `fill` has been called to the end. */
+/** A scan copy's array (filled by the caller) and its scanner. */
 interface PendingCopy {
   copy: Float64Array;
   scanner: ColumnScanner;
@@ -73,14 +71,14 @@ interface PendingCopy {
 
 /** Memory and scanner for a copy of x, not yet filled; null as for `scanCopy`. */
 function allocateCopy(x: Float64Array): PendingCopy | null {
-  const mod = scanModule();
-  if (!mod || !wasm || x.length > SCAN_COPY_MAX_LENGTH) {
+  const w = scanModule();
+  if (!w || x.length > SCAN_COPY_MAX_LENGTH) {
     return null;
   }
   try {
     const pages = Math.max(1, Math.ceil(x.byteLength / PAGE));
-    const memory = new wasm.Memory({ initial: pages, maximum: pages });
-    const inst = new wasm.Instance(mod, { env: { mem: memory } });
+    const memory = new w.api.Memory({ initial: pages, maximum: pages });
+    const inst = new w.api.Instance(w.module, { env: { mem: memory } });
     return {
       copy: new Float64Array(memory.buffer, 0, x.length),
       scanner: inst.exports as ColumnScanner

@@ -43,6 +43,10 @@ import type { PlotSpec } from './spec';
  */
 const SETTLE_MS = 400;
 
+function unfinished(r: Run): boolean {
+  return r.status === 'reading' || r.status === 'running';
+}
+
 export class ComparePlots extends RenderWidget {
   constructor(options: ComparePlots.IOptions) {
     super();
@@ -143,16 +147,11 @@ export class ComparePlots extends RenderWidget {
     if (!this._runIds.includes(run.id)) {
       return;
     }
-    // A running run's progress changes nothing compared (its curve and figures come at its end):
-    // during a sweep, repainting the table for it 10 times a second per run took the page's
-    // thread from the workers.
-    if (run.status === 'running') {
-      if (this._running.has(run.id)) {
-        return;
-      }
-      this._running.add(run.id);
-    } else {
-      this._running.delete(run.id);
+    // A run still reading or running changes nothing compared (its curve and figures come at
+    // its end): during a sweep, repainting the table for its progress 10 times a second per run
+    // took the page's thread from the workers. (A run removed while it ran is repainted away.)
+    if (unfinished(run) && this._model.runs.some(r => r.id === run.id)) {
+      return;
     }
     // While other compared runs still run (a sweep), runs that end close together are drawn
     // in one redraw: each redraw is a plotly draw on the page's thread, taken from the workers.
@@ -160,7 +159,7 @@ export class ComparePlots extends RenderWidget {
       clearTimeout(this._settleTimer);
       this._settleTimer = null;
     }
-    if (run.status !== 'running' && this._running.size > 0) {
+    if (this._runs().some(unfinished)) {
       this._settleTimer = setTimeout(() => {
         this._settleTimer = null;
         this.update();
@@ -170,8 +169,6 @@ export class ComparePlots extends RenderWidget {
     this.update();
   }
 
-  /** Compared runs last seen running. */
-  private readonly _running = new Set<string>();
   private _settleTimer: ReturnType<typeof setTimeout> | null = null;
 
   /** The runs the chosen overlay can draw. */
