@@ -104,31 +104,61 @@ export class ArrayReader {
   }
 
   /** read_scalar's answer ({value} or {error, detail}) through one comm request. */
-  private async _scalarComm(parts: string[], label: string): Promise<unknown> {
+  private _scalarComm(parts: string[], label: string): Promise<unknown> {
+    const trans = this._requests.trans;
+    return this._overComm<unknown>(
+      label,
+      { op: 'scalar', path: parts },
+      (d, _buffers, resolve) => {
+        if (d.op === 'scalar') {
+          resolve(d);
+        } else if (d.op === 'error') {
+          resolve({ error: d.code, detail: d.detail });
+        } else {
+          throw malformed(trans, label);
+        }
+      },
+      // the kernel went idle for this request: its answer, if any, came before
+      () => malformed(trans, label)
+    );
+  }
+
+  /**
+   * One numbered request on the comm: `message` (with the request's number added) goes out,
+   * `onMessage` sees each message of the answer until it resolves or throws; a closed channel,
+   * the op's clock, or the kernel going idle first (`endedEarly`) fail it.
+   */
+  private async _overComm<T>(
+    label: string,
+    message: Record<string, unknown>,
+    onMessage: (
+      d: Record<string, unknown>,
+      buffers: ReadonlyArray<DataView>,
+      resolve: (v: T) => void
+    ) => void,
+    endedEarly: () => BridgeError
+  ): Promise<T> {
     const requests = this._requests;
-    const trans = requests.trans;
     const channel = this._channel;
     const comm = await channel.open();
     const req = requests.nextId();
     const op = requests.newOp(label);
     try {
-      const work = new Promise<unknown>((resolve, reject) => {
-        channel.handle(req, d => {
+      const work = new Promise<T>((resolve, reject) => {
+        channel.handle(req, (d, buffers) => {
           op.touch();
-          if (d.op === 'scalar') {
-            resolve(d);
-          } else if (d.op === 'error') {
-            resolve({ error: d.code, detail: d.detail });
-          } else if (d.op === 'closed') {
-            reject(channelClosed(trans, label));
-          } else {
-            reject(malformed(trans, label));
+          try {
+            if (d.op === 'closed') {
+              throw channelClosed(requests.trans, label);
+            }
+            onMessage(d, buffers, resolve);
+          } catch (e) {
+            channel.unhandle(req);
+            reject(e);
           }
         });
-        const future = channel.send(comm, op, { req, op: 'scalar', path: parts });
-        future.done.then(
-          // the kernel went idle for this request: its answer, if any, came before
-          () => reject(malformed(trans, label)),
+        channel.send(comm, op, { req, ...message }).done.then(
+          () => reject(endedEarly()),
           () => undefined
         );
       });
@@ -175,151 +205,122 @@ export class ArrayReader {
   }
 
   /** Header, chunks as binary buffers, end: one comm request. */
-  private async _readComm(
+  private _readComm(
     source: Record<string, unknown>,
     label: string,
     original: ArraySource,
     expect: { shape: number[]; dtype: string } | null
   ): Promise<ArrayData> {
-    const requests = this._requests;
-    const trans = requests.trans;
-    const channel = this._channel;
+    const trans = this._requests.trans;
     const limits = this._limits;
-    const comm = await channel.open();
-    const req = requests.nextId();
-    const op = requests.newOp(label);
     const what = sourceLabel(original);
     // A copy read before is named by its digest; the kernel sends the bytes only if they differ.
     const cacheKey = JSON.stringify(source);
     const held = this._cache?.held(cacheKey) ?? null;
-    try {
-      const work = new Promise<ArrayData>((resolve, reject) => {
-        let head: TransferHeader | null = null;
-        let out: Float64Array | null = null;
-        let bytes: Uint8Array | null = null;
-        let seen: Uint8Array | null = null;
-        let received = 0;
-        channel.handle(req, (d, buffers) => {
-          op.touch();
-          try {
-            switch (d.op) {
-              case 'header': {
-                head = parseHeader(trans, d, limits.maxBytes, label);
-                if (head.same) {
-                  // the kernel's bytes hash to the copy held: nothing else but 'end' follows
-                  if (!held || head.digest !== held.digest || !held.fits(head)) {
-                    throw malformed(trans, label);
-                  }
-                  return;
-                }
-                if (head.chunks > 1) {
-                  out = new Float64Array(head.nbytes / 8);
-                  bytes = new Uint8Array(out.buffer);
-                }
-                seen = new Uint8Array(head.chunks);
-                return;
-              }
-              case 'chunk': {
-                const i = d.i;
-                const offset = d.offset;
-                if (
-                  !head ||
-                  head.same ||
-                  !seen ||
-                  typeof i !== 'number' ||
-                  !Number.isInteger(i) ||
-                  i < 0 ||
-                  i >= head.chunks ||
-                  seen[i] ||
-                  offset !== i * head.chunk ||
-                  buffers.length !== 1
-                ) {
-                  throw malformed(trans, label);
-                }
-                const b = buffers[0];
-                const expect = Math.min(head.chunk, head.nbytes - offset);
-                if (b.byteLength !== expect) {
-                  throw malformed(trans, label);
-                }
-                if (bytes) {
-                  bytes.set(new Uint8Array(b.buffer, b.byteOffset, b.byteLength), offset);
-                } else if (b.byteOffset % 8 === 0) {
-                  // One chunk: its buffer (a fresh copy made by the deserialiser) is the result.
-                  out = new Float64Array(b.buffer, b.byteOffset, b.byteLength / 8);
-                } else {
-                  out = new Float64Array(b.byteLength / 8);
-                  new Uint8Array(out.buffer).set(
-                    new Uint8Array(b.buffer, b.byteOffset, b.byteLength)
-                  );
-                }
-                seen[i] = 1;
-                received += b.byteLength;
-                return;
-              }
-              case 'end': {
-                if (head?.same && held) {
-                  resolve(held.take());
-                  return;
-                }
-                if (!head || !out || received !== head.nbytes) {
-                  throw malformed(trans, label);
-                }
-                const a = {
-                  data: out,
-                  shape: head.shape,
-                  complex: head.complex,
-                  dtype: head.dtype
-                };
-                if (head.digest !== null) {
-                  this._cache?.keep(cacheKey, head.digest, a);
-                }
-                resolve(a);
-                return;
-              }
-              case 'error':
-                throw refusalOf(trans, d.code, d.detail, what, limits.maxBytesSetting);
-              case 'closed':
-                throw channelClosed(trans, label);
-              default:
+    let head: TransferHeader | null = null;
+    let out: Float64Array | null = null;
+    let bytes: Uint8Array | null = null;
+    let seen: Uint8Array | null = null;
+    let received = 0;
+    return this._overComm<ArrayData>(
+      label,
+      {
+        op: 'read',
+        source,
+        chunk: limits.readChunk,
+        max_bytes: limits.maxBytes,
+        ...(expect ? { expect } : {}),
+        ...(held ? { have: held.digest } : {})
+      },
+      (d, buffers, resolve) => {
+        switch (d.op) {
+          case 'header': {
+            head = parseHeader(trans, d, limits.maxBytes, label);
+            if (head.same) {
+              // the kernel's bytes hash to the copy held: nothing else but 'end' follows
+              if (!held || head.digest !== held.digest || !held.fits(head)) {
                 throw malformed(trans, label);
+              }
+              return;
             }
-          } catch (e) {
-            channel.unhandle(req);
-            reject(e);
+            if (head.chunks > 1) {
+              out = new Float64Array(head.nbytes / 8);
+              bytes = new Uint8Array(out.buffer);
+            }
+            seen = new Uint8Array(head.chunks);
+            return;
           }
-        });
-        const future = channel.send(comm, op, {
-          req,
-          op: 'read',
-          source,
-          chunk: limits.readChunk,
-          max_bytes: limits.maxBytes,
-          ...(expect ? { expect } : {}),
-          ...(held ? { have: held.digest } : {})
-        });
-        future.done.then(
-          () => {
-            // The kernel went idle for this request: everything it sent has been handled.
-            reject(
-              new BridgeError(
-                'malformed',
-                trans.__(
-                  'The kernel finished %1 without sending the whole array (was it interrupted?). Nothing in the panel was changed; try again.',
-                  label
-                )
-              )
-            );
-          },
-          () => undefined
-        );
-      });
-      return await Promise.race([work, op.promise]);
-    } catch (e) {
-      throw requests.toBridgeError(e, label);
-    } finally {
-      channel.unhandle(req);
-      requests.endOp(op);
-    }
+          case 'chunk': {
+            const i = d.i;
+            const offset = d.offset;
+            if (
+              !head ||
+              head.same ||
+              !seen ||
+              typeof i !== 'number' ||
+              !Number.isInteger(i) ||
+              i < 0 ||
+              i >= head.chunks ||
+              seen[i] ||
+              offset !== i * head.chunk ||
+              buffers.length !== 1
+            ) {
+              throw malformed(trans, label);
+            }
+            const b = buffers[0];
+            const expect = Math.min(head.chunk, head.nbytes - offset);
+            if (b.byteLength !== expect) {
+              throw malformed(trans, label);
+            }
+            if (bytes) {
+              bytes.set(new Uint8Array(b.buffer, b.byteOffset, b.byteLength), offset);
+            } else if (b.byteOffset % 8 === 0) {
+              // One chunk: its buffer (a fresh copy made by the deserialiser) is the result.
+              out = new Float64Array(b.buffer, b.byteOffset, b.byteLength / 8);
+            } else {
+              out = new Float64Array(b.byteLength / 8);
+              new Uint8Array(out.buffer).set(new Uint8Array(b.buffer, b.byteOffset, b.byteLength));
+            }
+            seen[i] = 1;
+            received += b.byteLength;
+            return;
+          }
+          case 'end': {
+            if (head?.same && held) {
+              resolve(held.take());
+              return;
+            }
+            if (!head || !out || received !== head.nbytes) {
+              throw malformed(trans, label);
+            }
+            const a = {
+              data: out,
+              shape: head.shape,
+              complex: head.complex,
+              dtype: head.dtype
+            };
+            if (head.digest !== null) {
+              this._cache?.keep(cacheKey, head.digest, a);
+            }
+            resolve(a);
+            return;
+          }
+          case 'error':
+            throw refusalOf(trans, d.code, d.detail, what, limits.maxBytesSetting);
+          default:
+            throw malformed(trans, label);
+        }
+      },
+      // The kernel went idle for this request: everything it sent has been handled.
+      () =>
+        new BridgeError(
+          'malformed',
+          trans.__(
+            'The kernel finished %1 without sending the whole array (was it interrupted?). Nothing in the panel was changed; try again.',
+            label
+          )
+        )
+    );
   }
 
   /** A staged copy in the kernel, fetched as base64 a chunk per user expression. */
