@@ -28,6 +28,7 @@ import type {
   JobWarning
 } from '../protocol';
 import { rowOf, signalShape } from './arrays';
+import { keepWarm } from './warm-filters';
 import type { JobContext } from './context';
 
 /** The core filter options of a spec (one place to follow the core's option names). */
@@ -200,6 +201,7 @@ export async function runAdaptiveFilter(
       energyD += dk64[i] * dk64[i];
     }
   }
+  keepWarm(opts);
   const curves = squaredError(e, complex); // K·N values, trial-major
   for (let i = 0; i < curves.length; i++) {
     energyE += curves[i];
@@ -379,6 +381,7 @@ async function runEqualizer(
       : undefined
   });
   await ctx.checkpoint(N, N, 'equalizing');
+  keepWarm(filterOptions(spec, complex));
   const warnings: JobWarning[] = r.health.events.map(ev => ({
     kind: ev.kind,
     message: ev.message,
