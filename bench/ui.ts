@@ -19,8 +19,8 @@
  *    the notebook, one per pool size, alternate their sweeps; the speedup is the median of the
  *    pairs' ratios and the times the medians of each page's sweeps.
  *  - worker-rate: the job's own time in the page's worker for the click-to-result runs (as the
- *    run reports it) against bench:filters' `--case` process for the same case
- *    (`worker_vs_core`, goal ≥ 0.85).
+ *    run reports it) against bench:filters' `--case` process for the same case, run right after
+ *    each of them (`worker_vs_core`: the median of the pairs' ratios, goal ≥ 0.85).
  * The stall, cancel and click-to-result cases run with keepReadMiB 0: every read moves the whole
  * array, as the goals count it.
  * Times are taken in the page (performance.now at the click and at the DOM change), medians of
@@ -211,6 +211,18 @@ async function clickRun(page: Page, title: string): Promise<number> {
   }, title);
 }
 
+/** The ids of the runs listed under the set-up `title`. */
+function runIds(page: Page, title: string): Promise<string[]> {
+  return page.evaluate(title => {
+    const card = Array.from(document.querySelectorAll('.pp-SetupCard')).find(
+      c => c.querySelector('.pp-SetupCard-title')?.textContent === title
+    );
+    return Array.from(card?.querySelectorAll('.pp-RunRow') ?? []).map(
+      r => r.getAttribute('data-run') ?? ''
+    );
+  }, title);
+}
+
 /** Clicks and returns the page time of the click. */
 async function clickAt(page: Page, selector: string, text: string): Promise<number> {
   return page.evaluate(
@@ -331,27 +343,35 @@ async function main(): Promise<void> {
     await setup(page, 'result M32', 32);
     const results: number[] = [];
     const computeMs: number[] = [];
+    const coreMs: number[] = [];
     for (let i = 0; i < REPEATS; i++) {
+      const before = await runIds(page, 'result M32');
       const done = whenStatus(page, 'result M32', 'ok');
       const t0 =
         i === 0
           ? await clickAt(page, '.pp-Editor-foot button', 'Save and run')
           : await clickRun(page, 'result M32');
       results.push((await done) - t0);
-      // The job's own time in the page's worker, as the run reports it.
+      // The job's own time in the page's worker, as the run's detail reports it.
+      const run = (await runIds(page, 'result M32')).find(id => !before.includes(id));
       const ms = await page
         .waitForFunction(
-          () => {
-            const el = document.querySelector<HTMLElement>('.pp-RunDetail-timing');
+          run => {
+            const el = document.querySelector<HTMLElement>(
+              `.pp-RunDetail-timing[data-run="${run}"]`
+            );
             const v = Number(el?.dataset.computeMs || NaN);
             return Number.isFinite(v) && v > 0 ? v : null;
           },
-          undefined,
+          run,
           { timeout: 10000 }
         )
         .then(h => h.jsonValue() as Promise<number>)
         .catch(() => NaN);
       computeMs.push(ms);
+      // bench:filters' own process for the same case, right after the page's run (the shared
+      // machine's speed changes from minute to minute; a pair measured together is compared)
+      coreMs.push(coreCaseMs() ?? NaN);
     }
     const click = median(results);
     out({
@@ -365,10 +385,12 @@ async function main(): Promise<void> {
     });
     // The run's rate in the page's worker against bench:filters' rate for the same case (its own
     // `--case` process: QR-RLS, M = 32, real float64, 1e6 samples; QR-RLS does the same work
-    // whatever the values).
-    const core = coreCaseMs();
+    // whatever the values), each page run paired with the process run just after it: the ratio
+    // is the median of the pairs' ratios.
+    const pairs = computeMs.map((w, i) => coreMs[i] / w).filter(r => Number.isFinite(r) && r > 0);
+    const ratio = pairs.length ? median(pairs) : NaN;
     const inWorker = median(computeMs.filter(Number.isFinite));
-    const ratio = core !== null && inWorker > 0 ? core / inWorker : NaN;
+    const core = median(coreMs.filter(Number.isFinite));
     out({
       name: 'worker-rate',
       samples: 1e6,

@@ -127,6 +127,7 @@ export class RunDetail extends RenderWidget {
     p.className = 'pp-RunDetail-timing';
     // the worker's own time, unrounded, for tools that read it (the benchmark's job rate)
     p.dataset.computeMs = r.computeMs === null ? '' : String(r.computeMs);
+    p.dataset.run = r.id;
     p.textContent = this._trans.__(
       'Read from the kernel in %1, computed in %2 (in a worker, off the page).',
       formatDuration(r.readMs),
