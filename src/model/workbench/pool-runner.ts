@@ -14,6 +14,9 @@ import type { IRunner, RunHandle, RunInputs, RunOutcome } from './runs';
 import type { SetupParams } from './setup';
 
 export class PoolRunner implements IRunner {
+  /** The copies of the runs started so far, one run after another (see `start`). */
+  private _copying: Promise<unknown> = Promise.resolve();
+
   constructor(
     private readonly _pool: () => Pick<WorkerPool, 'run'>,
     private readonly _trans: Trans,
@@ -37,9 +40,19 @@ export class PoolRunner implements IRunner {
     });
     const result = (async (): Promise<RunOutcome> => {
       let spec: JobSpec;
+      // The worker's own copies, a slice at a time (the page keeps painting meanwhile), made
+      // one run after another in the order the runs started: a sweep's runs all start at once,
+      // and copied side by side their jobs would all wait for the last copy; this way the
+      // first job goes to a worker as soon as its own copies are made.
+      const turn = this._copying.then(() => {
+        if (cancelled) {
+          throw new CopyCancelled();
+        }
+        return jobSpecInSlices(params, inputs, this._pause, () => cancelled);
+      });
+      this._copying = turn.catch(() => undefined);
       try {
-        // The worker's own copies, a slice at a time: the page keeps painting meanwhile.
-        spec = await jobSpecInSlices(params, inputs, this._pause, () => cancelled);
+        spec = await turn;
       } catch (e) {
         if (e instanceof CopyCancelled) {
           return ended('cancelled');
