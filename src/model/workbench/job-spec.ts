@@ -7,7 +7,13 @@
 import type { ArrayData as KernelArray } from '../../bridge';
 import type { ArrayData, BasisSpec, JobSpec } from '../../worker/protocol';
 import type { RunInputs } from './runs';
-import { jobArrayInSlices, macrotaskPause, type Pause } from './job-arrays';
+import {
+  SLICE_DOUBLES,
+  jobArrayInSlices,
+  macrotaskPause,
+  type Alloc,
+  type Pause
+} from './job-arrays';
 import type { SetupParams, SourcePick } from './setup';
 
 type Params = Exclude<SetupParams, { tool: 'sweep' }>;
@@ -65,7 +71,8 @@ export async function jobSpecInSlices(
   p: Params,
   inputs: RunInputs,
   pause: Pause = macrotaskPause,
-  cancelled: () => boolean = () => false
+  cancelled: () => boolean = () => false,
+  alloc?: Alloc
 ): Promise<JobSpec> {
   // A first pass names the arrays the spec takes; each is then copied in slices.
   const wanted: Array<[string, SourcePick | null]> = [];
@@ -77,7 +84,10 @@ export async function jobSpecInSlices(
   });
   const copies = new Map<string, ArrayData>();
   for (const [field, pick] of wanted) {
-    copies.set(field, await jobArrayInSlices(readInput(inputs, field), pick, pause, cancelled));
+    copies.set(
+      field,
+      await jobArrayInSlices(readInput(inputs, field), pick, pause, cancelled, SLICE_DOUBLES, alloc)
+    );
   }
   return buildSpec(p, inputs, field => copies.get(field)!);
 }
