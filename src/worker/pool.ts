@@ -59,11 +59,6 @@ export interface RunOptions {
    * for large arrays, but the caller's arrays are detached (empty) afterwards.
    */
   transfer?: boolean;
-  /**
-   * Given the job's input buffers, which the worker hands back with a result (for the caller to
-   * reuse: memory already mapped is copied into far faster than fresh memory).
-   */
-  onSpent?: (buffers: ArrayBuffer[]) => void;
 }
 
 export interface JobHandle {
@@ -352,13 +347,6 @@ export class WorkerPool {
         return;
       case 'result':
         slot.job = null;
-        if (job.options.onSpent && Array.isArray(m.spent) && m.spent.length > 0) {
-          try {
-            job.options.onSpent(m.spent);
-          } catch (reason) {
-            console.error('Perpend: a spent-buffers callback failed', reason);
-          }
-        }
         this._settle(job, { status: 'done', result: m.result, timing: m.timing });
         break;
       case 'failed':

@@ -453,11 +453,6 @@ export interface ResultMessage {
   id: number;
   result: JobResult;
   timing: JobTiming;
-  /**
-   * The job's input buffers, handed back with the result (transferred; the job is done with
-   * them) so that the page can copy the next job's inputs into memory it already has.
-   */
-  spent?: ArrayBuffer[];
 }
 
 export interface FailedMessage {

@@ -84,19 +84,14 @@ export function serve(endpoint: Endpoint, yieldNow: () => Promise<void> = defaul
     try {
       const result = await runJob(spec, ctx);
       const ms = performance.now() - t0;
-      const out = transferables(result);
-      // the inputs go back too, except a buffer the result itself holds (a view of an input)
-      const inResult = new Set(out);
-      const spent = transferables(spec).filter(b => !inResult.has(b));
       endpoint.post(
         {
           type: 'result',
           id,
           result,
-          timing: { ms, perSecond: unit === 'samples' && ms > 0 ? lastTotal / (ms / 1000) : null },
-          spent
+          timing: { ms, perSecond: unit === 'samples' && ms > 0 ? lastTotal / (ms / 1000) : null }
         },
-        [...out, ...spent]
+        transferables(result)
       );
     } catch (reason) {
       if (reason instanceof JobCancelled) {

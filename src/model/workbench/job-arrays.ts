@@ -53,26 +53,19 @@ function transposed(a: KernelArray, pick: SourcePick | null): boolean {
   return a.shape.length === 2 && !!pick?.layout && pick.layout.samplesAxis === 0;
 }
 
-/** Gives `n` doubles for a copy (fresh, or memory the page already has: ./buffer-recycler). */
-export type Alloc = (n: number) => Float64Array;
-
-const fresh: Alloc = n => new Float64Array(n);
-
 /**
  * A job's copy of a kernel array, K×N with samples along the last axis, made `slice` doubles at
- * a time with `pause()` between slices, into memory from `alloc`; throws CopyCancelled once
- * `cancelled()` says so.
+ * a time with `pause()` between slices; throws CopyCancelled once `cancelled()` says so.
  */
 export async function jobArrayInSlices(
   a: KernelArray,
   pick: SourcePick | null,
   pause: Pause = macrotaskPause,
   cancelled: () => boolean = () => false,
-  slice: number = SLICE_DOUBLES,
-  alloc: Alloc = fresh
+  slice: number = SLICE_DOUBLES
 ): Promise<ArrayData> {
   const src = a.data;
-  const out = alloc(src.length);
+  const out = new Float64Array(src.length);
   const step = Math.max(1, Math.floor(slice));
   if (!transposed(a, pick)) {
     for (let from = 0; from < src.length; from += step) {

@@ -7,13 +7,7 @@
 import type { ArrayData as KernelArray } from '../../bridge';
 import type { ArrayData, BasisSpec, JobSpec } from '../../worker/protocol';
 import type { RunInputs } from './runs';
-import {
-  SLICE_DOUBLES,
-  jobArrayInSlices,
-  macrotaskPause,
-  type Alloc,
-  type Pause
-} from './job-arrays';
+import { jobArrayInSlices, macrotaskPause, type Pause } from './job-arrays';
 import type { SetupParams, SourcePick } from './setup';
 
 type Params = Exclude<SetupParams, { tool: 'sweep' }>;
@@ -71,8 +65,7 @@ export async function jobSpecInSlices(
   p: Params,
   inputs: RunInputs,
   pause: Pause = macrotaskPause,
-  cancelled: () => boolean = () => false,
-  alloc?: Alloc
+  cancelled: () => boolean = () => false
 ): Promise<JobSpec> {
   // A first pass names the arrays the spec takes; each is then copied in slices.
   const wanted: Array<[string, SourcePick | null]> = [];
@@ -84,10 +77,7 @@ export async function jobSpecInSlices(
   });
   const copies = new Map<string, ArrayData>();
   for (const [field, pick] of wanted) {
-    copies.set(
-      field,
-      await jobArrayInSlices(readInput(inputs, field), pick, pause, cancelled, SLICE_DOUBLES, alloc)
-    );
+    copies.set(field, await jobArrayInSlices(readInput(inputs, field), pick, pause, cancelled));
   }
   return buildSpec(p, inputs, field => copies.get(field)!);
 }

@@ -6,7 +6,6 @@
  */
 import type { WorkerPool } from '../../worker/pool';
 import type { JobSpec } from '../../worker/protocol';
-import { BufferRecycler } from './buffer-recycler';
 import { CopyCancelled, macrotaskPause, type Pause } from './job-arrays';
 import { jobSpecInSlices } from './job-spec';
 import { outcomeOf } from './outcome';
@@ -21,9 +20,7 @@ export class PoolRunner implements IRunner {
   constructor(
     private readonly _pool: () => Pick<WorkerPool, 'run'>,
     private readonly _trans: Trans,
-    private readonly _pause: Pause = macrotaskPause,
-    /** The input buffers the workers hand back, for the next copies. */
-    readonly recycler: BufferRecycler = new BufferRecycler()
+    private readonly _pause: Pause = macrotaskPause
   ) {}
 
   start(
@@ -51,13 +48,7 @@ export class PoolRunner implements IRunner {
         if (cancelled) {
           throw new CopyCancelled();
         }
-        return jobSpecInSlices(
-          params,
-          inputs,
-          this._pause,
-          () => cancelled,
-          n => this.recycler.doubles(n)
-        );
+        return jobSpecInSlices(params, inputs, this._pause, () => cancelled);
       });
       this._copying = turn.catch(() => undefined);
       try {
@@ -74,8 +65,7 @@ export class PoolRunner implements IRunner {
       // The copies are the job's own, so handing them over to the worker loses nothing.
       job = this._pool().run(spec, {
         transfer: true,
-        onProgress: p => onProgress(p.fraction),
-        onSpent: buffers => this.recycler.give(buffers)
+        onProgress: p => onProgress(p.fraction)
       });
       const o = await job.outcome;
       switch (o.status) {

@@ -9,7 +9,7 @@ import type { ArrayData as KernelArray } from '../../../src/bridge';
 import { PoolRunner } from '../../../src/model/workbench/pool-runner';
 import type { RunInputs } from '../../../src/model/workbench/runs';
 import type { JobHandle, JobOutcome, WorkerPool } from '../../../src/worker/pool';
-import { transferables, type ArrayData, type JobSpec } from '../../../src/worker/protocol';
+import type { JobSpec } from '../../../src/worker/protocol';
 import { cancellation } from './fixtures';
 
 const trans = { __: (s: string) => s, _n: (s: string) => s, _p: (_c: string, s: string) => s };
@@ -113,50 +113,5 @@ describe('PoolRunner', () => {
     expect(c.reference.data).not.toBe(shared.arrays.x.data);
     expect(Array.from(c.reference.data)).toEqual(Array.from(shared.arrays.x.data));
     expect(Array.from(c.primary.data)).toEqual(Array.from(shared.arrays.d.data));
-  });
-
-  it("copies the next runs' inputs into the buffers the workers handed back", async () => {
-    const specs: JobSpec[] = [];
-    const finish: Array<() => void> = [];
-    const pool: Pick<WorkerPool, 'run'> = {
-      run: (spec, options) => {
-        specs.push(spec);
-        return {
-          outcome: new Promise<JobOutcome>(resolve =>
-            finish.push(() => {
-              // as the worker does: the inputs go back with the result
-              options?.onSpent?.(transferables(spec));
-              resolve({ status: 'cancelled', done: 0 });
-            })
-          ),
-          cancel: () => undefined
-        } as unknown as JobHandle;
-      }
-    };
-    const runner = new PoolRunner(
-      () => pool,
-      trans as never,
-      async () => undefined
-    );
-    const shared = inputs(1000);
-    const first = runner.start(cancellation(), shared, () => undefined);
-    await new Promise(r => setTimeout(r, 10));
-    const spec1 = specs[0] as Extract<JobSpec, { kind: 'adaptive-filter' }>;
-    const c1 = spec1.configuration as { reference: ArrayData; primary: ArrayData };
-    const given = [c1.reference.data.buffer, c1.primary.data.buffer];
-    finish[0]();
-    await first.result;
-    expect(runner.recycler.heldBytes).toBe(2 * 1000 * 8);
-    runner.start(cancellation({ lambda: 0.99 }), shared, () => undefined);
-    await new Promise(r => setTimeout(r, 10));
-    const c2 = (specs[1] as Extract<JobSpec, { kind: 'adaptive-filter' }>).configuration as {
-      reference: ArrayData;
-      primary: ArrayData;
-    };
-    expect(given).toContain(c2.reference.data.buffer);
-    expect(given).toContain(c2.primary.data.buffer);
-    expect(Array.from(c2.reference.data)).toEqual(Array.from(shared.arrays.x.data));
-    expect(Array.from(c2.primary.data)).toEqual(Array.from(shared.arrays.d.data));
-    expect(runner.recycler.heldBytes).toBe(0);
   });
 });
