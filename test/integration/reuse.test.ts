@@ -113,27 +113,3 @@ test('keepReadBytes: 0 keeps nothing; every read moves the bytes', async () => {
     /keepReadBytes must be a finite number ≥ 0, got -1/
   );
 });
-
-test('reads side by side on the comm (as a run reads its sources) each get their own array', async () => {
-  const bridge = new KernelBridge({ kernel, transport: 'comm' });
-  try {
-    const names = [
-      ['x', false],
-      ['z', true],
-      ['i16', false]
-    ] as const;
-    const want = await Promise.all(names.map(([n, c]) => kernelSha(n, c)));
-    for (let round = 0; round < 2; round++) {
-      // first round: every array's bytes move, interleaved; second: digests only
-      const got = await Promise.all([
-        ...names.map(([name]) => bridge.readArray({ kind: 'variable', name })),
-        bridge.readScalar('x.size')
-      ]);
-      names.forEach((_, i) => expect(sha((got[i] as ArrayData).data)).toBe(want[i]));
-      expect(got[3]).toBe((got[0] as ArrayData).data.length); // x as the kernel holds it now
-    }
-    expect(bridge.readCounts).toEqual({ reused: 3, sent: 3 });
-  } finally {
-    bridge.dispose();
-  }
-});

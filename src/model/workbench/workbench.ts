@@ -397,42 +397,18 @@ export class WorkbenchModel {
     }
   }
 
-  /**
-   * Reads every source and the sample rate, the requests side by side (their round trips to the
-   * kernel overlap). Throws with a sentence naming what failed, the first source in the set-up's
-   * order when several did.
-   */
+  /** Reads every source and the sample rate. Throws with a sentence naming what failed. */
   private async _read(p: Exclude<SetupParams, { tool: 'sweep' }>): Promise<RunInputs> {
-    const sources = setupSources(p);
-    const [reads, fs] = await Promise.all([
-      Promise.allSettled(sources.map(({ pick }) => this._reader.readArray(pick.ref))),
-      this._readRate(p).then(
-        v => ({ ok: true as const, v }),
-        (e: unknown) => ({ ok: false as const, e })
-      )
-    ]);
     const arrays: RunInputs['arrays'] = {};
-    sources.forEach(({ field, pick }, i) => {
-      const r = reads[i];
-      if (r.status === 'rejected') {
+    for (const { field, pick } of setupSources(p)) {
+      try {
+        arrays[field] = await this._reader.readArray(pick.ref);
+      } catch (e) {
         throw new Error(
-          this._trans.__(
-            'Reading %1 failed: %2',
-            refLabel(this._trans, pick.ref),
-            messageOf(r.reason)
-          )
+          this._trans.__('Reading %1 failed: %2', refLabel(this._trans, pick.ref), messageOf(e))
         );
       }
-      arrays[field] = r.value;
-    });
-    if (!fs.ok) {
-      throw fs.e;
     }
-    return { arrays, fs: fs.v };
-  }
-
-  /** The set-up's sample rate in Hz (typed, or read from the kernel), or null if it has none. */
-  private async _readRate(p: Exclude<SetupParams, { tool: 'sweep' }>): Promise<number | null> {
     const rate =
       p.tool === 'adaptive'
         ? p.fs
@@ -460,7 +436,7 @@ export class WorkbenchModel {
         );
       }
     }
-    return fs;
+    return { arrays, fs };
   }
 
   private _progress(id: string, f: number): void {

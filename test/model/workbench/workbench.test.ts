@@ -49,26 +49,16 @@ class Reader implements IWorkbenchReader {
   fs = 4000;
   reads: string[] = [];
   fail: Error | null = null;
-  /** Sources that fail by name (the others read). */
-  failing = new Map<string, Error>();
-  inFlight = 0;
-  maxInFlight = 0;
   facts(ref: SourceRef) {
     const a = ref.kind === 'variable' ? this.table[ref.name] : undefined;
     return a ? { shape: a.shape, complex: a.complex } : null;
   }
   async readArray(ref: SourceRef): Promise<ArrayData> {
+    await Promise.resolve();
     const name = ref.kind === 'variable' ? ref.name : ref.kind === 'cell' ? ref.cellId : ref.label;
     this.reads.push(name);
-    this.maxInFlight = Math.max(this.maxInFlight, ++this.inFlight);
-    await Promise.resolve();
-    this.inFlight--;
     if (this.fail) {
       throw this.fail;
-    }
-    const fails = this.failing.get(name);
-    if (fails) {
-      throw fails;
     }
     const a = this.table[name];
     if (!a) {
@@ -300,25 +290,6 @@ describe('WorkbenchModel', () => {
     expect(model.setups).toHaveLength(2);
     expect(model.runsOf(a)[0].status).toBe('ok');
     expect(model.runsOf(a)[0].arrays.e).toBeDefined();
-  });
-
-  it('reads the sources side by side, and names the first failing one in the set-up order', async () => {
-    const { model, reader, runner } = make();
-    const id = (model.add(cancellation(), 'nc') as { id: string }).id;
-    const reading = model.run(id);
-    await tick();
-    expect(reader.maxInFlight).toBe(2); // reference and primary requested together
-    runner.jobs[0].finish(outcome);
-    await reading;
-    reader.failing.set('primary', new Error('The kernel restarted'));
-    const [one] = await model.run(id);
-    expect(one.messages[0]).toBe('Reading primary failed: The kernel restarted');
-    reader.failing.set('reference', new Error('There is no variable reference in the kernel'));
-    const [both] = await model.run(id);
-    expect(both.status).toBe('failed');
-    expect(both.messages).toEqual([
-      'Reading reference failed: There is no variable reference in the kernel'
-    ]);
   });
 
   it('a source that changed shape since the set-up was made fails the run, saying so', async () => {
