@@ -50,7 +50,11 @@ export class PoolRunner implements IRunner {
         }
         return jobSpecInSlices(params, inputs, this._pause, () => cancelled);
       });
-      this._copying = turn.catch(() => undefined);
+      // the chain holds no spec (a copy made for a run cancelled meanwhile is let go)
+      this._copying = turn.then(
+        () => undefined,
+        () => undefined
+      );
       try {
         spec = await turn;
       } catch (e) {

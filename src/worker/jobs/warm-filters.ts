@@ -5,7 +5,7 @@
  * the objects it has seen. Once a job ends and its filter is garbage, a full collection may
  * drop the filter's maps; the next job then builds them afresh, its kernel loses its feedback,
  * deoptimises and is compiled again (measured in headless chromium during a sweep of four QR-RLS
- * runs on a pool of two: the real kernel recompiled in every job, 260–350 ms of the page's
+ * runs on a pool of two: the real kernel recompiled in every job, 260–350 ms of the renderer's
  * compiler threads per sweep, competing with the workers for two cores).
  *
  * A small twin of each recently used filter kind (the same class, options and layout, one tap)
