@@ -12,6 +12,13 @@ import type { JobHandle, JobOutcome, WorkerPool } from '../../../src/worker/pool
 import type { JobSpec } from '../../../src/worker/protocol';
 import { cancellation } from './fixtures';
 
+/** Resolves once `ok()` holds (checked every few milliseconds; the test's timeout bounds it). */
+async function until(ok: () => boolean): Promise<void> {
+  while (!ok()) {
+    await new Promise(r => setTimeout(r, 5));
+  }
+}
+
 const trans = { __: (s: string) => s, _n: (s: string) => s, _p: (_c: string, s: string) => s };
 
 function inputs(n: number): RunInputs {
@@ -54,7 +61,7 @@ describe('PoolRunner', () => {
     for (const lambda of [0.99, 0.995, 0.998]) {
       runner.start(cancellation({ lambda }), shared, () => undefined);
     }
-    await new Promise(r => setTimeout(r, 50));
+    await until(() => log.filter(l => l.startsWith('dispatch')).length === 3);
     const dispatches = log.filter(l => l.startsWith('dispatch'));
     expect(dispatches).toEqual(['dispatch λ 0.99', 'dispatch λ 0.995', 'dispatch λ 0.998']);
     // no slice of a later run's copy before the earlier run's job was dispatched
@@ -80,7 +87,7 @@ describe('PoolRunner', () => {
     waiting.cancel();
     const third = runner.start(cancellation({ lambda: 0.998 }), shared, () => undefined);
     expect((await waiting.result).status).toBe('cancelled');
-    await new Promise(r => setTimeout(r, 50));
+    await until(() => log.length === 2);
     expect(log).toEqual(['dispatch λ 0.99', 'dispatch λ 0.998']);
     third.cancel();
   });
@@ -103,7 +110,7 @@ describe('PoolRunner', () => {
     );
     const shared = inputs(1000);
     runner.start(cancellation(), shared, () => undefined);
-    await new Promise(r => setTimeout(r, 10));
+    await until(() => specs.length > 0);
     expect(specs).toHaveLength(1);
     const s = specs[0] as Extract<JobSpec, { kind: 'adaptive-filter' }>;
     const c = s.configuration as {
