@@ -69,7 +69,7 @@ describe('PoolRunner', () => {
     const second = log.indexOf('dispatch λ 0.995');
     const slicesBefore = log.slice(0, first).filter(l => l.startsWith('slice')).length;
     const slicesBetween = log.slice(first + 1, second).filter(l => l.startsWith('slice')).length;
-    // x and d, two slices each: one pause inside each array's copy, and one between them
+    // x and d, two slices each: one pause between each array's two slices
     expect(slicesBefore).toBe(2);
     expect(slicesBetween).toBe(2);
   });
