@@ -7,7 +7,7 @@
 import type { ArrayData as KernelArray } from '../../bridge';
 import type { ArrayData, BasisSpec, JobSpec } from '../../worker/protocol';
 import type { RunInputs } from './runs';
-import { jobArrayInSlices, macrotaskPause, type Pause } from './job-arrays';
+import { CopyCancelled, jobArrayInSlices, macrotaskPause, type Pause } from './job-arrays';
 import type { SetupParams, SourcePick } from './setup';
 
 type Params = Exclude<SetupParams, { tool: 'sweep' }>;
@@ -77,6 +77,10 @@ export async function jobSpecInSlices(
   });
   const copies = new Map<string, ArrayData>();
   for (const [field, pick] of wanted) {
+    // a run cancelled before an array's copy begins (waiting for its turn) copies nothing more
+    if (cancelled()) {
+      throw new CopyCancelled();
+    }
     copies.set(field, await jobArrayInSlices(readInput(inputs, field), pick, pause, cancelled));
   }
   return buildSpec(p, inputs, field => copies.get(field)!);

@@ -44,12 +44,9 @@ export class PoolRunner implements IRunner {
       // one run after another in the order the runs started: a sweep's runs all start at once,
       // and copied side by side their jobs would all wait for the last copy; this way the
       // first job goes to a worker as soon as its own copies are made.
-      const turn = this._copying.then(() => {
-        if (cancelled) {
-          throw new CopyCancelled();
-        }
-        return jobSpecInSlices(params, inputs, this._pause, () => cancelled);
-      });
+      const turn = this._copying.then(() =>
+        jobSpecInSlices(params, inputs, this._pause, () => cancelled)
+      );
       // the chain holds no spec (a copy made for a run cancelled meanwhile is let go)
       this._copying = turn.then(
         () => undefined,

@@ -76,10 +76,11 @@ describe('PoolRunner', () => {
 
   it('a run cancelled while waiting for its turn copies nothing and is cancelled', async () => {
     const log: string[] = [];
+    let pauses = 0;
     const runner = new PoolRunner(
       () => recordingPool(log),
       trans as never,
-      () => new Promise(r => setTimeout(r, 0))
+      () => new Promise(r => setTimeout(() => r(pauses++), 0))
     );
     const shared = inputs(1 << 19);
     runner.start(cancellation({ lambda: 0.99 }), shared, () => undefined);
@@ -89,6 +90,8 @@ describe('PoolRunner', () => {
     expect((await waiting.result).status).toBe('cancelled');
     await until(() => log.length === 2);
     expect(log).toEqual(['dispatch λ 0.99', 'dispatch λ 0.998']);
+    // one pause in each of x's and d's copies, for the two runs copied: none for the cancelled
+    expect(pauses).toBe(4);
     third.cancel();
   });
 
