@@ -80,7 +80,11 @@ describe('PoolRunner', () => {
     const runner = new PoolRunner(
       () => recordingPool(log),
       trans as never,
-      () => new Promise(r => setTimeout(() => r(pauses++), 0))
+      () =>
+        new Promise<void>(r => {
+          pauses++;
+          setTimeout(r, 0);
+        })
     );
     const shared = inputs(1 << 19);
     runner.start(cancellation({ lambda: 0.99 }), shared, () => undefined);
