@@ -74,11 +74,19 @@ const plugin: JupyterFrontEndPlugin<void> = {
     let memoryMiB = 1024;
     let plotSettings: Partial<PlotSettings> = { csvMaxRows: 1_000_000 };
     let pool: WorkerPool | null = null;
+    // The workers together keep as many bytes of the runs' inputs as the page keeps of the
+    // arrays it read (the setting "Arrays kept after reading"), shared out between them.
+    const holdInputs = (p: WorkerPool): void => {
+      p.holdBytesPerWorker = Math.floor((bridgeOptions.keepReadBytes ?? 256 * 2 ** 20) / p.size);
+    };
     const getPool = (): WorkerPool => {
-      pool ??= createBrowserWorkerPool({
-        size: poolSize > 0 ? poolSize : undefined,
-        memoryLimitBytes: memoryMiB * 2 ** 20
-      });
+      if (!pool) {
+        pool = createBrowserWorkerPool({
+          size: poolSize > 0 ? poolSize : undefined,
+          memoryLimitBytes: memoryMiB * 2 ** 20
+        });
+        holdInputs(pool);
+      }
       return pool;
     };
     // The plots' spectral estimates run in a worker of their own: never queued behind runs.
@@ -313,6 +321,9 @@ const plugin: JupyterFrontEndPlugin<void> = {
     perpend?.settingsChanged.connect((_, values) => {
       bridgeOptions = withTranslator(values);
       manager.setBridgeOptions(bridgeOptions);
+      if (pool) {
+        holdInputs(pool);
+      }
     });
 
     if (settingRegistry) {

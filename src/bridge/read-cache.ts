@@ -75,7 +75,8 @@ export class ReadCache {
           data: e.data.slice(),
           shape: e.shape.slice(),
           complex: e.complex,
-          dtype: e.dtype
+          dtype: e.dtype,
+          digest: e.digest
         };
       },
       fits: head =>

@@ -293,11 +293,12 @@ export class ArrayReader {
             if (!head || !out || received !== head.nbytes) {
               throw malformed(trans, label);
             }
-            const a = {
+            const a: ArrayData = {
               data: out,
               shape: head.shape,
               complex: head.complex,
-              dtype: head.dtype
+              dtype: head.dtype,
+              ...(head.digest !== null ? { digest: head.digest } : {})
             };
             if (head.digest !== null) {
               this._cache?.keep(cacheKey, head.digest, a);

@@ -33,6 +33,12 @@ export interface ArrayData {
   complex: boolean;
   /** The dtype it had in the kernel (for writes: ignored; results are float64/complex128). */
   dtype: string;
+  /**
+   * SHA-256 (hex) of the float64/complex128 bytes the kernel sent for it, when it was read (the
+   * kernel hashes every read): equal digests mean equal values, so a job worker that already
+   * holds these values can be sent their name instead of a copy.
+   */
+  digest?: string;
 }
 
 /** Why a write needs the user's confirmation. */

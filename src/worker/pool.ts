@@ -36,6 +36,11 @@ export interface PoolOptions {
   cancelGraceMs?: number;
   /** Consecutive workers that may fail before becoming ready before the pool gives up (3). */
   maxStartFailures?: number;
+  /**
+   * Bytes of named inputs (ArrayData.held) each worker keeps for later jobs (default 0: none;
+   * see held-arrays.ts).
+   */
+  holdBytesPerWorker?: number;
 }
 
 export interface JobProgress {
@@ -59,6 +64,12 @@ export interface RunOptions {
    * for large arrays, but the caller's arrays are detached (empty) afterwards.
    */
   transfer?: boolean;
+  /**
+   * Values for the spec's named arrays sent without them (ArrayData.held) that the worker does
+   * not hold: fresh copies, whose buffers are transferred. A rejection fails the job with its
+   * message (cancelled when the job was cancelled meanwhile).
+   */
+  supply?: (names: string[]) => Promise<Record<string, Float64Array>>;
 }
 
 export interface JobHandle {
@@ -129,6 +140,18 @@ export class WorkerPool {
     this._create = options.createTransport;
     this._grace = options.cancelGraceMs ?? 500;
     this._maxStartFailures = options.maxStartFailures ?? 3;
+    this.holdBytesPerWorker = options.holdBytesPerWorker ?? 0;
+  }
+
+  /** Bytes of named inputs each worker keeps for later jobs (0: none); applies to next jobs. */
+  get holdBytesPerWorker(): number {
+    return this._holdBytes;
+  }
+  set holdBytesPerWorker(v: number) {
+    if (!(v >= 0) || !Number.isFinite(v)) {
+      throw new RangeError(`holdBytesPerWorker must be a finite number ≥ 0, got ${String(v)}`);
+    }
+    this._holdBytes = v;
   }
 
   /** Jobs waiting for a worker. */
@@ -295,7 +318,10 @@ export class WorkerPool {
     slot.job = job;
     const transfer = job.options.transfer ? transferables(job.spec) : [];
     try {
-      slot.transport.postMessage({ type: 'run', id: job.id, spec: job.spec }, transfer);
+      slot.transport.postMessage(
+        { type: 'run', id: job.id, spec: job.spec, holdBytes: this._holdBytes },
+        transfer
+      );
     } catch (reason) {
       slot.job = null;
       this._settle(job, {
@@ -329,6 +355,9 @@ export class WorkerPool {
       return; // a late message of a job already settled (e.g. cancelled by termination)
     }
     switch (m.type) {
+      case 'need':
+        this._supply(slot, job, m.names);
+        return;
       case 'progress':
         job.lastDone = m.done;
         if (job.options.onProgress && job.state === 'running') {
@@ -401,6 +430,42 @@ export class WorkerPool {
     this._pump();
   }
 
+  /** Sends a worker the named inputs it asked for (or why it cannot have them). */
+  private _supply(slot: Slot, job: Job, names: string[]): void {
+    const post = (arrays: Record<string, Float64Array> | null, error: string): void => {
+      if (slot.dead || slot.job !== job) {
+        return; // the job was settled meanwhile (its worker stopped)
+      }
+      try {
+        if (arrays) {
+          const transfer = transferables(arrays);
+          slot.transport.postMessage({ type: 'supply', id: job.id, arrays }, transfer);
+        } else {
+          slot.transport.postMessage({ type: 'supply', id: job.id, error }, []);
+        }
+      } catch (reason) {
+        if (arrays) {
+          post(null, `the inputs could not be sent to the worker: ${text(reason)}`);
+        }
+      }
+    };
+    const supply = job.options.supply;
+    if (!supply) {
+      post(null, `the worker does not hold ${names.join(', ')} and nothing can send them`);
+      return;
+    }
+    let pending: Promise<Record<string, Float64Array>>;
+    try {
+      pending = supply(names);
+    } catch (reason) {
+      pending = Promise.reject(reason);
+    }
+    pending.then(
+      arrays => post(arrays, ''),
+      reason => post(null, text(reason))
+    );
+  }
+
   private _cancel(job: Job): void {
     if (job.state === 'settled') {
       return;
@@ -455,6 +520,7 @@ export class WorkerPool {
   private readonly _queue: Job[] = [];
   private readonly _slots: Slot[] = [];
   private _nextId = 0;
+  private _holdBytes = 0;
   private _startFailures = 0;
   private _disposed = false;
 }

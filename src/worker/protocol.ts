@@ -9,7 +9,12 @@
  *   worker → main  `ready`                  once, when the worker's listener is installed; no
  *                                            buffer is handed over before it (a message sent
  *                                            earlier could be lost, and its buffers with it);
- *   main → worker  `run` {id, spec}          spec buffers in the transfer list;
+ *   main → worker  `run` {id, spec, holdBytes}
+ *                                            spec buffers in the transfer list;
+ *   worker → main  `need` {id, names}        the named arrays of the spec (see ArrayData.held)
+ *                                            this worker does not hold; before any progress;
+ *   main → worker  `supply` {id, arrays} | {id, error}
+ *                                            their values (buffers transferred), or why not;
  *   worker → main  `progress` {id, done, total, stage}
  *                                            after each chunk of the core (samples, or steps);
  *   main → worker  `cancel` {id}             seen at the next chunk border;
@@ -28,7 +33,7 @@ import type {
 import type { Algorithm, Constellation, Precision } from '../core/filters';
 
 /** Version of this protocol; the worker announces it in `ready`. */
-export const PROTOCOL_VERSION = 1;
+export const PROTOCOL_VERSION = 2;
 
 // ---------------------------------------------------------------------------------------------
 // Arrays
@@ -41,6 +46,14 @@ export interface ArrayData {
   data: Float64Array;
   shape: number[];
   complex: boolean;
+  /**
+   * A name for these values that no other values have (the kernel's SHA-256 of the bytes with the
+   * shape and layout), given by the page to inputs the job only reads. A worker keeps named
+   * inputs (within the `holdBytes` of the run message) and uses them again for a later job that
+   * names them; the page may then send the name with an empty `data`, and a worker that does not
+   * hold them asks for them (`need`).
+   */
+  held?: string;
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -423,18 +436,32 @@ export interface RunMessage {
   type: 'run';
   id: number;
   spec: JobSpec;
+  /** Bytes of named inputs this worker may keep for later jobs (0 or absent: none). */
+  holdBytes?: number;
 }
+
+/** The values of the named arrays a worker asked for, or why they cannot be sent. */
+export type SupplyMessage =
+  | { type: 'supply'; id: number; arrays: Record<string, Float64Array> }
+  | { type: 'supply'; id: number; error: string };
 
 export interface CancelMessage {
   type: 'cancel';
   id: number;
 }
 
-export type ToWorker = RunMessage | CancelMessage;
+export type ToWorker = RunMessage | CancelMessage | SupplyMessage;
 
 export interface ReadyMessage {
   type: 'ready';
   protocol: number;
+}
+
+/** The named inputs of a run (see ArrayData.held) that this worker does not hold. */
+export interface NeedMessage {
+  type: 'need';
+  id: number;
+  names: string[];
 }
 
 export interface ProgressMessage {
@@ -470,7 +497,7 @@ export interface CancelledMessage {
 }
 
 export type FromWorker =
-  ReadyMessage | ProgressMessage | ResultMessage | FailedMessage | CancelledMessage;
+  ReadyMessage | NeedMessage | ProgressMessage | ResultMessage | FailedMessage | CancelledMessage;
 
 // ---------------------------------------------------------------------------------------------
 // Helpers on plain data

@@ -5,11 +5,13 @@
  * browser, not setTimeout, which browsers clamp to 4 ms when nested; setImmediate in Node) so
  * that a `cancel` is seen at the next chunk border, and answers with exactly one of result / failed / cancelled.
  */
+import { HeldArrays } from './held-arrays';
 import {
   PROTOCOL_VERSION,
   transferables,
   type FromWorker,
   type JobSpec,
+  type SupplyMessage,
   type ToWorker
 } from './protocol';
 import { JobCancelled, runJob, type JobContext } from './jobs';
@@ -60,8 +62,11 @@ export function messageChannelYield(): () => Promise<void> {
 export function serve(endpoint: Endpoint, yieldNow: () => Promise<void> = defaultYield()): void {
   const cancelled = new Set<number>();
   const running = new Set<number>();
+  // inputs kept for later jobs, and the runs waiting for the page to send named inputs
+  const held = new HeldArrays();
+  const supplies = new Map<number, (m: SupplyMessage) => void>();
 
-  const run = async (id: number, spec: JobSpec): Promise<void> => {
+  const run = async (id: number, spec: JobSpec, holdBytes: number): Promise<void> => {
     running.add(id);
     const t0 = performance.now();
     let lastPost = -Infinity;
@@ -82,6 +87,18 @@ export function serve(endpoint: Endpoint, yieldNow: () => Promise<void> = defaul
       }
     };
     try {
+      const kept = await held.fill(
+        spec,
+        holdBytes,
+        names =>
+          new Promise((resolve, reject) => {
+            supplies.set(id, m => ('error' in m ? reject(new Error(m.error)) : resolve(m.arrays)));
+            endpoint.post({ type: 'need', id, names }, []);
+          })
+      );
+      if (cancelled.has(id)) {
+        throw new JobCancelled(0);
+      }
       const result = await runJob(spec, ctx);
       const ms = performance.now() - t0;
       endpoint.post(
@@ -91,11 +108,14 @@ export function serve(endpoint: Endpoint, yieldNow: () => Promise<void> = defaul
           result,
           timing: { ms, perSecond: unit === 'samples' && ms > 0 ? lastTotal / (ms / 1000) : null }
         },
-        transferables(result)
+        // an input kept here stays here (a result never holds one, but a copy costs little)
+        transferables(result).filter(b => !kept.has(b))
       );
     } catch (reason) {
-      if (reason instanceof JobCancelled) {
-        endpoint.post({ type: 'cancelled', id, done: reason.done }, []);
+      if (reason instanceof JobCancelled || cancelled.has(id)) {
+        // (a page that stopped sending named inputs after a cancel answers with an error)
+        const done = reason instanceof JobCancelled ? reason.done : 0;
+        endpoint.post({ type: 'cancelled', id, done }, []);
       } else {
         const e = reason instanceof Error ? reason : new Error(String(reason));
         endpoint.post({ type: 'failed', id, error: { name: e.name, message: e.message } }, []);
@@ -103,12 +123,17 @@ export function serve(endpoint: Endpoint, yieldNow: () => Promise<void> = defaul
     } finally {
       running.delete(id);
       cancelled.delete(id);
+      supplies.delete(id);
     }
   };
 
   endpoint.listen(message => {
     if (message?.type === 'run') {
-      void run(message.id, message.spec);
+      void run(message.id, message.spec, message.holdBytes ?? 0);
+    } else if (message?.type === 'supply') {
+      const answer = supplies.get(message.id);
+      supplies.delete(message.id);
+      answer?.(message);
     } else if (message?.type === 'cancel') {
       if (running.has(message.id)) {
         cancelled.add(message.id);

@@ -49,8 +49,22 @@ export class CopyCancelled extends Error {
 }
 
 /** True when a 2-D source is laid out with its samples along axis 0 (it is transposed). */
-function transposed(a: KernelArray, pick: SourcePick | null): boolean {
+export function transposed(a: KernelArray, pick: SourcePick | null): boolean {
   return a.shape.length === 2 && !!pick?.layout && pick.layout.samplesAxis === 0;
+}
+
+/**
+ * The name a job worker may hold a kernel array's job copy under (protocol ArrayData.held): the
+ * kernel's SHA-256 of its values, with the copy's shape, kind and layout, so that no other
+ * values share it. Null when the array came without a digest.
+ */
+export function heldName(a: KernelArray, pick: SourcePick | null): string | null {
+  if (typeof a.digest !== 'string' || a.digest.length === 0) {
+    return null;
+  }
+  const t = transposed(a, pick);
+  const shape = t ? [a.shape[1], a.shape[0]] : a.shape;
+  return `${a.digest}:${shape.join('x')}:${a.complex ? 'complex' : 'real'}${t ? ':transposed' : ''}`;
 }
 
 /**

@@ -7,7 +7,14 @@
 import type { ArrayData as KernelArray } from '../../bridge';
 import type { ArrayData, BasisSpec, JobSpec } from '../../worker/protocol';
 import type { RunInputs } from './runs';
-import { CopyCancelled, jobArrayInSlices, macrotaskPause, type Pause } from './job-arrays';
+import {
+  CopyCancelled,
+  heldName,
+  jobArrayInSlices,
+  macrotaskPause,
+  transposed,
+  type Pause
+} from './job-arrays';
 import type { SetupParams, SourcePick } from './setup';
 
 type Params = Exclude<SetupParams, { tool: 'sweep' }>;
@@ -84,6 +91,67 @@ export async function jobSpecInSlices(
     copies.set(field, await jobArrayInSlices(readInput(inputs, field), pick, pause, cancelled));
   }
   return buildSpec(p, inputs, field => copies.get(field)!);
+}
+
+/**
+ * The job spec of an adaptive-filter run with its sources named instead of copied (protocol
+ * ArrayData.held: a worker that holds them uses its own, and asks for the others), and the
+ * copies a worker asks for, made a slice at a time. Null for other tools (only the adaptive
+ * filter's jobs are known to read their inputs without writing them) and when a source came
+ * without the kernel's digest.
+ */
+export function namedJobSpec(
+  p: Params,
+  inputs: RunInputs
+): {
+  spec: JobSpec;
+  copies: (
+    names: string[],
+    pause: Pause,
+    cancelled: () => boolean
+  ) => Promise<Record<string, Float64Array>>;
+} | null {
+  if (p.tool !== 'adaptive') {
+    return null;
+  }
+  const byName = new Map<string, [KernelArray, SourcePick | null]>();
+  let unnamed = false;
+  const spec = buildSpec(p, inputs, (field, pick) => {
+    const a = readInput(inputs, field);
+    const name = heldName(a, pick);
+    if (name === null) {
+      unnamed = true;
+      return { data: new Float64Array(0), shape: [0], complex: false };
+    }
+    byName.set(name, [a, pick]);
+    const t = transposed(a, pick);
+    return {
+      data: new Float64Array(0),
+      shape: t ? [a.shape[1], a.shape[0]] : [...a.shape],
+      complex: a.complex,
+      held: name
+    };
+  });
+  if (unnamed) {
+    return null;
+  }
+  return {
+    spec,
+    copies: async (names, pause, cancelled) => {
+      const out: Record<string, Float64Array> = {};
+      for (const name of names) {
+        const source = byName.get(name);
+        if (!source) {
+          throw new Error(`internal: the worker asked for ${name}, which this run does not name`);
+        }
+        if (cancelled()) {
+          throw new CopyCancelled();
+        }
+        out[name] = (await jobArrayInSlices(source[0], source[1], pause, cancelled)).data;
+      }
+      return out;
+    }
+  };
 }
 
 function buildSpec(p: Params, inputs: RunInputs, arr: ArrayOf): JobSpec {

@@ -4,10 +4,10 @@
  * result becomes the run's figures and arrays. A refused, failed or dying job is a failed run
  * with the reason; the pool's memory estimate is checked before anything is dispatched.
  */
-import type { WorkerPool } from '../../worker/pool';
+import type { JobHandle, WorkerPool } from '../../worker/pool';
 import type { JobSpec } from '../../worker/protocol';
 import { CopyCancelled, macrotaskPause, type Pause } from './job-arrays';
-import { jobSpecInSlices } from './job-spec';
+import { jobSpecInSlices, namedJobSpec } from './job-spec';
 import { outcomeOf } from './outcome';
 import type { Trans } from './rules';
 import type { IRunner, RunHandle, RunInputs, RunOutcome } from './runs';
@@ -18,7 +18,8 @@ export class PoolRunner implements IRunner {
   private _copying: Promise<unknown> = Promise.resolve();
 
   constructor(
-    private readonly _pool: () => Pick<WorkerPool, 'run'>,
+    private readonly _pool: () => Pick<WorkerPool, 'run'> &
+      Partial<Pick<WorkerPool, 'holdBytesPerWorker'>>,
     private readonly _trans: Trans,
     private readonly _pause: Pause = macrotaskPause
   ) {}
@@ -28,32 +29,44 @@ export class PoolRunner implements IRunner {
     inputs: RunInputs,
     onProgress: (fraction: number) => void
   ): RunHandle {
-    const trans = this._trans;
     let cancelled = false;
-    let job: ReturnType<Pick<WorkerPool, 'run'>['run']> | null = null;
-    const ended = (status: 'failed' | 'cancelled', messages: string[] = []): RunOutcome => ({
-      status,
-      messages,
-      figures: [],
-      arrays: {},
-      computeMs: 0
-    });
-    const result = (async (): Promise<RunOutcome> => {
-      let spec: JobSpec;
-      // The worker's own copies, a slice at a time (the page keeps painting meanwhile), made
-      // one run after another in the order the runs started: a sweep's runs all start at once,
-      // and copied side by side their jobs would all wait for the last copy; this way the
-      // first job goes to a worker as soon as its own copies are made.
-      const turn = this._copying.then(() =>
-        jobSpecInSlices(params, inputs, this._pause, () => cancelled)
-      );
-      // the chain holds no spec (a copy made for a run cancelled meanwhile is let go)
+    let job: JobHandle | null = null;
+    // Copies for the worker, one run's after another in the order they are asked for: a
+    // sweep's runs all start at once, and copied side by side their jobs would all wait for the
+    // last copy; this way the first job goes to a worker as soon as its own copies are made.
+    const inTurn = <T>(copy: () => Promise<T>): Promise<T> => {
+      const turn = this._copying.then(copy);
+      // the chain holds no copy (one made for a run cancelled meanwhile is let go)
       this._copying = turn.then(
         () => undefined,
         () => undefined
       );
+      return turn;
+    };
+    const result = (async (): Promise<RunOutcome> => {
+      const pool = this._pool();
+      // Workers that keep inputs are sent the sources' names; one that does not hold them asks,
+      // and gets copies then. Nothing is copied for a re-run or a sweep's next job on a worker
+      // that has them.
+      let named: ReturnType<typeof namedJobSpec> = null;
       try {
-        spec = await turn;
+        named = (pool.holdBytesPerWorker ?? 0) > 0 ? namedJobSpec(params, inputs) : null;
+      } catch (e) {
+        return ended('failed', [e instanceof Error ? e.message : String(e)]);
+      }
+      if (named) {
+        const copies = named.copies;
+        job = pool.run(named.spec, {
+          transfer: true,
+          onProgress: p => onProgress(p.fraction),
+          supply: names => inTurn(() => copies(names, this._pause, () => cancelled))
+        });
+        return this._outcome(job);
+      }
+      let spec: JobSpec;
+      // The worker's own copies, a slice at a time (the page keeps painting meanwhile).
+      try {
+        spec = await inTurn(() => jobSpecInSlices(params, inputs, this._pause, () => cancelled));
       } catch (e) {
         if (e instanceof CopyCancelled) {
           return ended('cancelled');
@@ -64,19 +77,11 @@ export class PoolRunner implements IRunner {
         return ended('cancelled');
       }
       // The copies are the job's own, so handing them over to the worker loses nothing.
-      job = this._pool().run(spec, {
+      job = pool.run(spec, {
         transfer: true,
         onProgress: p => onProgress(p.fraction)
       });
-      const o = await job.outcome;
-      switch (o.status) {
-        case 'done':
-          return outcomeOf(trans, o.result, o.timing);
-        case 'failed':
-          return ended('failed', [o.reason]);
-        case 'cancelled':
-          return ended('cancelled');
-      }
+      return this._outcome(job);
     })();
     return {
       result,
@@ -86,4 +91,21 @@ export class PoolRunner implements IRunner {
       }
     };
   }
+
+  private async _outcome(job: JobHandle): Promise<RunOutcome> {
+    const o = await job.outcome;
+    switch (o.status) {
+      case 'done':
+        return outcomeOf(this._trans, o.result, o.timing);
+      case 'failed':
+        return ended('failed', [o.reason]);
+      case 'cancelled':
+        return ended('cancelled');
+    }
+  }
+}
+
+/** A run that ended without a result. */
+function ended(status: 'failed' | 'cancelled', messages: string[] = []): RunOutcome {
+  return { status, messages, figures: [], arrays: {}, computeMs: 0 };
 }

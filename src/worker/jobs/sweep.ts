@@ -4,7 +4,7 @@
  * arrays, so that handing one job's buffers to a worker leaves the others intact.
  */
 import type { Algorithm } from '../../core/filters';
-import type { AdaptiveFilterSpec, SweepSpec } from '../protocol';
+import { shapeSize, type AdaptiveFilterSpec, type ArrayData, type SweepSpec } from '../protocol';
 
 const NUMERIC = ['taps', 'lambda', 'delta', 'mu', 'epsilon'];
 const ALGORITHMS: Algorithm[] = ['qr-rls', 'inverse-qr-rls', 'rls', 'rls-textbook', 'nlms', 'lms'];
@@ -61,13 +61,25 @@ export function expandSweep(
   });
 }
 
-/** Bytes of the source arrays a spec carries. */
+/**
+ * Bytes of the source arrays a spec carries (a named array sent without its values, see
+ * ArrayData.held, by its shape: the worker will hold them all the same).
+ */
 export function specDataBytes(v: unknown): number {
   if (v === null || typeof v !== 'object') {
     return 0;
   }
   if (ArrayBuffer.isView(v)) {
     return v.byteLength;
+  }
+  const a = v as Partial<ArrayData>;
+  if (
+    typeof a.held === 'string' &&
+    a.data instanceof Float64Array &&
+    a.data.length === 0 &&
+    Array.isArray(a.shape)
+  ) {
+    return shapeSize(a.shape) * (a.complex ? 2 : 1) * 8;
   }
   let s = 0;
   for (const x of Object.values(v)) {

@@ -8,9 +8,9 @@
 import type { ArrayData as KernelArray } from '../../../src/bridge';
 import { PoolRunner } from '../../../src/model/workbench/pool-runner';
 import type { RunInputs } from '../../../src/model/workbench/runs';
-import type { JobHandle, JobOutcome, WorkerPool } from '../../../src/worker/pool';
-import type { JobSpec } from '../../../src/worker/protocol';
-import { cancellation } from './fixtures';
+import type { JobHandle, JobOutcome, RunOptions, WorkerPool } from '../../../src/worker/pool';
+import type { ArrayData, JobSpec } from '../../../src/worker/protocol';
+import { cancellation, variable } from './fixtures';
 
 /** Resolves once `ok()` holds (checked every few milliseconds; the test's timeout bounds it). */
 async function until(ok: () => boolean): Promise<void> {
@@ -127,5 +127,122 @@ describe('PoolRunner', () => {
     expect(c.reference.data).not.toBe(shared.arrays.x.data);
     expect(Array.from(c.reference.data)).toEqual(Array.from(shared.arrays.x.data));
     expect(Array.from(c.primary.data)).toEqual(Array.from(shared.arrays.d.data));
+  });
+});
+
+describe('PoolRunner with workers that keep inputs', () => {
+  /** A pool that keeps inputs and records each job's spec and options. */
+  function keepingPool(hold: number) {
+    const jobs: Array<{ spec: JobSpec; options: RunOptions }> = [];
+    const pool = {
+      holdBytesPerWorker: hold,
+      run: (spec: JobSpec, options: RunOptions = {}) => {
+        jobs.push({ spec, options });
+        return {
+          outcome: new Promise<JobOutcome>(() => undefined),
+          cancel: () => undefined
+        } as unknown as JobHandle;
+      }
+    };
+    return { pool, jobs };
+  }
+
+  /** x of 2 channels × 6 samples laid out with the samples along axis 0 (6×2 in the kernel). */
+  function digested(): RunInputs {
+    const base = inputs(12);
+    return {
+      fs: 8000,
+      arrays: {
+        x: { ...base.arrays.x, shape: [6, 2], digest: 'a'.repeat(64) },
+        d: { ...base.arrays.d, shape: [2, 6], digest: 'b'.repeat(64) }
+      }
+    };
+  }
+  const layout = { samplesAxis: 0 as const, rows: 'channels' as const };
+  const twoD = () =>
+    cancellation({
+      x: { ref: { kind: 'variable', name: 'reference' }, shape: [6, 2], layout },
+      d: {
+        ref: { kind: 'variable', name: 'primary' },
+        shape: [2, 6],
+        layout: { samplesAxis: 1, rows: 'channels' }
+      }
+    });
+
+  it("sends the sources' names and no values, and copies only what the worker asks for", async () => {
+    const { pool, jobs } = keepingPool(1 << 20);
+    let pauses = 0;
+    const runner = new PoolRunner(
+      () => pool,
+      trans as never,
+      async () => {
+        pauses++;
+      }
+    );
+    const shared = digested();
+    runner.start(twoD(), shared, () => undefined);
+    await until(() => jobs.length > 0);
+    const c = (jobs[0].spec as Extract<JobSpec, { kind: 'adaptive-filter' }>).configuration as {
+      reference: ArrayData;
+      primary: ArrayData;
+    };
+    // the name holds the kernel's digest with the job's shape (transposed to K×N) and layout
+    const xName = `${'a'.repeat(64)}:2x6:real:transposed`;
+    const dName = `${'b'.repeat(64)}:2x6:real`;
+    expect(c.reference).toMatchObject({ shape: [2, 6], complex: false, held: xName });
+    expect(c.primary).toMatchObject({ shape: [2, 6], complex: false, held: dName });
+    expect(c.reference.data.length + c.primary.data.length).toBe(0);
+    expect(pauses).toBe(0); // nothing copied before the worker asks
+    const sent = await jobs[0].options.supply!([xName]);
+    expect(Object.keys(sent)).toEqual([xName]);
+    // x[i, j] (6×2) becomes row j of the job's 2×6
+    const x = shared.arrays.x.data;
+    const want = [0, 2, 4, 6, 8, 10, 1, 3, 5, 7, 9, 11].map(i => x[i]);
+    expect(Array.from(sent[xName])).toEqual(want);
+    expect(sent[xName]).not.toBe(x);
+    await expect(jobs[0].options.supply!(['c'.repeat(64)])).rejects.toThrow(
+      /internal: the worker asked for c+, which this run does not name/
+    );
+  });
+
+  it('a copy the worker asks for stops at a cancel', async () => {
+    const { pool, jobs } = keepingPool(1 << 20);
+    const runner = new PoolRunner(
+      () => pool,
+      trans as never,
+      async () => undefined
+    );
+    const shared = inputs(1 << 19);
+    shared.arrays.x.digest = 'a'.repeat(64);
+    shared.arrays.d.digest = 'b'.repeat(64);
+    const h = runner.start(cancellation(), shared, () => undefined);
+    await until(() => jobs.length > 0);
+    h.cancel();
+    await expect(jobs[0].options.supply!([`${'a'.repeat(64)}:524288:real`])).rejects.toThrow(
+      'cancelled'
+    );
+  });
+
+  it('copies as before when a source has no digest, for other tools, or with a budget of 0', async () => {
+    const cases: Array<[number, RunInputs, Parameters<PoolRunner['start']>[0]]> = [];
+    const noDigest = digested();
+    delete noDigest.arrays.d.digest;
+    cases.push([1 << 20, noDigest, twoD()]);
+    cases.push([0, digested(), twoD()]);
+    const span = digested();
+    span.arrays.matrix = { ...span.arrays.d };
+    cases.push([1 << 20, span, { tool: 'span', matrix: variable('m'), rankTolerance: null }]);
+    for (const [hold, shared, params] of cases) {
+      const { pool, jobs } = keepingPool(hold);
+      const runner = new PoolRunner(
+        () => pool,
+        trans as never,
+        async () => undefined
+      );
+      runner.start(params, shared, () => undefined);
+      await until(() => jobs.length > 0);
+      expect(JSON.stringify(jobs[0].spec)).not.toMatch(/held/);
+      expect(jobs[0].options.supply).toBeUndefined();
+    }
   });
 });
