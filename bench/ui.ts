@@ -17,7 +17,11 @@
  *    before are kept, the kernel confirms them by digest: `speedup`), and with every read moving
  *    the arrays (keepReadMiB 0: `speedup_every_read`, the serial read included). Two pages of
  *    the notebook, one per pool size, alternate their sweeps; the speedup is the median of the
- *    pairs' ratios and the times the medians of each page's sweeps.
+ *    pairs' ratios and the times the medians of each page's sweeps. After each pair of the
+ *    installed case, the same four jobs run in Node worker threads, pool of 2 against pool of 1
+ *    (bench/node-sweep.ts: nothing of the page), as the machine's own speedup that minute
+ *    (`machine_speedup`, the median of those pairs' ratios; `speedup_of_machine` = speedup ÷
+ *    machine_speedup, what the page keeps of it).
  *  - worker-rate: the job's own time in the page's worker for the click-to-result runs (as the
  *    run reports it) against bench:filters' `--case` process for the same case, run right after
  *    each of them (`worker_vs_core`: the median of the pairs' ratios, goal ≥ 0.85).
@@ -33,6 +37,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { chromium, type Page } from 'playwright-core';
 import { startLab, type ILabState } from '../test/e2e/lab-server';
+import { NodeSweep } from './node-sweep';
 
 const json = process.argv.includes('--json');
 const REPEATS = 3;
@@ -442,6 +447,9 @@ async function main(): Promise<void> {
     await load(page, 'bench-ui');
     await setup(page, 'sweep', 32, true);
     await runSweep(page, true);
+    const machine = await NodeSweep.start([0.99, 0.995, 0.998, 0.999]);
+    const m1: number[] = [];
+    const m2: number[] = [];
     const one = await context.newPage();
     for (const keep of [0, 256]) {
       await setWorkers(state, 2);
@@ -460,6 +468,11 @@ async function main(): Promise<void> {
       for (let i = 0; i < SWEEP_PAIRS; i++) {
         t2.push(await runSweep(page, false));
         t1.push(await runSweep(one, false));
+        if (keep !== 0) {
+          const n = await machine.pair();
+          m2.push(n.pool2);
+          m1.push(n.pool1);
+        }
       }
       const tag = keep === 0 ? 'cold' : 'warm';
       sweepMs[`${tag}2`] = median(t2);
@@ -467,6 +480,8 @@ async function main(): Promise<void> {
       speedups[tag] = median(t1.map((t, i) => t / t2[i]));
     }
     await one.close();
+    machine.dispose();
+    const machineSpeedup = median(m1.map((t, i) => t / m2[i]));
     const speedup = speedups.warm;
     const speedupEveryRead = speedups.cold;
     out({
@@ -480,6 +495,10 @@ async function main(): Promise<void> {
       pool1_every_read_ms: sweepMs.cold1,
       pool2_every_read_ms: sweepMs.cold2,
       speedup_every_read: speedupEveryRead,
+      machine_pool1_ms: median(m1),
+      machine_pool2_ms: median(m2),
+      machine_speedup: machineSpeedup,
+      speedup_of_machine: speedup / machineSpeedup,
       pairs: SWEEP_PAIRS,
       target: 1.6,
       met: speedup >= 1.6
