@@ -31,9 +31,9 @@ export class HeldArrays {
   /**
    * Gives every named array of `spec` its values: values sent with their name are kept, a name
    * sent alone takes the values held under it, or else the values `ask` brings back. Then keeps
-   * at most `budgetBytes` (least recently used out). Returns the buffers under the spec's arrays
-   * that are held now (they must not be transferred away). Throws a sentence on a name or
-   * values that do not fit the array's shape.
+   * at most `budgetBytes` (least recently used out). Returns the buffers held now, the spec's
+   * among them when they fit (none of them may be transferred away). Throws a sentence on a name
+   * or values that do not fit the array's shape.
    */
   async fill(spec: unknown, budgetBytes: number, ask: AskForArrays): Promise<Set<ArrayBuffer>> {
     const budget = Number.isFinite(budgetBytes) && budgetBytes > 0 ? budgetBytes : 0;
