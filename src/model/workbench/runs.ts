@@ -28,6 +28,11 @@ export interface ResultArray {
   complex: boolean;
   /** What it is, for the user ("error e(n) = d(n) − y(n)"). */
   description: string;
+  /**
+   * For an input read from the kernel: the kernel's SHA-256 of its values. Runs that read the
+   * same values share one array (the model's reads look for it among the runs kept).
+   */
+  digest?: string;
 }
 
 export interface Run {

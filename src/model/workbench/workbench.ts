@@ -402,7 +402,7 @@ export class WorkbenchModel {
     const arrays: RunInputs['arrays'] = {};
     for (const { field, pick } of setupSources(p)) {
       try {
-        arrays[field] = await this._reader.readArray(pick.ref);
+        arrays[field] = this._shared(await this._reader.readArray(pick.ref));
       } catch (e) {
         throw new Error(
           this._trans.__('Reading %1 failed: %2', refLabel(this._trans, pick.ref), messageOf(e))
@@ -437,6 +437,31 @@ export class WorkbenchModel {
       }
     }
     return { arrays, fs };
+  }
+
+  /**
+   * An array read, with the values of a kept run's input that has the same digest (the kernel
+   * confirmed the values unchanged): re-running a set-up then keeps one copy of its sources, not
+   * one per run (24 runs of a 1e6-sample x and d held 384 MB). Inputs are only ever read.
+   */
+  private _shared(a: RunInputs['arrays'][string]): RunInputs['arrays'][string] {
+    if (typeof a.digest !== 'string') {
+      return a;
+    }
+    for (const r of this._runs) {
+      for (const v of Object.values(r.inputs)) {
+        if (
+          v.digest === a.digest &&
+          v.complex === a.complex &&
+          v.data.length === a.data.length &&
+          v.shape.length === a.shape.length &&
+          v.shape.every((n, i) => n === a.shape[i])
+        ) {
+          return { ...a, data: v.data };
+        }
+      }
+    }
+    return a;
   }
 
   private _progress(id: string, f: number): void {
@@ -544,7 +569,8 @@ function inputsOf(
         data: a.data,
         shape: a.shape,
         complex: a.complex,
-        description: refLabel(trans, pick.ref)
+        description: refLabel(trans, pick.ref),
+        ...(a.digest !== undefined ? { digest: a.digest } : {})
       };
     }
   }

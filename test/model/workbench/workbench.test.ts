@@ -397,6 +397,48 @@ describe('WorkbenchModel', () => {
     expect(r.messages.filter(m => /kernel restarted/.test(m))).toHaveLength(1);
   });
 
+  it('runs that read the same values (same kernel digest) share one copy of them', async () => {
+    const { model, reader, runner } = make();
+    // the bridge hands out a fresh copy on every read, with the kernel's digest of the values
+    const table = reader.table;
+    const digests: Record<string, string | undefined> = {
+      reference: 'a'.repeat(64),
+      primary: 'b'.repeat(64)
+    };
+    reader.readArray = async (ref: SourceRef) => {
+      const name = (ref as { name: string }).name;
+      const a = table[name];
+      return { ...a, data: a.data.slice(), digest: digests[name] };
+    };
+    table.reference.data.fill(1);
+    const id = (
+      model.add(cancellation({ x: vr('reference'), d: vr('primary') }), 'nc') as { id: string }
+    ).id;
+    const runOnce = async () => {
+      const done = model.run(id);
+      await tick();
+      runner.jobs[runner.jobs.length - 1].finish(outcome);
+      return (await done)[0];
+    };
+    const first = await runOnce();
+    const second = await runOnce();
+    expect(second.inputs.x.data).toBe(first.inputs.x.data);
+    expect(second.inputs.d.data).toBe(first.inputs.d.data);
+    expect(second.inputs.x.digest).toBe('a'.repeat(64));
+    // values changed in the kernel: another digest, another array, the new values
+    table.reference = { ...table.reference, data: new Float64Array(32000).fill(2) };
+    digests.reference = 'c'.repeat(64);
+    const third = await runOnce();
+    expect(third.inputs.x.data).not.toBe(first.inputs.x.data);
+    expect(third.inputs.x.data[0]).toBe(2);
+    expect(third.inputs.d.data).toBe(first.inputs.d.data);
+    // a read without a digest is not shared
+    digests.primary = undefined;
+    const fifth = await runOnce();
+    expect(fifth.inputs.d.data).not.toBe(first.inputs.d.data);
+    expect(fifth.inputs.d.digest).toBeUndefined();
+  });
+
   it('closing the notebook cancels runs in flight and writes nothing more', async () => {
     const { model, runner, host } = make();
     const id = (
