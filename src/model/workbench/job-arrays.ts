@@ -53,6 +53,11 @@ export function transposed(a: KernelArray, pick: SourcePick | null): boolean {
   return a.shape.length === 2 && !!pick?.layout && pick.layout.samplesAxis === 0;
 }
 
+/** The shape of a kernel array's job copy: K×N, transposed when the layout says so. */
+export function jobShape(a: KernelArray, pick: SourcePick | null): number[] {
+  return transposed(a, pick) ? [a.shape[1], a.shape[0]] : [...a.shape];
+}
+
 /**
  * The name a job worker may hold a kernel array's job copy under (protocol ArrayData.held): the
  * kernel's SHA-256 of its values, with the copy's shape, kind and layout, so that no other
@@ -62,9 +67,8 @@ export function heldName(a: KernelArray, pick: SourcePick | null): string | null
   if (typeof a.digest !== 'string' || a.digest.length === 0) {
     return null;
   }
-  const t = transposed(a, pick);
-  const shape = t ? [a.shape[1], a.shape[0]] : a.shape;
-  return `${a.digest}:${shape.join('x')}:${a.complex ? 'complex' : 'real'}${t ? ':transposed' : ''}`;
+  const layout = transposed(a, pick) ? ':transposed' : '';
+  return `${a.digest}:${jobShape(a, pick).join('x')}:${a.complex ? 'complex' : 'real'}${layout}`;
 }
 
 /**

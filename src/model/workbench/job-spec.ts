@@ -11,8 +11,8 @@ import {
   CopyCancelled,
   heldName,
   jobArrayInSlices,
+  jobShape,
   macrotaskPause,
-  transposed,
   type Pause
 } from './job-arrays';
 import type { SetupParams, SourcePick } from './setup';
@@ -124,10 +124,9 @@ export function namedJobSpec(
       return { data: new Float64Array(0), shape: [0], complex: false };
     }
     byName.set(name, [a, pick]);
-    const t = transposed(a, pick);
     return {
       data: new Float64Array(0),
-      shape: t ? [a.shape[1], a.shape[0]] : [...a.shape],
+      shape: jobShape(a, pick),
       complex: a.complex,
       held: name
     };
