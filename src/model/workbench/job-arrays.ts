@@ -49,7 +49,7 @@ export class CopyCancelled extends Error {
 }
 
 /** True when a 2-D source is laid out with its samples along axis 0 (it is transposed). */
-export function transposed(a: KernelArray, pick: SourcePick | null): boolean {
+function transposed(a: KernelArray, pick: SourcePick | null): boolean {
   return a.shape.length === 2 && !!pick?.layout && pick.layout.samplesAxis === 0;
 }
 
