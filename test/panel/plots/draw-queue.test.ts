@@ -1,8 +1,10 @@
 /**
  * The page's plots take turns, one per animation frame, each drawn in a task of its own after its
  * frame (src/panel/plots/draw-queue.ts): a request made twice while queued is drawn once, in its
- * first place; a withdrawn one is not drawn. Common practice (a frame-paced queue), no outside
- * source.
+ * first place; a withdrawn one is not drawn; where the page has `scheduler.postTask` the task is
+ * posted at background priority, behind whatever else waits. Common practice (a frame-paced
+ * queue; deferrable work at background priority as the Prioritized Task Scheduling draft of the
+ * W3C WICG describes `postTask`'s priorities, from memory), no other outside source.
  */
 import { cancelDraw, requestDraw } from '../../../src/panel/plots/draw-queue';
 
@@ -85,4 +87,38 @@ test('a withdrawn request is not drawn; an empty queue asks for no frame', () =>
   frame();
   expect(drawn).toEqual(['b']);
   expect(frames).toHaveLength(0);
+});
+
+test('where the page has scheduler.postTask, the draw is posted at background priority', () => {
+  const posted: Array<{ run: () => void; priority: string | undefined }> = [];
+  const g = globalThis as { scheduler?: unknown };
+  g.scheduler = {
+    postTask: (run: () => void, options?: { priority?: string }) => {
+      posted.push({ run, priority: options?.priority });
+      return Promise.resolve();
+    }
+  };
+  try {
+    const drawn: string[] = [];
+    const a = (): number => drawn.push('a');
+    const b = (): number => drawn.push('b');
+    requestDraw(a);
+    requestDraw(b);
+    frames.splice(0).forEach(f => f());
+    jest.runOnlyPendingTimers(); // nothing through setTimeout
+    expect(drawn).toEqual([]);
+    expect(posted.map(p => p.priority)).toEqual(['background']);
+    requestDraw(a); // its task is posted: not queued again
+    expect(frames).toHaveLength(0);
+    posted.shift()?.run();
+    expect(drawn).toEqual(['a']);
+    expect(frames).toHaveLength(1); // b's turn on the next frame
+    frames.splice(0).forEach(f => f());
+    cancelDraw(b); // withdrawn between its frame and its task
+    posted.shift()?.run();
+    expect(drawn).toEqual(['a']);
+    expect(frames).toHaveLength(0);
+  } finally {
+    delete g.scheduler;
+  }
 });
