@@ -30,7 +30,7 @@ let due: Draw | null = null;
 let posted = false;
 
 /** Posts `task` after everything else waiting on the main thread. */
-function postLater(task: () => void): void {
+export function postLater(task: () => void): void {
   const scheduler = (globalThis as { scheduler?: TaskScheduler }).scheduler;
   if (scheduler && typeof scheduler.postTask === 'function') {
     void scheduler.postTask(task, { priority: 'background' });
@@ -85,4 +85,9 @@ export function cancelDraw(draw: Draw): void {
     cancelAnimationFrame(frame);
     frame = 0;
   }
+}
+
+/** Resolves in a task posted after everything else waiting on the main thread. */
+export function afterWaitingTasks(): Promise<void> {
+  return new Promise(resolve => postLater(resolve));
 }

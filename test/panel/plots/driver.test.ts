@@ -140,7 +140,36 @@ test('a new spec resets the zoom; a redraw takes the latest size', async () => {
   driver.spec = buildView(trans, run, 'learning', DEFAULT_VIEW_OPTIONS, DEFAULT_PLOT_SETTINGS);
   expect(driver.range).toBeNull();
   const before = plotly.reacts.length;
+  // two draws asked for at once conflate: only the latest reaches plotly
   await Promise.all([driver.draw(theme, size), driver.draw(theme, { width: 800, height: 300 })]);
-  expect(plotly.reacts.length - before).toBe(2);
+  expect(plotly.reacts.length - before).toBe(1);
   expect(plotly.last.layout).toMatchObject({ width: 800, height: 300 });
+});
+
+test('the figure is built in one task and drawn after the page has had its turn', async () => {
+  const plotly = new FakePlotly();
+  const turns: Array<() => void> = [];
+  const driver = new PlotDriver({
+    node: {} as HTMLElement,
+    loadPlotly: () => Promise.resolve(plotly),
+    settings: DEFAULT_PLOT_SETTINGS,
+    onError: () => undefined,
+    yieldToPage: () => new Promise<void>(r => turns.push(r))
+  });
+  const run = cancellationRun(10000, null);
+  driver.spec = buildView(trans, run, 'signals', DEFAULT_VIEW_OPTIONS, DEFAULT_PLOT_SETTINGS);
+  const drawn = driver.draw(theme, size);
+  await flush();
+  expect(turns).toHaveLength(1);
+  expect(plotly.reacts).toHaveLength(0); // built, not drawn yet
+  turns.shift()?.();
+  await drawn;
+  expect(plotly.reacts).toHaveLength(1);
+  // disposed while waiting for its turn: nothing reaches plotly
+  const again = driver.draw(theme, size);
+  await flush();
+  driver.dispose();
+  turns.shift()?.();
+  await again;
+  expect(plotly.reacts).toHaveLength(1);
 });
