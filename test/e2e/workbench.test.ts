@@ -220,6 +220,17 @@ test('(c) a λ sweep of three values beside NLMS on the same data, all runs list
   await compare.scrollIntoViewIfNeeded();
   await lab.screenshot('workbench-c-compare-dark');
   await setTheme(page, 'JupyterLab Light');
+  // The table in the workbench's narrow side column: a block per run with each figure's name
+  // and unit beside its value, nothing scrolling sideways.
+  const table = compare.locator('.pp-ComparePlots-table');
+  await table.scrollIntoViewIfNeeded();
+  await page.waitForTimeout(500);
+  const fits = await table.evaluate(t => t.scrollWidth <= t.clientWidth + 1);
+  await lab.screenshot('workbench-c-compare-table');
+  expect(fits).toBe(true);
+  expect(
+    await table.locator('tbody td.pp-ComparePlots-num').first().getAttribute('data-label')
+  ).toBe('convergence time (samples)');
   expect(labels.sort()).toEqual([
     'QR-RLS · M 16 · λ 0.99',
     'QR-RLS · M 16 · λ 0.995',

@@ -350,6 +350,9 @@ export class ComparePlots extends RenderWidget {
     const table = document.createElement('table');
     table.className = 'pp-ComparePlots-grid';
     const head = document.createElement('tr');
+    // In a narrow column the header row becomes a line of sort buttons after this lead, and
+    // each run a block of "name (unit)  value" lines (style/plots.css, container query).
+    head.dataset.lead = trans.__('Sort by:');
     for (const c of compareColumns(trans)) {
       const th = document.createElement('th');
       th.scope = 'col';
@@ -381,6 +384,7 @@ export class ComparePlots extends RenderWidget {
         td.textContent = cellText(r[c.key]);
         if (c.key !== 'label') {
           td.className = 'pp-ComparePlots-num';
+          td.dataset.label = c.unit ? `${c.name} (${c.unit})` : c.name;
         }
         tr.append(td);
       }
