@@ -30,7 +30,7 @@ let due: Draw | null = null;
 let posted = false;
 
 /** Posts `task` after everything else waiting on the main thread. */
-export function postLater(task: () => void): void {
+function postLater(task: () => void): void {
   const scheduler = (globalThis as { scheduler?: TaskScheduler }).scheduler;
   if (scheduler && typeof scheduler.postTask === 'function') {
     void scheduler.postTask(task, { priority: 'background' });
