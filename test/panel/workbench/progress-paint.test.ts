@@ -1,7 +1,8 @@
 /**
  * A run's progress reaches the page at most every PROGRESS_PAINT_MS per run, the latest value
- * last (src/panel/workbench/progress-paint.ts). Common practice (a trailing throttle), no outside
- * source.
+ * last, and every run's later paints fall on one grid of instants so that the page repaints once
+ * for all of them (src/panel/workbench/progress-paint.ts). Common practice (a trailing throttle
+ * aligned to a shared tick), no outside source.
  */
 import { PROGRESS_PAINT_MS, ProgressPainter } from '../../../src/panel/workbench/progress-paint';
 
@@ -12,28 +13,58 @@ afterEach(() => {
   jest.useRealTimers();
 });
 
-test('the first paint at once, the next ones at most every interval, the latest asked for', () => {
-  let now = 1000;
-  const p = new ProgressPainter(() => now);
+const P = PROGRESS_PAINT_MS;
+
+/** The page's clock and the timers' clock, moved together. */
+function clock(start: number): { now: () => number; tick: (ms: number) => void } {
+  let t = start;
+  return {
+    now: () => t,
+    tick: ms => {
+      t += ms;
+      jest.advanceTimersByTime(ms);
+    }
+  };
+}
+
+test('the first paint at once, the next ones on the grid, the latest asked for', () => {
+  const c = clock(4 * P); // an instant of the grid
+  const p = new ProgressPainter(c.now);
   const painted: string[] = [];
   p.paint('r1', () => painted.push('a'));
   expect(painted).toEqual(['a']);
-  now += 50;
+  c.tick(50);
   p.paint('r1', () => painted.push('b'));
-  now += 50;
+  c.tick(50);
   p.paint('r1', () => painted.push('c')); // replaces b
-  p.paint('r2', () => painted.push('x')); // another run: its own interval
+  p.paint('r2', () => painted.push('x')); // another run: its first paint at once
   expect(painted).toEqual(['a', 'x']);
-  // b was deferred at 50 ms after a: its paint (now c) comes at the interval's end
-  jest.advanceTimersByTime(PROGRESS_PAINT_MS - 50 - 1);
+  c.tick(P - 100 - 1); // 1 ms before 5P
   expect(painted).toEqual(['a', 'x']);
-  now += PROGRESS_PAINT_MS - 100;
-  jest.advanceTimersByTime(1);
+  c.tick(1); // 5P
   expect(painted).toEqual(['a', 'x', 'c']);
-  // an interval later: at once again
-  now += PROGRESS_PAINT_MS;
+  // r2 (last painted 100 ms after 4P) and r1 (at 5P), asked at different moments: both at 6P
+  c.tick(10);
+  p.paint('r2', () => painted.push('y'));
+  c.tick(50);
   p.paint('r1', () => painted.push('d'));
-  expect(painted).toEqual(['a', 'x', 'c', 'd']);
+  c.tick(P - 60 - 1);
+  expect(painted).toEqual(['a', 'x', 'c']);
+  c.tick(1); // 6P
+  expect(painted).toEqual(['a', 'x', 'c', 'y', 'd']);
+});
+
+test('never twice within half an interval: a grid instant too close to the last paint is skipped', () => {
+  const c = clock(8 * P - 10);
+  const p = new ProgressPainter(c.now);
+  const painted: string[] = [];
+  p.paint('r1', () => painted.push('a')); // first: at once, 10 ms before 8P
+  c.tick(5);
+  p.paint('r1', () => painted.push('b'));
+  c.tick(P); // past 8P, 10 ms after a: skipped
+  expect(painted).toEqual(['a']);
+  c.tick(P); // past 9P
+  expect(painted).toEqual(['a', 'b']);
 });
 
 test('forget drops a pending paint; dispose drops them all', () => {
