@@ -12,15 +12,40 @@
  */
 export const PROGRESS_PAINT_MS = 250;
 
+/**
+ * The paints of every painter waiting for the next animation frame. Timers due at the same
+ * instant still ran as separate tasks with a frame between them (three frames for one instant in
+ * a trace); written in one frame's callbacks, they are laid out and painted once.
+ */
+const inFrame = new Set<() => void>();
+let frameAsked = false;
+
+function paintInFrame(paint: () => void): void {
+  if (typeof requestAnimationFrame !== 'function') {
+    paint();
+    return;
+  }
+  inFrame.add(paint);
+  if (!frameAsked) {
+    frameAsked = true;
+    requestAnimationFrame(() => {
+      frameAsked = false;
+      const paints = [...inFrame];
+      inFrame.clear();
+      paints.forEach(p => p());
+    });
+  }
+}
+
 export class ProgressPainter {
   constructor(now: () => number = () => performance.now()) {
     this._now = now;
   }
 
   /**
-   * Runs `paint` for `key` now when the key has not painted yet, else at the next instant of the
-   * grid at least half an interval after its last paint (the latest `paint` asked for by then
-   * is the one run).
+   * Runs `paint` for `key` now when the key has not painted yet, else in the first animation
+   * frame after the next instant of the grid at least half an interval after its last paint
+   * (the latest `paint` asked for by then is the one run).
    */
   paint(key: string, paint: () => void): void {
     const pending = this._pending.get(key);
@@ -44,7 +69,12 @@ export class ProgressPainter {
       timer: setTimeout(() => {
         this._pending.delete(key);
         this._last.set(key, this._now());
-        entry.paint();
+        const framed = (): void => {
+          this._framed.delete(key);
+          entry.paint();
+        };
+        this._framed.set(key, framed);
+        paintInFrame(framed);
       }, at - t)
     };
     this._pending.set(key, entry);
@@ -57,6 +87,11 @@ export class ProgressPainter {
       clearTimeout(p.timer);
       this._pending.delete(key);
     }
+    const framed = this._framed.get(key);
+    if (framed) {
+      inFrame.delete(framed);
+      this._framed.delete(key);
+    }
     this._last.delete(key);
   }
 
@@ -64,12 +99,18 @@ export class ProgressPainter {
     for (const p of this._pending.values()) {
       clearTimeout(p.timer);
     }
+    for (const f of this._framed.values()) {
+      inFrame.delete(f);
+    }
     this._pending.clear();
+    this._framed.clear();
     this._last.clear();
   }
 
   private readonly _now: () => number;
   private readonly _last = new Map<string, number>();
+  /** Paints whose instant has come, waiting for the next frame. */
+  private readonly _framed = new Map<string, () => void>();
   private readonly _pending = new Map<
     string,
     { paint: () => void; timer: ReturnType<typeof setTimeout> }

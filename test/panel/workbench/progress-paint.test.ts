@@ -1,8 +1,9 @@
 /**
  * A run's progress reaches the page at most every PROGRESS_PAINT_MS per run, the latest value
- * last, and every run's later paints fall on one grid of instants so that the page repaints once
- * for all of them (src/panel/workbench/progress-paint.ts). Common practice (a trailing throttle
- * aligned to a shared tick), no outside source.
+ * last, and every run's later paints fall on one grid of instants, written in the animation frame
+ * after it, so that the page repaints once for all of them (src/panel/workbench/progress-paint.ts).
+ * Common practice (a trailing throttle aligned to a shared tick, DOM writes in a frame callback),
+ * no outside source.
  */
 import { PROGRESS_PAINT_MS, ProgressPainter } from '../../../src/panel/workbench/progress-paint';
 
@@ -84,4 +85,34 @@ test('forget drops a pending paint; dispose drops them all', () => {
   p.dispose();
   jest.advanceTimersByTime(PROGRESS_PAINT_MS);
   expect(painted).toEqual(['a', 'c']);
+});
+
+test('on a page, the paints of every painter due at one instant are written in one frame', () => {
+  const frames: Array<() => void> = [];
+  const g = globalThis as { requestAnimationFrame?: unknown };
+  g.requestAnimationFrame = (f: () => void): number => frames.push(f);
+  try {
+    const c = clock(2 * P);
+    const list = new ProgressPainter(c.now); // the run list's bars
+    const detail = new ProgressPainter(c.now); // the shown run's status line
+    const painted: string[] = [];
+    list.paint('r1', () => painted.push('r1 first'));
+    list.paint('r2', () => painted.push('r2 first'));
+    detail.paint('r1', () => painted.push('detail first'));
+    expect(painted).toEqual(['r1 first', 'r2 first', 'detail first']); // at once, no frame
+    c.tick(40);
+    list.paint('r1', () => painted.push('r1'));
+    c.tick(30);
+    list.paint('r2', () => painted.push('r2'));
+    detail.paint('r1', () => painted.push('detail'));
+    c.tick(P - 70); // 3P: every timer has fired, nothing written yet
+    expect(painted).toHaveLength(3);
+    expect(frames).toHaveLength(1); // one frame asked for, by all three
+    list.forget('r2'); // its run ended between the instant and the frame
+    frames.shift()?.();
+    expect(painted.slice(3)).toEqual(['r1', 'detail']);
+    expect(frames).toHaveLength(0);
+  } finally {
+    delete g.requestAnimationFrame;
+  }
 });
