@@ -211,7 +211,8 @@ export function buildFigure(
   const base = themeLayout(theme);
   const two = spec.y2Title !== undefined;
   // Axis types are stated, not guessed: plotly otherwise scans the data of every trace for dates
-  // and categories on each draw (≈ 9 ms of a 25 ms draw of a 646-point curve here).
+  // and categories on each draw (the learning curve's draw, 646 points, repeated in the page:
+  // medians 12.2 → 10.3 ms and 9.8 → 9.6 ms in two rounds; 9 ms of it in one profiled slow draw).
   const xaxis: PlotObject = {
     ...(base.xaxis as PlotObject),
     type: spec.traces.some(t => typeof t.x[0] === 'string') ? 'category' : 'linear',
