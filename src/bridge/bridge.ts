@@ -32,6 +32,7 @@ import type {
   ArrayInfo,
   ArraySource,
   CellRef,
+  ReadOptions,
   TransferLimits,
   WriteResult
 } from './types';
@@ -243,10 +244,11 @@ export class KernelBridge implements IDisposable {
    * with masked entries (`masked`), a value that is not an array by its type (`not-array`: no
    * `__array__` or other code of it runs), a source listed with another shape or dtype than it
    * holds now (`changed`; read again to take it as it is), a name that is not one exactly as
-   * given (`invalid-name`: nothing is trimmed).
+   * given (`invalid-name`: nothing is trimmed). `options.shared`: the caller never writes into
+   * the data (see {@link ReadOptions}).
    */
-  readArray(source: ArraySource): Promise<ArrayData> {
-    return this._reader.read(source);
+  readArray(source: ArraySource, options?: ReadOptions): Promise<ArrayData> {
+    return this._reader.read(source, options);
   }
 
   /**

@@ -76,6 +76,7 @@ export type {
   ArraySource,
   CellRef,
   CellVerdict,
+  ReadOptions,
   WriteConflict,
   WriteResult
 } from './types';

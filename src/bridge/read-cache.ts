@@ -10,14 +10,20 @@
  * changed in place, re-bound, or converted differently has other bytes and is sent in full.
  *
  * The cache keeps its own copy and hands out fresh copies, so that nothing a caller does to the
- * arrays it got can change what a later read returns. Entries are kept least recently used
- * first out, within a byte budget (0: nothing is kept).
+ * arrays it got can change what a later read returns — except to a reader that says it never
+ * writes into what it reads (`shared`: the workbench, whose runs already share inputs by digest),
+ * which is handed the copy kept itself and whose full reads are kept without a copy: re-running
+ * a sweep on unchanged data then copies nothing (two 8 MB copies were 44 ms of the page's
+ * thread before its jobs could start). Entries are kept least recently used first out, within a
+ * byte budget (0: nothing is kept).
  */
 import type { ArrayData } from './types';
 
 interface Entry {
   digest: string;
   data: Float64Array;
+  /** The bytes of `data` when kept (a detached buffer has none left). */
+  bytes: number;
   shape: number[];
   complex: boolean;
   dtype: string;
@@ -26,8 +32,11 @@ interface Entry {
 /** A copy held for one source, as named to the kernel. */
 export interface HeldCopy {
   readonly digest: string;
-  /** A fresh copy of the array, when the kernel found it unchanged. */
-  take(): ArrayData;
+  /**
+   * The array, when the kernel found it unchanged: a fresh copy, or (`shared`, for a reader that
+   * never writes into it) the copy kept itself.
+   */
+  take(shared?: boolean): ArrayData;
   /** True when the header of a read describes this copy (shape, complex, dtype, size). */
   fits(head: { shape: number[]; complex: boolean; dtype: string; nbytes: number }): boolean;
 }
@@ -64,15 +73,21 @@ export class ReadCache {
     if (!e) {
       return null;
     }
+    if (e.data.byteLength !== e.bytes) {
+      // its buffer was handed to a worker (detached) by a reader that broke the promise: drop
+      // it, so that the kernel sends the bytes again
+      this.forget(key);
+      return null;
+    }
     // most recently used last
     this._entries.delete(key);
     this._entries.set(key, e);
     return {
       digest: e.digest,
-      take: () => {
+      take: (shared = false) => {
         this.counts.reused++;
         return {
-          data: e.data.slice(),
+          data: shared ? e.data : e.data.slice(),
           shape: e.shape.slice(),
           complex: e.complex,
           dtype: e.dtype,
@@ -82,14 +97,17 @@ export class ReadCache {
       fits: head =>
         head.complex === e.complex &&
         head.dtype === e.dtype &&
-        head.nbytes === e.data.byteLength &&
+        head.nbytes === e.bytes &&
         head.shape.length === e.shape.length &&
         head.shape.every((n, i) => n === e.shape[i])
     };
   }
 
-  /** Keeps a copy of `a` (read in full, with the kernel's `digest`) for `key`. */
-  keep(key: string, digest: string, a: ArrayData): void {
+  /**
+   * Keeps a copy of `a` (read in full, with the kernel's `digest`) for `key`; `shared` (the
+   * reader never writes into `a.data`) keeps `a.data` itself.
+   */
+  keep(key: string, digest: string, a: ArrayData, shared = false): void {
     this.counts.sent++;
     this.forget(key);
     if (a.data.byteLength > this._budget) {
@@ -97,7 +115,8 @@ export class ReadCache {
     }
     this._entries.set(key, {
       digest,
-      data: a.data.slice(),
+      data: shared ? a.data : a.data.slice(),
+      bytes: a.data.byteLength,
       shape: a.shape.slice(),
       complex: a.complex,
       dtype: a.dtype
@@ -111,7 +130,7 @@ export class ReadCache {
     const e = this._entries.get(key);
     if (e) {
       this._entries.delete(key);
-      this._bytes -= e.data.byteLength;
+      this._bytes -= e.bytes;
     }
   }
 
@@ -127,7 +146,7 @@ export class ReadCache {
         return;
       }
       this._entries.delete(key);
-      this._bytes -= e.data.byteLength;
+      this._bytes -= e.bytes;
     }
   }
 

@@ -24,7 +24,7 @@ import {
   type TransferHeader
 } from './replies';
 import { inFlight, type KernelRequests } from './requests';
-import type { ArrayData, ArraySource, TransferLimits } from './types';
+import type { ArrayData, ArraySource, ReadOptions, TransferLimits } from './types';
 
 /** Reads arrays and scalars from the kernel. */
 export class ArrayReader {
@@ -43,7 +43,7 @@ export class ArrayReader {
   }
 
   /** See `KernelBridge.readArray`. */
-  async read(source: ArraySource): Promise<ArrayData> {
+  async read(source: ArraySource, options: ReadOptions = {}): Promise<ArrayData> {
     const src = this._sourceLiteral(source);
     const label = this._trans.__('reading %1', sourceLabel(source));
     // What the list showed: the kernel refuses (`changed`) when the name holds another shape
@@ -52,7 +52,7 @@ export class ArrayReader {
     const expect = listed ? { shape: listed.shape, dtype: listed.dtype } : null;
     try {
       if (await this._channel.use()) {
-        return await this._readComm(src.json, label, source, expect);
+        return await this._readComm(src.json, label, source, expect, options.shared === true);
       }
       return await this._readBase64(src.py, label, source, expect);
     } catch (e) {
@@ -209,7 +209,8 @@ export class ArrayReader {
     source: Record<string, unknown>,
     label: string,
     original: ArraySource,
-    expect: { shape: number[]; dtype: string } | null
+    expect: { shape: number[]; dtype: string } | null,
+    shared: boolean
   ): Promise<ArrayData> {
     const trans = this._requests.trans;
     const limits = this._limits;
@@ -287,7 +288,7 @@ export class ArrayReader {
           }
           case 'end': {
             if (head?.same && held) {
-              resolve(held.take());
+              resolve(held.take(shared));
               return;
             }
             if (!head || !out || received !== head.nbytes) {
@@ -301,7 +302,7 @@ export class ArrayReader {
               ...(head.digest !== null ? { digest: head.digest } : {})
             };
             if (head.digest !== null) {
-              this._cache?.keep(cacheKey, head.digest, a);
+              this._cache?.keep(cacheKey, head.digest, a, shared);
             }
             resolve(a);
             return;

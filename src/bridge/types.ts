@@ -41,6 +41,16 @@ export interface ArrayData {
   digest?: string;
 }
 
+/** How a read's result will be used. */
+export interface ReadOptions {
+  /**
+   * The reader never writes into the data it gets: a re-read of values the kernel still holds
+   * unchanged may then hand it the copy the bridge keeps itself, and a full read is kept without
+   * a second copy (default false: a fresh copy, the reader's to change).
+   */
+  shared?: boolean;
+}
+
 /** Why a write needs the user's confirmation. */
 export interface WriteConflict {
   /** The name is already bound in the user's namespace. */

@@ -77,3 +77,38 @@ test('fits: shape, complex, dtype and size must all match the header', () => {
   expect(h.fits({ ...head, dtype: 'complex128' })).toBe(false);
   expect(h.fits({ ...head, nbytes: 48 })).toBe(false);
 });
+
+test('shared readers (who never write into what they read) get the kept array itself, others a copy', () => {
+  const c = new ReadCache(1 << 20);
+  const a = arr(10, 3);
+  // kept from a shared reader: no second copy is made
+  c.keep('x', D('a'), a, true);
+  expect(c.bytes).toBe(80);
+  const h = c.held('x')!;
+  expect(h.take(true).data).toBe(a.data);
+  expect(h.take(true).data).toBe(h.take(true).data);
+  // a reader that may write gets its own copy, equal in value
+  const own = h.take();
+  expect(own.data).not.toBe(a.data);
+  expect(Array.from(own.data)).toEqual(Array.from(a.data));
+  own.data.fill(-1);
+  expect(h.take(true).data[0]).toBe(3);
+  // kept from a reader that may write: the cache holds a copy, shared readers get that copy
+  const b = arr(4, 9);
+  c.keep('y', D('b'), b);
+  const kept = c.held('y')!.take(true).data;
+  expect(kept).not.toBe(b.data);
+  b.data.fill(0);
+  expect(Array.from(kept)).toEqual([9, 9, 9, 9]);
+  expect(c.counts).toEqual({ reused: 6, sent: 2 });
+});
+
+test('a kept array whose buffer was moved away (detached) is dropped, so the bytes are sent again', () => {
+  const c = new ReadCache(1 << 20);
+  const a = arr(8, 1);
+  c.keep('x', D('a'), a, true);
+  structuredClone(a.data.buffer, { transfer: [a.data.buffer] }); // detaches it, as a transfer to a worker does
+  expect(a.data.byteLength).toBe(0);
+  expect(c.held('x')).toBeNull();
+  expect(c.bytes).toBe(0);
+});

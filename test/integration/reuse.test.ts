@@ -80,6 +80,24 @@ test('a second read of an unchanged array is served from the copy kept, bit for 
   }
 });
 
+test('shared reads (a reader that never writes into them) take the kept array itself, no copy', async () => {
+  const bridge = new KernelBridge({ kernel, transport: 'comm' });
+  try {
+    const want = await kernelSha('z', true);
+    const first = await bridge.readArray({ kind: 'variable', name: 'z' }, { shared: true });
+    const again = await bridge.readArray({ kind: 'variable', name: 'z' }, { shared: true });
+    expect(bridge.readCounts).toEqual({ reused: 1, sent: 1 });
+    expect(again.data).toBe(first.data);
+    expect(sha(again.data)).toBe(want);
+    // a reader that may write still gets a copy of its own
+    const own = await bridge.readArray({ kind: 'variable', name: 'z' });
+    expect(own.data).not.toBe(first.data);
+    expect(sha(own.data)).toBe(want);
+  } finally {
+    bridge.dispose();
+  }
+});
+
 test('a value changed in place, or re-bound to another shape, is sent again', async () => {
   const bridge = new KernelBridge({ kernel, transport: 'comm' });
   try {

@@ -13,6 +13,8 @@ import type { IWorkbenchReader } from './runs';
 import type { SourceRef } from './setup';
 import type { SourceFacts } from './sources-check';
 
+const SHARED = { shared: true } as const;
+
 export class KernelSources implements IWorkbenchReader, ISourceCatalog {
   constructor(options: KernelSources.IOptions) {
     this._sources = options.sources;
@@ -61,13 +63,18 @@ export class KernelSources implements IWorkbenchReader, ISourceCatalog {
     return o ? { shape: o.info.shape, complex: o.option.complex } : null;
   }
 
+  /**
+   * Reads `ref` for a run. Shared: runs never write into their inputs (they share them by
+   * digest, and jobs get copies or names), so a re-read of unchanged values takes the bridge's
+   * kept copy itself.
+   */
   async readArray(ref: SourceRef): Promise<ArrayData> {
     const bridge = this._sources.bridge;
     if (!bridge) {
       throw new Error(this._noKernel);
     }
     if (ref.kind === 'variable') {
-      return bridge.readArray({ kind: 'variable', name: ref.name });
+      return bridge.readArray({ kind: 'variable', name: ref.name }, SHARED);
     }
     if (ref.kind === 'shelf') {
       // The panel's arrays are not the kernel's (CombinedSources sends them to the shelf).
@@ -77,7 +84,7 @@ export class KernelSources implements IWorkbenchReader, ISourceCatalog {
     if (!listed) {
       throw new Error(this._notListed(ref.cellId));
     }
-    return bridge.readArray(listed.info.source);
+    return bridge.readArray(listed.info.source, SHARED);
   }
 
   async readScalar(name: string): Promise<number> {

@@ -22,9 +22,11 @@ class Listing {
   refreshes = 0;
   refresh = async () => void this.refreshes++;
   reads: ArraySource[] = [];
+  readOptions: unknown[] = [];
   bridge: any = {
-    readArray: async (s: ArraySource) => {
+    readArray: async (s: ArraySource, o?: unknown) => {
       this.reads.push(s);
+      this.readOptions.push(o);
       return { data: new Float64Array(4), shape: [4], complex: false, dtype: 'float64' };
     },
     readScalar: async () => 4000
@@ -102,6 +104,9 @@ describe('KernelSources', () => {
     await expect(ks.readArray({ kind: 'cell', cellId: 'other' })).rejects.toThrow(
       'cell other is not listed'
     );
+    // runs never write into their inputs: the bridge may hand over the copy it keeps
+    await ks.readArray({ kind: 'variable', name: 'x' });
+    expect(listing.readOptions).toEqual([{ shared: true }, { shared: true }]);
   });
 
   it('emits changed only on a real change, and names the sources that changed', () => {
