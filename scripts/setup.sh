@@ -62,3 +62,10 @@ else
   tail -n 1 lib/build.log
   echo "$stamp-$mode" > "$stamp_file"
 fi
+
+# 5. The server extension (perpend/server.py: kernel websockets without Nagle's delay), as the
+# wheel installs it: the package into .venv's site-packages, its switch into .venv's config.
+site="$(.venv/bin/python -c 'import sysconfig; print(sysconfig.get_paths()["purelib"])')"
+mkdir -p "$site/perpend" .venv/etc/jupyter/jupyter_server_config.d
+cp perpend/__init__.py perpend/server.py "$site/perpend/"
+cp jupyter-config/server-config/perpend.json .venv/etc/jupyter/jupyter_server_config.d/perpend.json

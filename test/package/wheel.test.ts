@@ -55,6 +55,11 @@ test('the wheel holds the prebuilt extension in its shared data', () => {
     new RegExp(`${data.replace(/[.]/g, '\\.')}static/remoteEntry\\.[0-9a-f]+\\.js`)
   );
   expect(listing).toContain(`${data}schemas/perpend/plugin.json`);
+  // the server extension (kernel websockets without Nagle's delay) and its switch
+  expect(listing).toContain('perpend/server.py');
+  expect(listing).toContain(
+    'perpend-0.1.0.data/data/etc/jupyter/jupyter_server_config.d/perpend.json'
+  );
 });
 
 test('installed into a fresh venv with JupyterLab, it is listed as enabled and OK', () => {
@@ -73,4 +78,11 @@ test('installed into a fresh venv with JupyterLab, it is listed as enabled and O
     ''
   );
   expect(listing).toMatch(/perpend v0\.1\.0 enabled OK \(python, perpend\)/);
+  const server = run(
+    path.join(VENV, 'bin', 'jupyter'),
+    ['server', 'extension', 'list'],
+    env
+  ).replace(ansi, '');
+  expect(server).toMatch(/perpend enabled/);
+  expect(server).toMatch(/perpend 0\.1\.0 OK/);
 });
