@@ -5,7 +5,7 @@
  * back under a new name and read it in a new cell.
  */
 import { LabBrowser } from './browser';
-import { openNotebook, palette, runAllCells } from './lab-actions';
+import { dismissToasts, openNotebook, palette, runAllCells } from './lab-actions';
 
 const ALLOW: RegExp[] = [];
 
@@ -48,7 +48,9 @@ test('send an output to Perpend, remove the hum, write the result back and read 
   );
   expect(await card.getAttribute('data-origin')).toBe('kernel');
 
-  // Remove the hum: fs is prefilled from the kernel variable fs = 4000.
+  // Remove the hum: fs is prefilled from the kernel variable fs = 4000. The load's notification
+  // can sit over the card's buttons, and its timer pauses while the pointer rests on it.
+  await dismissToasts(page);
   await card.locator('.pp-LoadedItem-hum').click();
   const dialog = page.locator('.jp-Dialog');
   await dialog.waitFor();

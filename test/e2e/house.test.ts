@@ -10,7 +10,14 @@ import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { LabBrowser, SCREENSHOTS } from './browser';
 import { REPO } from './lab-server';
-import { openNotebook, palette, runAllCells, setTheme, waitKernelIdle } from './lab-actions';
+import {
+  dismissToasts,
+  openNotebook,
+  palette,
+  runAllCells,
+  setTheme,
+  waitKernelIdle
+} from './lab-actions';
 
 const ALLOW: RegExp[] = [];
 // A notebook and workspace of its own, so that this file's kernel touches no other test's.
@@ -50,26 +57,6 @@ afterAll(async () => {
 
 function cell(page: Page, text: string) {
   return page.locator(`${SHOWN} .jp-CodeCell`, { hasText: text }).first();
-}
-
-/**
- * Closes the notifications, which JupyterLab shows over the bottom of the right sidebar (their
- * timers pause while the headless window has no focus, so they are closed by their button).
- */
-async function dismissToasts(page: Page): Promise<void> {
-  const close = page.locator('#react-toastify-container .jp-Notification-Toast-Close');
-  for (let i = 0; i < 10 && (await close.count()) > 0; i++) {
-    await close
-      .first()
-      .click({ timeout: 2000 })
-      .catch(() => undefined);
-  }
-  try {
-    await page.locator('.Toastify__toast').first().waitFor({ state: 'detached', timeout: 10000 });
-  } catch {
-    const left = await page.locator('#react-toastify-container').innerHTML();
-    throw new Error(`notifications still shown: ${JSON.stringify(left)}`);
-  }
 }
 
 async function contextMenuItems(page: Page, text: string): Promise<string[]> {

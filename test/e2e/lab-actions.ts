@@ -154,3 +154,23 @@ export async function runCell(
   await page.keyboard.press('d');
   return text;
 }
+
+/**
+ * Closes the notifications, which JupyterLab shows over the bottom of the right sidebar (their
+ * timers pause while the headless window has no focus, so they are closed by their button).
+ */
+export async function dismissToasts(page: Page): Promise<void> {
+  const close = page.locator('#react-toastify-container .jp-Notification-Toast-Close');
+  for (let i = 0; i < 10 && (await close.count()) > 0; i++) {
+    await close
+      .first()
+      .click({ timeout: 2000 })
+      .catch(() => undefined);
+  }
+  try {
+    await page.locator('.Toastify__toast').first().waitFor({ state: 'detached', timeout: 10000 });
+  } catch {
+    const left = await page.locator('#react-toastify-container').innerHTML();
+    throw new Error(`notifications still shown: ${JSON.stringify(left)}`);
+  }
+}
