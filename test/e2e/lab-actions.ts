@@ -1,5 +1,5 @@
 /** What a user does in JupyterLab, as playwright steps (menus, palette, waiting for the kernel). */
-import type { Page } from 'playwright-core';
+import type { Locator, Page } from 'playwright-core';
 
 export async function openNotebook(page: Page, url: string): Promise<void> {
   await page.goto(url);
@@ -173,4 +173,54 @@ export async function dismissToasts(page: Page): Promise<void> {
     const left = await page.locator('#react-toastify-container').innerHTML();
     throw new Error(`notifications still shown: ${JSON.stringify(left)}`);
   }
+}
+
+/**
+ * The contrast ratio of an element's text against the background it is drawn on (the first
+ * opaque background up its ancestors, with translucent ones composited over it), as WCAG 2.1
+ * defines it (Success Criterion 1.4.3, "relative luminance" and "contrast ratio"): (L1 + 0.05) /
+ * (L2 + 0.05) with L = 0.2126 R + 0.7152 G + 0.0722 B of the linearised sRGB channels. Colours are
+ * resolved by the browser itself (painted on a canvas), whatever CSS syntax produced them.
+ */
+export async function textContrast(target: Locator): Promise<number> {
+  return target.evaluate(el => {
+    const ctx = document.createElement('canvas').getContext('2d', { willReadFrequently: true })!;
+    const rgba = (css: string): number[] => {
+      ctx.clearRect(0, 0, 1, 1);
+      ctx.fillStyle = css;
+      ctx.fillRect(0, 0, 1, 1);
+      const d = ctx.getImageData(0, 0, 1, 1).data;
+      return [d[0], d[1], d[2], d[3] / 255];
+    };
+    const over = (top: number[], under: number[]): number[] => [
+      top[0] * top[3] + under[0] * (1 - top[3]),
+      top[1] * top[3] + under[1] * (1 - top[3]),
+      top[2] * top[3] + under[2] * (1 - top[3]),
+      1
+    ];
+    const layers: number[][] = [];
+    for (let n: Element | null = el; n; n = n.parentElement) {
+      const c = rgba(getComputedStyle(n).backgroundColor);
+      if (c[3] > 0) {
+        layers.push(c);
+      }
+      if (c[3] >= 1) {
+        break;
+      }
+    }
+    let bg = [255, 255, 255, 1];
+    for (const c of layers.reverse()) {
+      bg = over(c, bg);
+    }
+    const fg = over(rgba(getComputedStyle(el).color), bg);
+    const lum = (c: number[]): number => {
+      const lin = (v: number): number => {
+        const s = v / 255;
+        return s <= 0.04045 ? s / 12.92 : Math.pow((s + 0.055) / 1.055, 2.4);
+      };
+      return 0.2126 * lin(c[0]) + 0.7152 * lin(c[1]) + 0.0722 * lin(c[2]);
+    };
+    const [a, b] = [lum(fg), lum(bg)].sort((x, y) => y - x);
+    return (a + 0.05) / (b + 0.05);
+  });
 }

@@ -8,7 +8,14 @@
 import type { Locator, Page } from 'playwright-core';
 import { openDemoWorkbench } from './workbench-form';
 import type { LabBrowser } from './browser';
-import { menu, palette, setTheme, waitNotebookReady, runCell as runLabCell } from './lab-actions';
+import {
+  menu,
+  palette,
+  setTheme,
+  textContrast,
+  waitNotebookReady,
+  runCell as runLabCell
+} from './lab-actions';
 
 // JupyterLab's own debugger says this when a kernel restarts under it (not Perpend's).
 const ALLOW: RegExp[] = [/Canceled future for debug_request/];
@@ -215,10 +222,14 @@ test('(c) a λ sweep of three values beside NLMS on the same data, all runs list
   await compare.scrollIntoViewIfNeeded();
   await page.waitForTimeout(1000);
   await lab.screenshot('workbench-c-compare-light');
+  // The run shown in detail stands out, and its text stays readable in both themes.
+  const selected = card('λ sweep').locator('.pp-RunRow.pp-mod-selected .pp-RunRow-label');
+  expect(await textContrast(selected)).toBeGreaterThanOrEqual(4.5);
   await setTheme(page, 'JupyterLab Dark');
   await page.waitForTimeout(1500);
   await compare.scrollIntoViewIfNeeded();
   await lab.screenshot('workbench-c-compare-dark');
+  expect(await textContrast(selected)).toBeGreaterThanOrEqual(4.5);
   await setTheme(page, 'JupyterLab Light');
   // The table in the workbench's narrow side column: a block per run with each figure's name
   // and unit beside its value, nothing scrolling sideways.
