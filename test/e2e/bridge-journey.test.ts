@@ -49,7 +49,8 @@ test('send an output to Perpend, remove the hum, write the result back and read 
   expect(await card.getAttribute('data-origin')).toBe('kernel');
 
   // Remove the hum: fs is prefilled from the kernel variable fs = 4000. The load's notification
-  // can sit over the card's buttons, and its timer pauses while the pointer rests on it.
+  // can sit over the card's buttons, and its timer pauses while the pointer rests on it or the
+  // headless window has no focus.
   await dismissToasts(page);
   await card.locator('.pp-LoadedItem-hum').click();
   const dialog = page.locator('.jp-Dialog');
