@@ -58,7 +58,7 @@ describe('figures', () => {
 
   test('axis types are stated (numbers: linear; a bar chart of names: category), never guessed', () => {
     // plotly guesses a missing axis type by scanning every trace's data on each draw
-    // (common practice to state it; measured here: about a tenth of a small plot's draw).
+    // (common practice to state it; measured in the page: 0.2–1.9 ms of a 10–12 ms draw).
     const l = buildView(trans, run, 'learning', DEFAULT_VIEW_OPTIONS, DEFAULT_PLOT_SETTINGS);
     const fig = buildFigure(l, theme, null, 300, { width: 600, height: 400 });
     expect((fig.layout.xaxis as { type: string }).type).toBe('linear');
