@@ -65,7 +65,8 @@ test('send an output to Perpend, remove the hum, write the result back and read 
   expect(suppression).toBeDefined();
   expect(notes).toContain('Projected off 10 harmonic directions');
 
-  // Save it to the kernel as primary_dehum.
+  // Save it to the kernel as primary_dehum (past the removal's notification).
+  await dismissToasts(page);
   await result.locator('.pp-LoadedItem-save').click();
   const nameInput = page.locator('.jp-Dialog input');
   await nameInput.waitFor();

@@ -9,7 +9,13 @@
 import type { Locator, Page } from 'playwright-core';
 import { openDemoWorkbench } from './workbench-form';
 import type { LabBrowser } from './browser';
-import { palette, setTheme, waitNotebookReady, runCell as runLabCell } from './lab-actions';
+import {
+  dismissToasts,
+  palette,
+  setTheme,
+  waitNotebookReady,
+  runCell as runLabCell
+} from './lab-actions';
 
 const ALLOW: RegExp[] = [];
 const NOTEBOOK = 'workbench-commands.ipynb';
@@ -98,6 +104,8 @@ test('a panel result as the primary, run with Ctrl+Enter; a long run cancelled w
   await page.keyboard.press('Enter');
   const loaded = sidebar.locator('.pp-LoadedItem[data-label="primary"]');
   await loaded.waitFor({ timeout: 60000 });
+  // The load's notification can sit over the card's buttons (see dismissToasts).
+  await dismissToasts(page);
   await loaded.locator('.pp-LoadedItem-hum').click();
   const dialog = page.locator('.jp-Dialog');
   const form = (name: string) => dialog.locator(`.pp-Form-field[data-field="${name}"] input`);
