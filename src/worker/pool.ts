@@ -19,6 +19,7 @@ import {
   type JobTiming,
   type SweepSpec
 } from './protocol';
+import { PartReceiver } from './result-parts';
 import type { TransportFactory, WorkerTransport } from './transport';
 
 export interface PoolOptions {
@@ -101,6 +102,10 @@ interface Job {
   cancelTimer: ReturnType<typeof setTimeout> | null;
   cancelRequested: boolean;
   lastDone: number;
+  /** Result arrays received ahead of the result (result-parts.ts), made on the first part. */
+  parts: PartReceiver | null;
+  /** Why a part was refused (the job then fails when its result comes). */
+  partError: string | null;
 }
 
 interface Slot {
@@ -190,7 +195,9 @@ export class WorkerPool {
       resolve,
       cancelTimer: null,
       cancelRequested: false,
-      lastDone: 0
+      lastDone: 0,
+      parts: null,
+      partError: null
     };
     const handle: JobHandle = {
       id,
@@ -374,10 +381,27 @@ export class WorkerPool {
           }
         }
         return;
-      case 'result':
+      case 'part':
+        if (job.partError === null) {
+          job.parts ??= new PartReceiver();
+          job.partError = job.parts.take(m);
+        }
+        return;
+      case 'result': {
         slot.job = null;
-        this._settle(job, { status: 'done', result: m.result, timing: m.timing });
+        const whole = job.partError === null ? (job.parts?.fill(m.result) ?? m) : null;
+        job.parts = null;
+        if (whole === null || 'error' in whole) {
+          this._settle(job, {
+            status: 'failed',
+            reason: whole?.error ?? job.partError ?? '',
+            errorName: 'ProtocolError'
+          });
+        } else {
+          this._settle(job, { status: 'done', result: whole.result, timing: m.timing });
+        }
         break;
+      }
       case 'failed':
         slot.job = null;
         this._settle(job, { status: 'failed', reason: m.error.message, errorName: m.error.name });
@@ -501,6 +525,7 @@ export class WorkerPool {
       return;
     }
     job.state = 'settled';
+    job.parts = null;
     if (job.cancelTimer !== null) {
       clearTimeout(job.cancelTimer);
       job.cancelTimer = null;

@@ -17,6 +17,10 @@
  *                                            their values (buffers transferred), or why not;
  *   worker → main  `progress` {id, done, total, stage}
  *                                            after each chunk of the core (samples, or steps);
+ *   worker → main  `part` {id, key, offset, length, data}
+ *                                            the next values of a result array as they are
+ *                                            computed (result-parts.ts), in order; the result
+ *                                            then carries that array with an empty data;
  *   main → worker  `cancel` {id}             seen at the next chunk border;
  *   worker → main  `result` {id, result, timing} | `failed` {id, error} | `cancelled` {id, done}
  *                                            exactly one of the three per run; result buffers
@@ -33,7 +37,7 @@ import type {
 import type { Algorithm, Constellation, Precision } from '../core/filters';
 
 /** Version of this protocol; the worker announces it in `ready`. */
-export const PROTOCOL_VERSION = 2;
+export const PROTOCOL_VERSION = 3;
 
 // ---------------------------------------------------------------------------------------------
 // Arrays
@@ -475,6 +479,23 @@ export interface ProgressMessage {
   stage: string;
 }
 
+/**
+ * Result arrays a job may send ahead of its result, as it computes them (result-parts.ts): an
+ * adaptive filter's output and error, and its learning curve for one trial.
+ */
+export type PartKey = 'output' | 'error' | 'learningCurve';
+
+/** Values [offset, offset + data.length) of the result array `key`, whose length is `length`. */
+export interface PartMessage {
+  type: 'part';
+  id: number;
+  key: PartKey;
+  offset: number;
+  length: number;
+  /** Its buffer is transferred. */
+  data: Float64Array;
+}
+
 export interface ResultMessage {
   type: 'result';
   id: number;
@@ -497,7 +518,13 @@ export interface CancelledMessage {
 }
 
 export type FromWorker =
-  ReadyMessage | NeedMessage | ProgressMessage | ResultMessage | FailedMessage | CancelledMessage;
+  | ReadyMessage
+  | NeedMessage
+  | ProgressMessage
+  | PartMessage
+  | ResultMessage
+  | FailedMessage
+  | CancelledMessage;
 
 // ---------------------------------------------------------------------------------------------
 // Helpers on plain data

@@ -15,6 +15,7 @@ import {
   type ToWorker
 } from './protocol';
 import { JobCancelled, runJob, type JobContext } from './jobs';
+import { PartSender } from './result-parts';
 
 /** How the worker talks to its owner. */
 export interface Endpoint {
@@ -72,7 +73,9 @@ export function serve(endpoint: Endpoint, yieldNow: () => Promise<void> = defaul
     let lastPost = -Infinity;
     let lastTotal = 0;
     const unit = spec?.kind === 'adaptive-filter' ? 'samples' : 'steps';
+    const parts = new PartSender((m, transfer) => endpoint.post(m, transfer), id);
     const ctx: JobContext = {
+      part: (key, array, filled) => parts.note(key, array, filled),
       checkpoint: async (done, total, stage) => {
         lastTotal = total;
         const now = performance.now();
@@ -101,7 +104,7 @@ export function serve(endpoint: Endpoint, yieldNow: () => Promise<void> = defaul
       }
       // the job's time is its own, not the page's copying of inputs it was asked for
       t0 = performance.now();
-      const result = await runJob(spec, ctx);
+      const result = parts.strip(await runJob(spec, ctx));
       const ms = performance.now() - t0;
       endpoint.post(
         {

@@ -322,6 +322,85 @@ describe('adaptive-filter job', () => {
     ).rejects.toThrow(/reference has shape \[4\], which needs 4 values, but its data holds 3/);
   });
 
+  test.each([
+    ['one trial, real', 1, false],
+    ['one trial, complex', 1, true],
+    ['three trials (K×N), real', 3, false]
+  ])(
+    'the arrays said final chunk by chunk are the result’s, in order (%s)',
+    async (_name, K, complex) => {
+      const rng = new Rng(23);
+      const N = 3000;
+      const { x, d } = fir(rng, K, N, [0.7, -0.2], 0.05, complex);
+      const W = complex ? 2 : 1;
+      const seen: Record<string, { array: Float64Array; filled: number[] }> = {};
+      const ctx: JobContext = {
+        checkpoint: () => Promise.resolve(),
+        part: (key, array, filled) => {
+          seen[key] ??= { array, filled: [] };
+          expect(seen[key].array).toBe(array); // one array per key
+          seen[key].filled.push(filled);
+        }
+      };
+      const shape = K > 1 ? [K, N] : [N];
+      const r = await run(
+        {
+          kind: 'adaptive-filter',
+          configuration: {
+            kind: 'system-identification',
+            input: arr(x, shape, complex),
+            output: arr(d, shape, complex)
+          },
+          algorithm: 'qr-rls',
+          taps: 3,
+          lambda: 0.99,
+          chunkSize: 700
+        },
+        ctx
+      );
+      // the output and error, every chunk of every trial; the learning curve only for one
+      // trial (an ensemble's mean is known at the end)
+      expect(Object.keys(seen).sort()).toEqual(
+        K === 1 ? ['error', 'learningCurve', 'output'] : ['error', 'output']
+      );
+      expect(seen.output.array).toBe(r.output.data);
+      expect(seen.error.array).toBe(r.error.data);
+      const ends: number[] = [];
+      for (let k = 0; k < K; k++) {
+        for (const s of [700, 1400, 2100, 2800, 3000]) {
+          ends.push((k * N + s) * W);
+        }
+      }
+      expect(seen.output.filled).toEqual(ends);
+      expect(seen.error.filled).toEqual(ends);
+      if (K === 1) {
+        expect(seen.learningCurve.array).toBe(r.learningCurve);
+        expect(seen.learningCurve.filled).toEqual([700, 1400, 2100, 2800, 3000]);
+        // filled chunk by chunk, the curve is the core's |e(n)|² of the whole error, bit for bit
+        expect(r.learningCurve).toEqual(squaredError(r.error.data, complex));
+      }
+      // and the run is the one without a runner that takes parts
+      const plain = await run(
+        {
+          kind: 'adaptive-filter',
+          configuration: {
+            kind: 'system-identification',
+            input: arr(x, shape, complex),
+            output: arr(d, shape, complex)
+          },
+          algorithm: 'qr-rls',
+          taps: 3,
+          lambda: 0.99,
+          chunkSize: 700
+        },
+        directContext
+      );
+      expect(r.output.data).toEqual(plain.output.data);
+      expect(r.learningCurve).toEqual(plain.learningCurve);
+      expect(r.figures).toEqual(plain.figures);
+    }
+  );
+
   test('a checkpoint that cancels stops the job at a chunk border', async () => {
     const rng = new Rng(17);
     const { x, d } = fir(rng, 1, 5000, [1], 0.1);

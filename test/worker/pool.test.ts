@@ -7,7 +7,7 @@
  */
 import * as fs from 'fs';
 import * as path from 'path';
-import { runFilter, type FilterRun } from '../../src/core';
+import { runFilter, squaredError, type FilterRun } from '../../src/core';
 import { WorkerPool, type JobOutcome, type JobProgress } from '../../src/worker/pool';
 import type {
   AdaptiveFilterResult,
@@ -16,6 +16,7 @@ import type {
   FromWorker,
   InterferenceResult
 } from '../../src/worker/protocol';
+import { PROTOCOL_VERSION } from '../../src/worker/protocol';
 import type { WorkerTransport } from '../../src/worker/transport';
 import { Rng } from '../core/filters/helpers';
 import { buildNodeWorker, nodeTransport, type ShimOptions } from './node-worker';
@@ -299,6 +300,115 @@ test('a sweep runs one job per value on a pool of 2; each equals its direct core
     const r = done(o);
     expectSameRun(r, runFilter(x, d, { algorithm: 'qr-rls', taps: 8, lambda: lambdas[k] }));
   });
+});
+
+test('a long run’s output, error and learning curve arrive in parts before its result, whole and exact', async () => {
+  const N = 200000;
+  const { x, d } = data(N, 12);
+  const parts: Record<string, Array<[number, number]>> = {};
+  let resultAt = -1;
+  let count = 0;
+  const p = pool({
+    createTransport: () => {
+      const t = nodeTransport(shim);
+      return {
+        postMessage: (m, transfer) => t.postMessage(m, transfer),
+        onMessage: h =>
+          t.onMessage((m: FromWorker) => {
+            count++;
+            if (m.type === 'part') {
+              (parts[m.key] ??= []).push([m.offset, m.data.length]);
+            } else if (m.type === 'result') {
+              resultAt = count;
+              const r = m.result as AdaptiveFilterResult;
+              // the result itself carries them empty
+              expect([r.output.data.length, r.error.data.length, r.learningCurve.length]).toEqual([
+                0, 0, 0
+              ]);
+            }
+            h(m);
+          }),
+        onFailure: h => t.onFailure(h),
+        terminate: () => t.terminate()
+      };
+    }
+  });
+  const r = done(await p.run(spec(x, d)).outcome);
+  expect(resultAt).toBe(count);
+  for (const key of ['output', 'error', 'learningCurve']) {
+    const spans = parts[key];
+    // in order, each of at least 2^16 values but the last, covering the N samples
+    expect(spans.length).toBeGreaterThanOrEqual(3);
+    let next = 0;
+    spans.forEach(([offset, n], i) => {
+      expect(offset).toBe(next);
+      if (i < spans.length - 1) {
+        expect(n).toBeGreaterThanOrEqual(65536);
+      }
+      next += n;
+    });
+    expect(next).toBe(N);
+  }
+  expectSameRun(r, runFilter(x, d, { algorithm: 'qr-rls', taps: 8, lambda: 0.999 }));
+  expect(r.learningCurve).toEqual(squaredError(r.error.data));
+});
+
+test('a part the page cannot take fails the run with the reason', async () => {
+  const posted: string[] = [];
+  const p = pool({
+    createTransport: () => {
+      let handler: (m: FromWorker) => void = () => undefined;
+      setTimeout(() => handler({ type: 'ready', protocol: PROTOCOL_VERSION }), 0);
+      return {
+        postMessage: m => {
+          posted.push(m.type);
+          if (m.type === 'run') {
+            const id = m.id;
+            setTimeout(() => {
+              handler({
+                type: 'part',
+                id,
+                key: 'output',
+                offset: 0,
+                length: 4,
+                data: new Float64Array(2)
+              });
+              handler({
+                type: 'part',
+                id,
+                key: 'output',
+                offset: 3,
+                length: 4,
+                data: new Float64Array(1)
+              });
+              handler({
+                type: 'result',
+                id,
+                result: {
+                  kind: 'csv',
+                  status: 'ok',
+                  warnings: [],
+                  bytes: new Uint8Array(0),
+                  rows: 0
+                },
+                timing: { ms: 1, perSecond: null }
+              });
+            }, 0);
+          }
+        },
+        onMessage: h => (handler = h),
+        onFailure: () => undefined,
+        terminate: () => undefined
+      };
+    }
+  });
+  const { x, d } = data(4, 13);
+  await expect(p.run(spec(x, d, { taps: 2 })).outcome).resolves.toEqual({
+    status: 'failed',
+    reason: 'the worker sent values 3… of the output (of 4) after 2 of 4: out of order',
+    errorName: 'ProtocolError'
+  });
+  expect(posted).toEqual(['run']);
 });
 
 test('a job with no chunk border in sight is stopped by terminating its worker', async () => {

@@ -33,14 +33,22 @@ function checkArray(name: string, a: unknown): Arr {
   return a as Arr;
 }
 
-/** |e(n)|² of a real or interleaved complex error signal. */
-export function squaredError(e: Arr, complex = false): Float64Array {
+/**
+ * |e(n)|² of a real or interleaved complex error signal, into `out` when given (its length the
+ * number of samples; nothing is allocated then, for a caller filling a curve chunk by chunk).
+ */
+export function squaredError(e: Arr, complex = false, out?: Float64Array): Float64Array {
   checkArray('e', e);
   if (complex && e.length % 2 !== 0) {
     throw new RangeError(`e must hold (re, im) pairs when complex, got length ${e.length}`);
   }
   const n = complex ? e.length / 2 : e.length;
-  const out = new Float64Array(n);
+  if (out !== undefined && (!(out instanceof Float64Array) || out.length !== n)) {
+    throw new RangeError(
+      `out must be a Float64Array of ${n} values (one per sample of e), got ${describe(out)}`
+    );
+  }
+  out ??= new Float64Array(n);
   if (e instanceof Float64Array) {
     squaredErrorF64(e, complex, out);
   } else if (complex) {

@@ -160,6 +160,8 @@ export async function runAdaptiveFilter(
   const y32 = f32 ? mk(cn * W) : null;
   const e32 = f32 ? mk(cn * W) : null;
   const warnings: JobWarning[] = [];
+  // one trial's learning curve |e(n)|² is filled chunk by chunk, so that it can be sent ahead
+  const curve1 = K === 1 ? new Float64Array(N) : null;
   const total = K * N;
   let energyD = 0;
   let energyE = 0;
@@ -185,6 +187,13 @@ export async function runAdaptiveFilter(
         e.set(e32.subarray(0, n * W), (k * N + s) * W);
       }
       trajRow += r.trajectoryIndex.length;
+      const filled = (k * N + s + n) * W;
+      ctx.part?.('output', y, filled);
+      ctx.part?.('error', e, filled);
+      if (curve1) {
+        squaredError(e.subarray(s * W, (s + n) * W), complex, curve1.subarray(s, s + n));
+        ctx.part?.('learningCurve', curve1, s + n);
+      }
       await ctx.checkpoint(k * N + s + n, total, K > 1 ? `trial ${k + 1} of ${K}` : 'filtering');
     }
     weights.set(filt.weights(), k * L);
@@ -202,7 +211,7 @@ export async function runAdaptiveFilter(
     }
   }
   keepWarm(opts);
-  const curves = squaredError(e, complex); // K·N values, trial-major
+  const curves = curve1 ?? squaredError(e, complex); // K·N values, trial-major
   for (let i = 0; i < curves.length; i++) {
     energyE += curves[i];
   }

@@ -4,6 +4,7 @@
  * Jobs are pure functions of their spec and this context, so they run the same in a worker, in
  * a test, or on the main thread.
  */
+import type { PartKey } from '../protocol';
 
 /** Thrown by a checkpoint after a cancel; the runner turns it into a `cancelled` message. */
 export class JobCancelled extends Error {
@@ -19,6 +20,12 @@ export interface JobContext {
    * in, and throws JobCancelled when the job was cancelled meanwhile.
    */
   checkpoint(done: number, total: number, stage: string): Promise<void>;
+  /**
+   * Says that the leading `filled` values of `array`, the result's array `key`, are final: a
+   * runner may send them ahead of the result (result-parts.ts). The job keeps writing the rest
+   * and returns the whole array in its result as usual. Absent: nothing is sent ahead.
+   */
+  part?(key: PartKey, array: Float64Array, filled: number): void;
 }
 
 /** A context that never yields nor cancels (a direct call, e.g. in a test or a benchmark). */
