@@ -481,9 +481,9 @@ export interface ProgressMessage {
 
 /**
  * Result arrays a job may send ahead of its result, as it computes them (result-parts.ts): an
- * adaptive filter's output and error, and its learning curve for one trial.
+ * adaptive filter's output and error, and for one trial its learning curve and smoothed copy.
  */
-export type PartKey = 'output' | 'error' | 'learningCurve';
+export type PartKey = 'output' | 'error' | 'learningCurve' | 'learningCurveSmoothed';
 
 /** Values [offset, offset + data.length) of the result array `key`, whose length is `length`. */
 export interface PartMessage {

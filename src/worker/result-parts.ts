@@ -5,8 +5,9 @@
  * its smoothed copy). Arriving all at once with the result, they set off the page's major
  * garbage collection just as the result was drawn: on two cores the collector's marking threads
  * took the cores from the draw (bench:ui's stall case, traced). Sent in parts while the job runs,
- * the page allocates each array when its first part arrives, at the start of the run, and fills
- * it while it has nothing else to do; the result then brings only what is made at the end.
+ * the page allocates each array when its first part arrives, at the start of the run (where the
+ * collection then starts, traced), and fills it while it has nothing else to do; the result
+ * brings only what is made at the end (weights, figures).
  *
  * The worker's side (PartSender) sends the values a job says are final, at least PART_VALUES at
  * a time, in order, and takes the arrays it sent whole out of the result (an empty data). The
@@ -42,6 +43,11 @@ const SLOTS: Record<
     label: 'learning curve',
     get: r => r.learningCurve ?? null,
     with: (r, a) => ({ ...r, learningCurve: a })
+  },
+  learningCurveSmoothed: {
+    label: 'smoothed learning curve',
+    get: r => r.learningCurveSmoothed ?? null,
+    with: (r, a) => ({ ...r, learningCurveSmoothed: a })
   }
 };
 
@@ -142,8 +148,10 @@ export class PartReceiver {
     let r = result;
     for (const [key, p] of this._parts) {
       const own = SLOTS[key].get(r);
-      if (own && own.length > 0) {
-        continue; // the result brought its own values
+      if (own === null || own.length > 0) {
+        // the result brought its own values, or has none (a smoothed curve is dropped when the
+        // curve turns out not to be finite)
+        continue;
       }
       if (p.filled !== p.data.length) {
         return {

@@ -361,7 +361,9 @@ describe('adaptive-filter job', () => {
       // the output and error, every chunk of every trial; the learning curve only for one
       // trial (an ensemble's mean is known at the end)
       expect(Object.keys(seen).sort()).toEqual(
-        K === 1 ? ['error', 'learningCurve', 'output'] : ['error', 'output']
+        K === 1
+          ? ['error', 'learningCurve', 'learningCurveSmoothed', 'output']
+          : ['error', 'output']
       );
       expect(seen.output.array).toBe(r.output.data);
       expect(seen.error.array).toBe(r.error.data);
@@ -378,6 +380,12 @@ describe('adaptive-filter job', () => {
         expect(seen.learningCurve.filled).toEqual([700, 1400, 2100, 2800, 3000]);
         // filled chunk by chunk, the curve is the core's |e(n)|² of the whole error, bit for bit
         expect(r.learningCurve).toEqual(squaredError(r.error.data, complex));
+        // its smoothed copy (window N/50 = 60) is final a whole block of 4096 samples at a time:
+        // here only at the end; the values are the core's moving average of the whole curve
+        expect(seen.learningCurveSmoothed.array).toBe(r.learningCurveSmoothed);
+        expect(seen.learningCurveSmoothed.filled).toEqual([0, 0, 0, 0, 3000]);
+        expect(r.figures.window).toBe(60);
+        expect(r.learningCurveSmoothed).toEqual(movingAverage(r.learningCurve, 60));
       }
       // and the run is the one without a runner that takes parts
       const plain = await run(

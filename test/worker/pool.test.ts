@@ -7,7 +7,7 @@
  */
 import * as fs from 'fs';
 import * as path from 'path';
-import { runFilter, squaredError, type FilterRun } from '../../src/core';
+import { movingAverage, runFilter, squaredError, type FilterRun } from '../../src/core';
 import { WorkerPool, type JobOutcome, type JobProgress } from '../../src/worker/pool';
 import type {
   AdaptiveFilterResult,
@@ -302,7 +302,7 @@ test('a sweep runs one job per value on a pool of 2; each equals its direct core
   });
 });
 
-test('a long run’s output, error and learning curve arrive in parts before its result, whole and exact', async () => {
+test('a long run’s output, error and learning curves arrive in parts before its result, whole and exact', async () => {
   const N = 200000;
   const { x, d } = data(N, 12);
   const parts: Record<string, Array<[number, number]>> = {};
@@ -322,9 +322,12 @@ test('a long run’s output, error and learning curve arrive in parts before its
               resultAt = count;
               const r = m.result as AdaptiveFilterResult;
               // the result itself carries them empty
-              expect([r.output.data.length, r.error.data.length, r.learningCurve.length]).toEqual([
-                0, 0, 0
-              ]);
+              expect([
+                r.output.data.length,
+                r.error.data.length,
+                r.learningCurve.length,
+                r.learningCurveSmoothed?.length
+              ]).toEqual([0, 0, 0, 0]);
             }
             h(m);
           }),
@@ -335,7 +338,7 @@ test('a long run’s output, error and learning curve arrive in parts before its
   });
   const r = done(await p.run(spec(x, d)).outcome);
   expect(resultAt).toBe(count);
-  for (const key of ['output', 'error', 'learningCurve']) {
+  for (const key of ['output', 'error', 'learningCurve', 'learningCurveSmoothed']) {
     const spans = parts[key];
     // in order, each of at least 2^16 values but the last, covering the N samples
     expect(spans.length).toBeGreaterThanOrEqual(3);
@@ -351,6 +354,7 @@ test('a long run’s output, error and learning curve arrive in parts before its
   }
   expectSameRun(r, runFilter(x, d, { algorithm: 'qr-rls', taps: 8, lambda: 0.999 }));
   expect(r.learningCurve).toEqual(squaredError(r.error.data));
+  expect(r.learningCurveSmoothed).toEqual(movingAverage(r.learningCurve, 1024));
 });
 
 test('a part the page cannot take fails the run with the reason', async () => {

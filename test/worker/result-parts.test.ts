@@ -81,7 +81,7 @@ test('parts of at least the stated size, in order, rebuild the arrays exactly; t
     (m, transfer) => {
       // the part's buffer is its own (a copy), the one transferred
       expect(transfer).toEqual([m.data.buffer]);
-      expect(m.data.buffer).not.toBe(arrays[m.key].buffer);
+      expect(m.data.buffer).not.toBe(arrays[m.key as keyof typeof arrays].buffer);
       sent.push({ ...m, data: Float64Array.from(m.data) });
     },
     7,

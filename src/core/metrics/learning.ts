@@ -119,10 +119,25 @@ export function movingAverage(x: Arr, window: number): Float64Array {
  * becomes full.
  */
 function movingAverageF64(x: Float64Array, window: number, out: Float64Array): void {
-  const n = x.length;
-  let s = 0;
-  for (let b = 0; b < n; b += 4096) {
-    const end = Math.min(b + 4096, n);
+  movingAverageBlocks(x, window, out, 0, x.length, 0);
+}
+
+/**
+ * The blocks of movingAverageF64 from `from` (a multiple of 4096) to `to` (a multiple of 4096,
+ * or x.length), continuing from the running sum `s` left by the blocks before; returns the sum
+ * to continue with. Each whole block ends with the exact re-summation, so what follows does not
+ * depend on where a caller stopped.
+ */
+function movingAverageBlocks(
+  x: Float64Array,
+  window: number,
+  out: Float64Array,
+  from: number,
+  to: number,
+  s: number
+): number {
+  for (let b = from; b < to; b += 4096) {
+    const end = Math.min(b + 4096, to);
     // samples whose window is not full yet: the mean of what is available
     const full = Math.min(Math.max(b, window), end);
     let i = b;
@@ -145,6 +160,48 @@ function movingAverageF64(x: Float64Array, window: number, out: Float64Array): v
       out[last] = s / Math.min(last + 1, window);
     }
   }
+  return s;
+}
+
+/**
+ * movingAverage(x, window) made while x is being filled: each `advance(filled)` smooths the whole
+ * blocks of 4096 samples below `filled` (everything once filled = x.length) into `out`, with
+ * the same sums in the same order as movingAverage (identical values). For a job that fills a
+ * learning curve chunk by chunk and sends its smoothed copy as it goes. Allocates only `out`.
+ */
+export class MovingAverageFill {
+  /** The smoothed values; the leading `done` of them are final. */
+  readonly out: Float64Array;
+
+  constructor(
+    readonly x: Float64Array,
+    readonly window: number
+  ) {
+    if (!(x instanceof Float64Array)) {
+      throw new TypeError(`x must be a Float64Array, got ${describe(x)}`);
+    }
+    checkInteger('window', window, 1);
+    this.out = new Float64Array(x.length);
+  }
+
+  /** Leading values of `out` that are final. */
+  get done(): number {
+    return this._done;
+  }
+
+  /** x[0 … filled) is final: smooths what that allows; returns `done`. */
+  advance(filled: number): number {
+    const n = this.x.length;
+    const to = filled >= n ? n : Math.max(0, filled - (filled % 4096));
+    if (to > this._done) {
+      this._s = movingAverageBlocks(this.x, this.window, this.out, this._done, to, this._s);
+      this._done = to;
+    }
+    return this._done;
+  }
+
+  private _done = 0;
+  private _s = 0;
 }
 
 /** Learning curve: the squared a-priori error, smoothed by a trailing moving average when `window` > 1. */

@@ -14,6 +14,7 @@ import {
   type FilterOptions
 } from '../../core/filters';
 import {
+  MovingAverageFill,
   convergenceTime,
   ensembleAverage,
   misadjustment,
@@ -160,8 +161,12 @@ export async function runAdaptiveFilter(
   const y32 = f32 ? mk(cn * W) : null;
   const e32 = f32 ? mk(cn * W) : null;
   const warnings: JobWarning[] = [];
-  // one trial's learning curve |e(n)|² is filled chunk by chunk, so that it can be sent ahead
+  // one trial's learning curve |e(n)|² and its smoothed copy are made chunk by chunk, so that
+  // they can be sent ahead (an ensemble's mean is known at the end)
   const curve1 = K === 1 ? new Float64Array(N) : null;
+  const window = figureWindow(spec, N);
+  const smoothing =
+    curve1 && window > 1 && N > 0 ? new MovingAverageFill(curve1, Math.min(window, N)) : null;
   const total = K * N;
   let energyD = 0;
   let energyE = 0;
@@ -193,6 +198,11 @@ export async function runAdaptiveFilter(
       if (curve1) {
         squaredError(e.subarray(s * W, (s + n) * W), complex, curve1.subarray(s, s + n));
         ctx.part?.('learningCurve', curve1, s + n);
+        if (smoothing) {
+          // (advanced whether or not the runner takes parts: the figures read it)
+          const done = smoothing.advance(s + n);
+          ctx.part?.('learningCurveSmoothed', smoothing.out, done);
+        }
       }
       await ctx.checkpoint(k * N + s + n, total, K > 1 ? `trial ${k + 1} of ${K}` : 'filtering');
     }
@@ -223,7 +233,8 @@ export async function runAdaptiveFilter(
     curve,
     N,
     warnings,
-    sm => (smoothed = sm === curve ? null : sm)
+    sm => (smoothed = sm === curve ? null : sm),
+    smoothing?.out
   );
   figures.errorReductionDb = energyE > 0 ? 10 * Math.log10(energyD / energyE) : null;
   const shape = (...s: number[]) => (K > 1 ? [K, ...s] : s);
@@ -268,12 +279,10 @@ export function readFigures(
   curve: Float64Array,
   N: number,
   warnings: JobWarning[],
-  keepSmoothed?: (smoothed: Float64Array) => void
+  keepSmoothed?: (smoothed: Float64Array) => void,
+  smoothedAlready?: Float64Array
 ): AdaptiveFilterFigures {
-  const window = spec.window ?? Math.min(1024, Math.max(1, Math.round(N / 50)));
-  if (!Number.isInteger(window) || window < 1) {
-    throw new RangeError(`window must be an integer ≥ 1, got ${String(spec.window)}`);
-  }
+  const window = figureWindow(spec, N);
   const tailIn = spec.tail ?? 0.1;
   const tail = tailIn > 0 && tailIn < 1 ? Math.max(1, Math.round(tailIn * N)) : tailIn;
   if (!Number.isInteger(tail) || tail < 1 || tail > N) {
@@ -306,7 +315,7 @@ export function readFigures(
   if (finite && N > 0) {
     // one smoothing serves the final MSE and the convergence time (convergenceTime with
     // `window` smooths the same way)
-    const sm = window > 1 ? movingAverage(curve, Math.min(window, N)) : curve;
+    const sm = window > 1 ? (smoothedAlready ?? movingAverage(curve, Math.min(window, N))) : curve;
     keepSmoothed?.(sm);
     finalMse = sm[N - 1];
     // the core's steadyStateMse (same sum, same order) without its finiteness pass, done above
@@ -340,6 +349,18 @@ export function readFigures(
     tail,
     marginDb
   };
+}
+
+/**
+ * The learning curve's smoothing window for the figures, in samples: the spec's, or N/50 within
+ * [1, 1024] (a window longer than the curve averages all of it).
+ */
+export function figureWindow(spec: Pick<AdaptiveFilterSpec, 'window'>, N: number): number {
+  const window = spec.window ?? Math.min(1024, Math.max(1, Math.round(N / 50)));
+  if (!Number.isInteger(window) || window < 1) {
+    throw new RangeError(`window must be an integer ≥ 1, got ${String(spec.window)}`);
+  }
+  return window;
 }
 
 /** Mean of the last `tail` values, summed in order (as the core's steadyStateMse). */

@@ -11,6 +11,7 @@ import {
   learningCurve,
   misadjustment,
   movingAverage,
+  MovingAverageFill,
   mseDb,
   normalQuantile,
   residualEnergy,
@@ -45,7 +46,28 @@ test('moving average, ensemble mean/std and normal quantiles match numpy/scipy',
       expect(movingAverage(c, w)).toEqual(Float64Array.from(movingAverage(Array.from(c), w)));
     }
   }
+  // made while the curve fills (a job's chunks, of sizes on and off the block grid), the same
+  // values bit for bit, so also within the bound of numpy's above
+  for (const w of [37, 4096, 5000]) {
+    const fill = new MovingAverageFill(curve, w);
+    const done: number[] = [];
+    for (const filled of [0, 1000, 4095, 4096, 4097, 9000, 8192, N]) {
+      done.push(fill.advance(filled));
+    }
+    expect(done).toEqual([0, 0, 0, 4096, 4096, 8192, 8192, N]);
+    expect(fill.out).toEqual(movingAverage(curve, w));
+  }
+  expect(() => new MovingAverageFill([1, 2] as never, 2)).toThrow(/x must be a Float64Array/);
+  expect(() => new MovingAverageFill(curve, 0)).toThrow(/window must be/);
   const e = rng.gaussArray(2 * 513, true);
+  // into a given array: the same values, nothing allocated; a wrong length is refused
+  const n = e.length / 2;
+  const into = new Float64Array(n);
+  expect(squaredError(e, true, into)).toBe(into);
+  expect(into).toEqual(squaredError(e, true));
+  expect(() => squaredError(e, true, new Float64Array(n - 1))).toThrow(
+    `out must be a Float64Array of ${n} values (one per sample of e), got Float64Array(${n - 1})`
+  );
   expect(squaredError(e, true)).toEqual(squaredError(Array.from(e), true));
   expect(squaredError(e)).toEqual(squaredError(Array.from(e)));
   const ens = ensembleAverage(trials, { K, confidence: 0.9 });
