@@ -9,7 +9,7 @@
  *   worker → main  `ready`                  once, when the worker's listener is installed; no
  *                                            buffer is handed over before it (a message sent
  *                                            earlier could be lost, and its buffers with it);
- *   main → worker  `run` {id, spec, holdBytes}
+ *   main → worker  `run` {id, spec, holdBytes, partsAhead}
  *                                            spec buffers in the transfer list;
  *   worker → main  `need` {id, names}        the named arrays of the spec (see ArrayData.held)
  *                                            this worker does not hold; before any progress;
@@ -18,9 +18,10 @@
  *   worker → main  `progress` {id, done, total, stage}
  *                                            after each chunk of the core (samples, or steps);
  *   worker → main  `part` {id, key, offset, length, data}
- *                                            the next values of a result array as they are
- *                                            computed (result-parts.ts), in order; the result
- *                                            then carries that array with an empty data;
+ *                                            when the run asked for parts ahead: the next
+ *                                            values of a result array as they are computed
+ *                                            (result-parts.ts), in order; the result then
+ *                                            carries that array with an empty data;
  *   main → worker  `cancel` {id}             seen at the next chunk border;
  *   worker → main  `result` {id, result, timing} | `failed` {id, error} | `cancelled` {id, done}
  *                                            exactly one of the three per run; result buffers
@@ -442,6 +443,8 @@ export interface RunMessage {
   spec: JobSpec;
   /** Bytes of named inputs this worker may keep for later jobs (0 or absent: none). */
   holdBytes?: number;
+  /** Send result arrays ahead in `part` messages as they are computed (absent: no). */
+  partsAhead?: boolean;
 }
 
 /** The values of the named arrays a worker asked for, or why they cannot be sent. */

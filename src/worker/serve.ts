@@ -67,7 +67,12 @@ export function serve(endpoint: Endpoint, yieldNow: () => Promise<void> = defaul
   const held = new HeldArrays();
   const supplies = new Map<number, (m: SupplyMessage) => void>();
 
-  const run = async (id: number, spec: JobSpec, holdBytes: number): Promise<void> => {
+  const run = async (
+    id: number,
+    spec: JobSpec,
+    holdBytes: number,
+    partsAhead: boolean
+  ): Promise<void> => {
     running.add(id);
     let t0 = performance.now();
     let lastPost = -Infinity;
@@ -75,7 +80,7 @@ export function serve(endpoint: Endpoint, yieldNow: () => Promise<void> = defaul
     const unit = spec?.kind === 'adaptive-filter' ? 'samples' : 'steps';
     const parts = new PartSender((m, transfer) => endpoint.post(m, transfer), id);
     const ctx: JobContext = {
-      part: (key, array, filled) => parts.note(key, array, filled),
+      part: partsAhead ? (key, array, filled) => parts.note(key, array, filled) : undefined,
       checkpoint: async (done, total, stage) => {
         lastTotal = total;
         const now = performance.now();
@@ -134,7 +139,7 @@ export function serve(endpoint: Endpoint, yieldNow: () => Promise<void> = defaul
 
   endpoint.listen(message => {
     if (message?.type === 'run') {
-      void run(message.id, message.spec, message.holdBytes ?? 0);
+      void run(message.id, message.spec, message.holdBytes ?? 0, message.partsAhead === true);
     } else if (message?.type === 'supply') {
       const answer = supplies.get(message.id);
       supplies.delete(message.id);

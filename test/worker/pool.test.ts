@@ -357,6 +357,55 @@ test('a long run’s output, error and learning curves arrive in parts before it
   expect(r.learningCurveSmoothed).toEqual(movingAverage(r.learningCurve, 1024));
 });
 
+test('jobs running side by side (a sweep) send no parts; the result brings its arrays whole', async () => {
+  const N = 70000; // more than a part's 2^16 values
+  const { x, d } = data(N, 14);
+  const seen: string[] = [];
+  const runs: boolean[] = [];
+  const p = pool({
+    size: 2,
+    createTransport: () => {
+      const t = nodeTransport(shim);
+      return {
+        postMessage: (m, transfer) => {
+          if (m.type === 'run') {
+            runs.push(m.partsAhead === true);
+          }
+          t.postMessage(m, transfer);
+        },
+        onMessage: h =>
+          t.onMessage((m: FromWorker) => {
+            seen.push(m.type);
+            h(m);
+          }),
+        onFailure: h => t.onFailure(h),
+        terminate: () => t.terminate()
+      };
+    }
+  });
+  const lambdas = [0.99, 0.999, 1];
+  const outcomes = await p.runSweep({
+    kind: 'sweep',
+    base: spec(x, d),
+    parameter: 'lambda',
+    values: lambdas
+  }).outcome;
+  // the last job may start alone, when the others have ended: only that one may ask for parts
+  expect(runs.slice(0, 2)).toEqual([false, false]);
+  outcomes.forEach((o, k) => {
+    const r = done(o);
+    expectSameRun(r, runFilter(x, d, { algorithm: 'qr-rls', taps: 8, lambda: lambdas[k] }));
+    // (arrays made in the worker thread's realm: copied into this one for the core's check)
+    expect(r.learningCurve).toEqual(squaredError(Float64Array.from(r.error.data)));
+  });
+  const partsInSweep = seen.filter(t => t === 'part').length;
+  expect(partsInSweep).toBe(runs[2] ? 4 * 2 : 0);
+  // a job alone asks for them
+  done(await p.run(spec(x, d)).outcome);
+  expect(runs[3]).toBe(true);
+  expect(seen.filter(t => t === 'part').length - partsInSweep).toBe(4 * 2);
+});
+
 test('a part the page cannot take fails the run with the reason', async () => {
   const posted: string[] = [];
   const p = pool({
