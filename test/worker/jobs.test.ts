@@ -343,21 +343,19 @@ describe('adaptive-filter job', () => {
         }
       };
       const shape = K > 1 ? [K, N] : [N];
-      const r = await run(
-        {
-          kind: 'adaptive-filter',
-          configuration: {
-            kind: 'system-identification',
-            input: arr(x, shape, complex),
-            output: arr(d, shape, complex)
-          },
-          algorithm: 'qr-rls',
-          taps: 3,
-          lambda: 0.99,
-          chunkSize: 700
+      const spec: AdaptiveFilterSpec = {
+        kind: 'adaptive-filter',
+        configuration: {
+          kind: 'system-identification',
+          input: arr(x, shape, complex),
+          output: arr(d, shape, complex)
         },
-        ctx
-      );
+        algorithm: 'qr-rls',
+        taps: 3,
+        lambda: 0.99,
+        chunkSize: 700
+      };
+      const r = await run(spec, ctx);
       // the output and error, every chunk of every trial; the learning curve only for one
       // trial (an ensemble's mean is known at the end)
       expect(Object.keys(seen).sort()).toEqual(
@@ -388,21 +386,7 @@ describe('adaptive-filter job', () => {
         expect(r.learningCurveSmoothed).toEqual(movingAverage(r.learningCurve, 60));
       }
       // and the run is the one without a runner that takes parts
-      const plain = await run(
-        {
-          kind: 'adaptive-filter',
-          configuration: {
-            kind: 'system-identification',
-            input: arr(x, shape, complex),
-            output: arr(d, shape, complex)
-          },
-          algorithm: 'qr-rls',
-          taps: 3,
-          lambda: 0.99,
-          chunkSize: 700
-        },
-        directContext
-      );
+      const plain = await run(spec, directContext);
       expect(r.output.data).toEqual(plain.output.data);
       expect(r.learningCurve).toEqual(plain.learningCurve);
       expect(r.figures).toEqual(plain.figures);
