@@ -5,9 +5,10 @@
  * its smoothed copy). Arriving all at once with the result, they set off the page's major
  * garbage collection just as the result was drawn: on two cores the collector's marking threads
  * took the cores from the draw (bench:ui's stall case, traced). Sent in parts while the job runs,
- * the page allocates each array when its first part arrives, at the start of the run (where the
- * collection then starts, traced), and fills it while it has nothing else to do; the result
- * brings only what is made at the end (weights, figures).
+ * the page allocates each array when its first part arrives, at the start of the run, and fills
+ * it while it has nothing else to do; the result brings only what is made at the end (weights,
+ * figures). Traced, the result then no longer starts the collection (the draw's own allocations
+ * still may). The pool asks for parts only for a job that runs alone (see pool.ts).
  *
  * The worker's side (PartSender) sends the values a job says are final, at least PART_VALUES at
  * a time, in order, and takes the arrays it sent whole out of the result (an empty data). The
