@@ -396,7 +396,8 @@ export class WorkerPool {
         return;
       case 'result': {
         slot.job = null;
-        const whole = job.partError === null ? (job.parts?.fill(m.result) ?? m) : null;
+        const whole =
+          job.partError === null ? (job.parts?.fill(m.result) ?? { result: m.result }) : null;
         job.parts = null;
         if (whole === null || 'error' in whole) {
           this._settle(job, {

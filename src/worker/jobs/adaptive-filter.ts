@@ -355,7 +355,7 @@ export function readFigures(
  * The learning curve's smoothing window for the figures, in samples: the spec's, or N/50 within
  * [1, 1024] (a window longer than the curve averages all of it).
  */
-export function figureWindow(spec: Pick<AdaptiveFilterSpec, 'window'>, N: number): number {
+function figureWindow(spec: Pick<AdaptiveFilterSpec, 'window'>, N: number): number {
   const window = spec.window ?? Math.min(1024, Math.max(1, Math.round(N / 50)));
   if (!Number.isInteger(window) || window < 1) {
     throw new RangeError(`window must be an integer ≥ 1, got ${String(spec.window)}`);
